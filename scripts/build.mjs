@@ -1,0 +1,24 @@
+// Bundles the three outputs: the extension host, the CLI and the webview.
+// One engine, three front ends: each bundle carries its own copy of src/core.
+import * as esbuild from 'esbuild';
+import { existsSync } from 'node:fs';
+
+const watch = process.argv.includes('--watch');
+const common = { bundle: true, sourcemap: true, logLevel: 'warning', target: 'es2022' };
+const targets = [
+  { ...common, entryPoints: ['src/cli/main.ts'], outfile: 'dist/cli.js', platform: 'node', format: 'cjs',
+    banner: { js: '#!/usr/bin/env node' } },
+];
+if (existsSync('src/extension/extension.ts')) {
+  targets.push({ ...common, entryPoints: ['src/extension/extension.ts'], outfile: 'dist/extension.js',
+    platform: 'node', format: 'cjs', external: ['vscode'] });
+}
+if (existsSync('webview/main.ts')) {
+  targets.push({ ...common, entryPoints: ['webview/main.ts'], outfile: 'dist/webview.js',
+    platform: 'browser', format: 'iife' });
+}
+if (watch) {
+  for (const t of targets) await (await esbuild.context(t)).watch();
+} else {
+  await Promise.all(targets.map((t) => esbuild.build(t)));
+}
