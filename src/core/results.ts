@@ -1,0 +1,57 @@
+// The result types every front end consumes: the CLI's outputs, the editor's diagnostics and the
+// sizing panel all read these, so they are plain data (JSON-safe apart from bigint byte counts).
+
+export type Severity = 'error' | 'warning' | 'info';
+
+/** A place in a definition file. Lines and columns are 1-based; offsets are UTF-16 code units. */
+export interface SourceRange {
+  offset: number;
+  length: number;
+  line: number;
+  column: number;
+  endLine: number;
+  endColumn: number;
+}
+
+/** One replacement in the original text: `length` UTF-16 units at `offset` become `text`. */
+export interface TextEdit {
+  offset: number;
+  length: number;
+  text: string;
+}
+
+export interface Fix {
+  title: string;
+  edits: TextEdit[];
+}
+
+export interface RelatedLocation {
+  message: string;
+  pointer: string;
+  range: SourceRange;
+}
+
+export interface Finding {
+  rule: string;
+  severity: Severity;
+  message: string;
+  /** RFC 6901 JSON Pointer into the definition file. */
+  pointer: string;
+  range: SourceRange;
+  fix?: Fix;
+  related?: RelatedLocation[];
+  suppressed?: { reason: string };
+}
+
+/** The sizing numbers of one disk (CONTRACTS.md §3). Byte counts are exact integers. */
+export interface SizingReport {
+  virtualSize: bigint;
+  clusterSize: bigint;
+  l2EntryBytes: bigint;
+  l2FullCoverage: bigint;
+  l2Effective: bigint;
+  l2CoveredBytes: bigint;
+  refcountEffective: bigint;
+  layers: number;
+  cacheMemoryTotal: bigint;
+}

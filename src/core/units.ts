@@ -1,0 +1,145 @@
+// Sizes and intervals as CONTRACTS.md §1 defines them. Byte counts are bigint so that no value a
+// qcow2 header can hold is ever rounded; decimal fractions ("2.5M") are computed exactly.
+import { fail, ok, type Outcome } from './result';
+
+const KI = 1024n;
+/** Binary multipliers [IEC 80000-13]: K, Ki and KiB all mean 2^10, and so on up to P. */
+const BINARY: Record<string, bigint> = {};
+const DECIMAL: Record<string, bigint> = { kB: 1000n, MB: 1000n ** 2n, GB: 1000n ** 3n, TB: 1000n ** 4n, PB: 1000n ** 5n };
+const BINARY_LETTERS = ['K', 'M', 'G', 'T', 'P'] as const;
+BINARY_LETTERS.forEach((letter, i) => {
+  const factor = KI ** BigInt(i + 1);
+  BINARY[letter] = factor;
+  BINARY[`${letter}i`] = factor;
+  BINARY[`${letter}iB`] = factor;
+});
+
+export const SIZE_UNITS_HELP = 'a whole number of bytes, or a number with K, M, G, T, P (or Ki.., KiB..: powers of 1024) or kB, MB, GB, TB (powers of 1000)';
+export const INTERVAL_HELP = 'a whole number of seconds, or a number with s, m or h';
+
+function multiplierOf(unit: string): Outcome<bigint> {
+  if (unit === '' || unit === 'B') return ok(1n);
+  const binary = BINARY[unit];
+  if (binary !== undefined) return ok(binary);
+  const decimal = DECIMAL[unit];
+  if (decimal !== undefined) return ok(decimal);
+  if (unit === 'KB') return fail('unit "KB" is ambiguous: write KiB (1024 bytes) or kB (1000 bytes)');
+  const upper = unit.charAt(0).toUpperCase() + unit.slice(1);
+  if (BINARY[upper] !== undefined) return fail(`unknown unit "${unit}" (did you mean ${upper}?)`);
+  return fail(`unknown unit "${unit}"`);
+}
+
+const NUMBER_WITH_UNIT = /^([+-]?)(\d+)(?:\.(\d+))?\s*([A-Za-z]*)$/;
+
+/** Reads a size: a JSON/YAML number of bytes or a string such as "64K", "2.5 MiB", "1 GB". */
+export function parseSize(input: unknown): Outcome<bigint> {
+  if (typeof input === 'bigint') return input < 0n ? fail(`${input} is negative; sizes must be ${SIZE_UNITS_HELP}`) : ok(input);
+  if (typeof input === 'number') {
+    if (!Number.isFinite(input)) return fail(`${input} is not a size; expected ${SIZE_UNITS_HELP}`);
+    if (input < 0) return fail(`${input} is negative; a size cannot be below 0`);
+    if (!Number.isInteger(input)) return fail(`${input} is not a whole number of bytes`);
+    if (!Number.isSafeInteger(input)) return fail(`${input} is too large to be read exactly as a number; write it as a string with a unit, e.g. "4P"`);
+    return ok(BigInt(input));
+  }
+  if (typeof input !== 'string') return fail(`expected a size (${SIZE_UNITS_HELP}), got ${describe(input)}`);
+  const text = input.trim();
+  const match = NUMBER_WITH_UNIT.exec(text);
+  if (!match) return fail(`"${input}" is not a size; expected ${SIZE_UNITS_HELP}`);
+  const [, sign = '', whole = '0', fraction = '', unit = ''] = match;
+  if (sign === '-') return fail(`"${input}" is negative; a size cannot be below 0`);
+  const multiplier = multiplierOf(unit);
+  if (!multiplier.ok) return fail(`"${input}": ${multiplier.error}; expected ${SIZE_UNITS_HELP}`);
+  const scale = 10n ** BigInt(fraction.length);
+  const numerator = BigInt(whole + fraction) * multiplier.value;
+  if (numerator % scale !== 0n) return fail(`"${input}" is not a whole number of bytes`);
+  return ok(numerator / scale);
+}
+
+/** Reads an interval in seconds: a number, or a string "90", "90s", "10m", "1h". */
+export function parseInterval(input: unknown): Outcome<number> {
+  if (typeof input === 'number') {
+    if (!Number.isFinite(input) || input < 0) return fail(`${input} is not an interval; expected ${INTERVAL_HELP} (0 turns cleanup off)`);
+    if (!Number.isSafeInteger(input)) return fail(`${input} is not a whole number of seconds`);
+    return ok(input);
+  }
+  if (typeof input !== 'string') return fail(`expected an interval (${INTERVAL_HELP}), got ${describe(input)}`);
+  const match = /^(\d+)(?:\.(\d+))?\s*(s|m|h)?$/.exec(input.trim());
+  if (!match) return fail(`"${input}" is not an interval; expected ${INTERVAL_HELP}`);
+  const [, whole = '0', fraction = '', unit = 's'] = match;
+  const factor = unit === 'h' ? 3600n : unit === 'm' ? 60n : 1n;
+  const scale = 10n ** BigInt(fraction.length);
+  const numerator = BigInt(whole + fraction) * factor;
+  if (numerator % scale !== 0n) return fail(`"${input}" is not a whole number of seconds`);
+  const seconds = numerator / scale;
+  if (seconds > BigInt(Number.MAX_SAFE_INTEGER)) return fail(`"${input}" is too long an interval`);
+  return ok(Number(seconds));
+}
+
+function describe(value: unknown): string {
+  if (value === null) return 'null';
+  if (Array.isArray(value)) return 'a list';
+  if (typeof value === 'object') return 'a map';
+  if (typeof value === 'boolean') return `the boolean ${value}`;
+  return typeof value;
+}
+
+const BINARY_NAMES = ['B', 'KiB', 'MiB', 'GiB', 'TiB', 'PiB', 'EiB'] as const;
+
+/**
+ * For people: the largest binary unit that leaves a value of at least 1, with up to two decimals
+ * ("2.5 MiB", "192 KiB"). Prefixed with "~" when those decimals are not exact.
+ */
+export function formatSize(bytes: bigint): string {
+  let index = 0;
+  while (index < BINARY_NAMES.length - 1 && bytes >= KI ** BigInt(index + 1)) index++;
+  const unit = KI ** BigInt(index);
+  const hundredths = (bytes * 100n) / unit;
+  const exact = (bytes * 100n) % unit === 0n;
+  const whole = hundredths / 100n;
+  const cents = hundredths % 100n;
+  const decimals = cents === 0n ? '' : `.${cents.toString().padStart(2, '0').replace(/0$/, '')}`;
+  return `${exact ? '' : '~'}${whole}${decimals} ${BINARY_NAMES[index]}`;
+}
+
+/** Shortest exact form that parseSize reads back to the same bytes: "64K", "2560K", "512". */
+export function formatSizeExact(bytes: bigint, style: SizeStyle = DEFAULT_STYLE): string {
+  if (style.kind === 'bytes' || bytes === 0n) return bytes.toString();
+  for (let i = BINARY_LETTERS.length; i >= 1; i--) {
+    const factor = KI ** BigInt(i);
+    if (bytes % factor === 0n) {
+      const letter = BINARY_LETTERS[i - 1] as string;
+      const suffix = style.kind === 'letter' ? letter : style.kind === 'iec' ? `${letter}i` : `${letter}iB`;
+      return `${bytes / factor}${style.space ? ' ' : ''}${suffix}`;
+    }
+  }
+  return bytes.toString();
+}
+
+/** How a file writes its sizes, so a fix writes new values the same way. */
+export interface SizeStyle {
+  kind: 'bytes' | 'letter' | 'iec' | 'iecB';
+  space: boolean;
+}
+const DEFAULT_STYLE: SizeStyle = { kind: 'letter', space: false };
+
+/** Infers the style of one written size: `65536` -> bytes, `64K` -> letter, `64 KiB` -> iecB with a space. */
+export function sizeStyleOf(written: unknown): SizeStyle | undefined {
+  if (typeof written === 'number') return { kind: 'bytes', space: false };
+  if (typeof written !== 'string') return undefined;
+  const match = NUMBER_WITH_UNIT.exec(written.trim());
+  if (!match) return undefined;
+  const unit = match[4] ?? '';
+  const space = /\d\s+[A-Za-z]/.test(written);
+  if (unit === '' || unit === 'B') return { kind: 'bytes', space: false };
+  if (/^[KMGTP]$/.test(unit)) return { kind: 'letter', space };
+  if (/^[KMGTP]i$/.test(unit)) return { kind: 'iec', space };
+  if (/^[KMGTP]iB$/.test(unit)) return { kind: 'iecB', space };
+  return undefined; // decimal units: a binary value rarely fits them exactly, so fall back to the default
+}
+
+export function formatInterval(seconds: number): string {
+  if (seconds === 0) return '0 (off)';
+  if (seconds % 3600 === 0) return `${seconds / 3600} h`;
+  if (seconds % 60 === 0) return `${seconds / 60} min`;
+  return `${seconds} s`;
+}
