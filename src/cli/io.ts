@@ -1,0 +1,21 @@
+// Where a command writes. Commands take this instead of process streams so tests can run them in
+// process and read what a user would see.
+export interface CommandIO {
+  stdout(text: string): void;
+  stderr(text: string): void;
+  /** The working directory paths are resolved against. */
+  cwd: string;
+  /** Whether stderr is a terminal (progress lines only go there). */
+  stderrIsTTY: boolean;
+}
+
+export const processIO = (): CommandIO => ({
+  stdout: (text) => process.stdout.write(text),
+  stderr: (text) => process.stderr.write(text),
+  cwd: process.cwd(),
+  stderrIsTTY: Boolean(process.stderr.isTTY),
+});
+
+export const EXIT_OK = 0;
+export const EXIT_FINDINGS = 1;
+export const EXIT_USAGE = 2;

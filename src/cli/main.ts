@@ -1,0 +1,53 @@
+// The diskwise command: dispatches to lint, size and inspect. Whatever happens inside, a user sees a
+// message and an exit code, never a stack trace.
+import { runSize } from './size';
+import { EXIT_USAGE, processIO, type CommandIO } from './io';
+
+declare const DISKWISE_VERSION: string | undefined;
+const VERSION = typeof DISKWISE_VERSION === 'string' ? DISKWISE_VERSION : '0.1.0';
+
+export const MAIN_USAGE = `usage: diskwise <command> [options]
+
+commands:
+  lint [PATH...]     check the qcow2 cache settings of VM definition files
+  size --size SIZE   the cache sizing numbers of one disk
+  inspect IMAGE...   read qcow2 images and their backing chains (read-only)
+
+Run "diskwise <command> --help" for a command's options.
+`;
+
+export async function runCommand(argv: readonly string[], io: CommandIO): Promise<number> {
+  const [command, ...rest] = argv;
+  switch (command) {
+    case 'size':
+      return runSize(rest, io);
+    case '--version':
+    case '-v':
+      io.stdout(`${VERSION}\n`);
+      return 0;
+    case undefined:
+    case '--help':
+    case '-h':
+    case 'help':
+      io.stdout(MAIN_USAGE);
+      return command === undefined ? EXIT_USAGE : 0;
+    default:
+      io.stderr(`diskwise: unknown command "${command}"\n\n${MAIN_USAGE}`);
+      return EXIT_USAGE;
+  }
+}
+
+if (require.main === module) {
+  const io = processIO();
+  runCommand(process.argv.slice(2), io).then(
+    (code) => {
+      process.exitCode = code;
+    },
+    (error: unknown) => {
+      const message = error instanceof Error ? error.message : String(error);
+      io.stderr(`diskwise: internal error: ${message}\n`);
+      if (process.env.DISKWISE_DEBUG && error instanceof Error && error.stack) io.stderr(`${error.stack}\n`);
+      process.exitCode = EXIT_USAGE;
+    },
+  );
+}

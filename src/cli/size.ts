@@ -1,0 +1,176 @@
+// `diskwise size`: the sizing numbers of one disk, from flags alone (CONTRACTS.md §2, §3).
+import { layerCache, sizeChain, type CacheSettings } from '../core/cache';
+import { CAUTIONS } from '../core/cautions';
+import { stringifyJson } from '../core/json';
+import { driverProfile, DRIVER_GENERATIONS, HOST_PLATFORMS, type DriverGeneration, type HostPlatform } from '../core/profiles';
+import { fail, ok, type Outcome } from '../core/result';
+import {
+  checkClusterSize, checkExtendedL2, checkRefcountBits, checkSlice, DEFAULT_CLUSTER, DEFAULT_REFCOUNT_BITS,
+  entriesPerL2Table, guestBytesPerL2Table, refcountCoveredBytes, writeAmplification,
+} from '../core/sizing';
+import { formatInterval, formatSize, parseSize } from '../core/units';
+import { formatOption, lastOption, parseArgs, type OptionSpec, type ParsedArgs } from './args';
+import { renderColumns } from './table';
+import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
+
+const OPTIONS: Record<string, OptionSpec> = {
+  size: { value: true },
+  'cluster-size': { value: true },
+  'extended-l2': { value: false },
+  slice: { value: true },
+  'refcount-bits': { value: true },
+  cache: { value: true },
+  'request-size': { value: true },
+  driver: { value: true },
+  platform: { value: true },
+  format: { value: true },
+  help: { value: false },
+};
+
+export const SIZE_USAGE = `usage: diskwise size --size SIZE [--cluster-size 64K] [--extended-l2] [--slice SIZE]
+                     [--refcount-bits 16] [--cache SIZE] [--request-size 4K]
+                     [--driver current|legacy] [--platform linux|other] [--format text|json]
+
+  --size           virtual size of the disk (e.g. 20G, 1.5T, 512GiB)
+  --cluster-size   cluster size, a power of two from 512 B to 2 MiB (default 64K)
+  --extended-l2    16-byte L2 entries with 32 subclusters per cluster
+  --slice          L2 cache entry size (default: whole L2 tables)
+  --refcount-bits  refcount width: 1, 2, 4, 8, 16, 32 or 64 (default 16)
+  --cache          configured L2 cache size (default: the driver's)
+  --request-size   typical guest write size, for first-write cost (default 4K)
+  --driver         driver generation whose defaults apply (default current)
+  --platform       host platform whose defaults apply (default linux)
+`;
+
+interface SizeRequest {
+  virtualSize: bigint;
+  cluster: bigint;
+  extendedL2: boolean;
+  slice?: bigint;
+  refcountBits: bigint;
+  cache?: bigint;
+  requestSize: bigint;
+  generation: DriverGeneration;
+  platform: HostPlatform;
+  format: 'text' | 'json';
+}
+
+function sizeOption(args: ParsedArgs, name: string, what: string): Outcome<bigint | undefined> {
+  const raw = lastOption(args, name);
+  if (raw === undefined) return ok(undefined);
+  const parsed = parseSize(raw);
+  return parsed.ok ? parsed : fail(`--${name} (${what}): ${parsed.error}`);
+}
+
+function choice<T extends string>(args: ParsedArgs, name: string, allowed: readonly T[], fallback: T): Outcome<T> {
+  const raw = lastOption(args, name) ?? fallback;
+  return (allowed as readonly string[]).includes(raw) ? ok(raw as T) : fail(`--${name} must be ${allowed.join(' or ')}, not "${raw}"`);
+}
+
+function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
+  if (args.positionals.length > 0) return fail(`unexpected argument "${args.positionals[0]}"`);
+  const format = formatOption(args);
+  if (!format.ok) return format;
+  const size = sizeOption(args, 'size', 'virtual size');
+  if (!size.ok) return size;
+  if (size.value === undefined) return fail('--size is required (the virtual size of the disk, e.g. 20G)');
+  if (size.value === 0n) return fail('--size (virtual size): a disk of 0 bytes has nothing to cache');
+  const clusterRaw = sizeOption(args, 'cluster-size', 'cluster size');
+  if (!clusterRaw.ok) return clusterRaw;
+  const cluster = checkClusterSize(clusterRaw.value ?? DEFAULT_CLUSTER);
+  if (!cluster.ok) return fail(`--cluster-size: ${cluster.error}`);
+  const extendedL2 = args.flags.has('extended-l2');
+  const extended = checkExtendedL2(cluster.value, extendedL2);
+  if (!extended.ok) return fail(`--extended-l2: ${extended.error}`);
+  const sliceRaw = sizeOption(args, 'slice', 'cache entry size');
+  if (!sliceRaw.ok) return sliceRaw;
+  if (sliceRaw.value !== undefined) {
+    const slice = checkSlice(sliceRaw.value, cluster.value);
+    if (!slice.ok) return fail(`--slice: ${slice.error}`);
+  }
+  const bitsRaw = lastOption(args, 'refcount-bits');
+  let refcountBits = DEFAULT_REFCOUNT_BITS;
+  if (bitsRaw !== undefined) {
+    if (!/^\d+$/.test(bitsRaw)) return fail(`--refcount-bits: "${bitsRaw}" is not a whole number; allowed: 1, 2, 4, 8, 16, 32, 64`);
+    const bits = checkRefcountBits(BigInt(bitsRaw));
+    if (!bits.ok) return fail(`--refcount-bits: ${bits.error}`);
+    refcountBits = bits.value;
+  }
+  const cache = sizeOption(args, 'cache', 'L2 cache size');
+  if (!cache.ok) return cache;
+  const request = sizeOption(args, 'request-size', 'guest write size');
+  if (!request.ok) return request;
+  if (request.value === 0n) return fail('--request-size (guest write size): must be at least 1 byte');
+  const generation = choice(args, 'driver', DRIVER_GENERATIONS, 'current');
+  if (!generation.ok) return generation;
+  const platform = choice(args, 'platform', HOST_PLATFORMS, 'linux');
+  if (!platform.ok) return platform;
+  return ok({
+    virtualSize: size.value, cluster: cluster.value, extendedL2, slice: sliceRaw.value, refcountBits,
+    cache: cache.value, requestSize: request.value ?? 4096n, generation: generation.value,
+    platform: platform.value, format: format.value,
+  });
+}
+
+export function runSize(argv: readonly string[], io: CommandIO): number {
+  const args = parseArgs(argv, OPTIONS);
+  if (args.ok && args.value.flags.has('help')) {
+    io.stdout(SIZE_USAGE);
+    return EXIT_OK;
+  }
+  const request = args.ok ? readRequest(args.value) : args;
+  if (!request.ok) {
+    io.stderr(`diskwise size: ${request.error}\n\n${SIZE_USAGE}`);
+    return EXIT_USAGE;
+  }
+  const r = request.value;
+  const profile = driverProfile(r.generation, r.platform);
+  const settings: CacheSettings = { l2Cache: r.cache, entrySize: r.slice };
+  const geometry = { virtualSize: r.virtualSize, clusterSize: r.cluster, extendedL2: r.extendedL2, refcountBits: r.refcountBits };
+  const sizing = sizeChain([{ geometry, settings }], profile);
+  const layer = layerCache(geometry, settings, profile);
+  if (r.format === 'json') {
+    io.stdout(`${stringifyJson({ ...sizing.report, l2Tables: layer.l2Tables })}\n`);
+    return EXIT_OK;
+  }
+  io.stdout(renderSizeText(r, sizing.report, layer, profile.summary));
+  return EXIT_OK;
+}
+
+function percent(part: bigint, whole: bigint): string {
+  if (whole === 0n) return '100%';
+  const tenths = (part * 1000n) / whole;
+  return `${tenths / 10n}.${tenths % 10n}%`;
+}
+
+function renderSizeText(
+  r: SizeRequest,
+  report: ReturnType<typeof sizeChain>['report'],
+  layer: ReturnType<typeof layerCache>,
+  profileSummary: string,
+): string {
+  const entry = layer.entrySize === r.cluster ? 'whole L2 tables' : `${formatSize(layer.entrySize)} slices`;
+  const amplification = writeAmplification(r.requestSize, r.cluster, r.extendedL2);
+  const source = layer.l2Source === 'configured' ? (layer.l2Capped ? 'configured, capped at full coverage' : 'configured') : 'driver default';
+  const rows: string[][] = [
+    ['virtual size', formatSize(r.virtualSize), `${r.virtualSize} bytes`],
+    ['cluster', formatSize(r.cluster), r.extendedL2 ? `extended L2: 16-byte entries, 32 subclusters of ${formatSize(r.cluster / 32n)}` : 'standard L2: 8-byte entries'],
+    ['L2 tables', layer.l2Tables.toString(), `${entriesPerL2Table(r.cluster, r.extendedL2)} entries each, each maps ${formatSize(guestBytesPerL2Table(r.cluster, r.extendedL2))}`],
+    ['full-coverage L2', formatSize(report.l2FullCoverage), `maps the whole disk, cached as ${entry}`],
+    ['effective L2', formatSize(report.l2Effective), `${source}; covers ${formatSize(report.l2CoveredBytes)} (${percent(report.l2CoveredBytes, r.virtualSize)} of the disk)`],
+    ['refcount cache', formatSize(report.refcountEffective), `covers ${formatSize(refcountCoveredBytes(report.refcountEffective, r.cluster, r.refcountBits))} of host clusters at ${r.refcountBits}-bit refcounts`],
+    ['cache memory', formatSize(report.cacheMemoryTotal), 'L2 + refcount, this layer'],
+    ['idle cleanup', formatInterval(layer.cleanupInterval), 'driver default'],
+    ['first write', `${amplification.ratio}x`, `a ${formatSize(r.requestSize)} write into unallocated space fills ${formatSize(amplification.bytesMoved)}`],
+  ];
+  const cautions = [CAUTIONS.reopen, CAUTIONS.hostMemory, CAUTIONS.fixedAtCreation, CAUTIONS.review];
+  return [
+    `qcow2 sizing (${profileSummary})`,
+    '',
+    renderColumns(rows),
+    '',
+    'Before changing a running system:',
+    ...cautions.map((c) => `  - ${c}`),
+    '',
+  ].join('\n');
+}
