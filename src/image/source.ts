@@ -1,0 +1,82 @@
+// The reader sees an image only through positioned reads, so it runs the same over a file handle,
+// an in-memory buffer (tests, fuzzing) or anything an editor hands it. Nothing here can write.
+import { open, type FileHandle } from 'node:fs/promises';
+import { ImageError } from './errors';
+
+export interface ByteSource {
+  /** Bytes in the source. */
+  size(): Promise<bigint | number>;
+  /** Up to `length` bytes from `offset`; fewer only where the source ends. */
+  read(offset: bigint | number, length: number): Promise<Uint8Array>;
+  /**
+   * Optional fast path: fills `target` from `offset` and returns the bytes read, so the metadata walk
+   * can reuse a few buffers instead of allocating one per L2 table.
+   */
+  readInto?(offset: number, target: Uint8Array): Promise<number>;
+  close?(): Promise<void>;
+}
+
+/** An image file opened read-only ('r'): the handle has no write access at all. */
+export class FileByteSource implements ByteSource {
+  private constructor(
+    private readonly handle: FileHandle,
+    private readonly bytes: number,
+  ) {}
+
+  static async open(path: string): Promise<FileByteSource> {
+    const handle = await open(path, 'r');
+    try {
+      const stat = await handle.stat();
+      if (stat.isDirectory()) throw new ImageError('unreadable', 'is a directory, not an image file');
+      if (!stat.isFile()) throw new ImageError('unreadable', 'is not a regular file');
+      return new FileByteSource(handle, stat.size);
+    } catch (error) {
+      await handle.close();
+      throw error;
+    }
+  }
+
+  async size(): Promise<number> {
+    return this.bytes;
+  }
+
+  async read(offset: bigint | number, length: number): Promise<Uint8Array> {
+    const target = new Uint8Array(length);
+    const got = await this.readInto(Number(offset), target);
+    return got === length ? target : target.subarray(0, got);
+  }
+
+  async readInto(offset: number, target: Uint8Array): Promise<number> {
+    let done = 0;
+    while (done < target.length) {
+      const { bytesRead } = await this.handle.read(target, done, target.length - done, offset + done);
+      if (bytesRead === 0) break;
+      done += bytesRead;
+    }
+    return done;
+  }
+
+  async close(): Promise<void> {
+    await this.handle.close();
+  }
+}
+
+/** A source over bytes already in memory. */
+export class MemoryByteSource implements ByteSource {
+  constructor(private readonly bytes: Uint8Array) {}
+
+  async size(): Promise<number> {
+    return this.bytes.length;
+  }
+
+  async read(offset: bigint | number, length: number): Promise<Uint8Array> {
+    const start = Math.min(Number(offset), this.bytes.length);
+    return this.bytes.slice(start, Math.min(start + length, this.bytes.length));
+  }
+
+  async readInto(offset: number, target: Uint8Array): Promise<number> {
+    const part = await this.read(offset, target.length);
+    target.set(part);
+    return part.length;
+  }
+}

@@ -1,0 +1,285 @@
+// The metadata walk [SPEC "Cluster mapping", "Extended L2 Entries"]: the active L1 table is read in
+// bounded chunks and each allocated L2 table is read and counted one at a time (a few reads in
+// flight), so memory depends on the cluster size only, never on the virtual size or the L1 size.
+import { ImageError, throwIfAborted } from './errors';
+import type { Qcow2Header } from './header';
+import type { ByteSource } from './source';
+
+export interface WalkProgress {
+  /** L1 entries looked at so far, of `l1Total` (the entries that map the virtual size). */
+  l1Done: number;
+  l1Total: number;
+  l2TablesRead: number;
+}
+
+export interface WalkOptions {
+  signal?: AbortSignal;
+  /** Called now and then during the walk and once at its end. */
+  onProgress?: (progress: WalkProgress) => void;
+  /** Regions of the allocation map (default 64). A region is never smaller than one cluster. */
+  buckets?: number;
+}
+
+/** Share of each region of the virtual disk that this layer holds, for drawing. */
+export interface AllocationMap {
+  /** Guest bytes per region (the last region may be shorter). */
+  regionBytes: bigint;
+  /** Per region, 0..1: share whose data is stored in this layer (standard, compressed, subclusters). */
+  data: number[];
+  /** Per region, 0..1: share that reads as zeros through a zero flag. */
+  zero: number[];
+}
+
+export interface MetadataSummary {
+  l2TablesAllocated: number;
+  /** Guest clusters with data in this layer: standard + compressed (+ standard with any subcluster allocated). */
+  dataClustersAllocated: number;
+  standardClusters: number;
+  compressedClusters: number;
+  /** Clusters whose zero flag is set (version 3, standard L2 entries). */
+  zeroClusters: number;
+  /** Extended L2 only: subclusters allocated, and subclusters marked as reading zeros. */
+  subclustersAllocated: number;
+  subclustersZero: number;
+  /** Guest bytes stored in this layer, and guest bytes reading as zeros through flags. */
+  allocatedBytes: bigint;
+  zeroBytes: bigint;
+  allocation: AllocationMap;
+  /** Inconsistencies that do not stop reading (reserved bits set, contradictory subcluster bits). */
+  warnings: string[];
+}
+
+const L1_CHUNK_ENTRIES = 8192; // 64 KiB of L1 per read
+const READS_IN_FLIGHT = 4;
+const MAX_WARNINGS = 20;
+const TWO_32 = 4294967296;
+const DEFAULT_BUCKETS = 64;
+
+const hex = (n: number): string => `0x${n.toString(16)}`;
+
+export async function walkMetadata(source: ByteSource, header: Qcow2Header, options: WalkOptions = {}): Promise<MetadataSummary> {
+  const { signal, onProgress } = options;
+  throwIfAborted(signal);
+  const cluster = Number(header.clusterSize);
+  const fileSize = Number(header.fileSize);
+  const extended = header.extendedL2;
+  const entryBytes = extended ? 16 : 8;
+  const entriesPerTable = cluster / entryBytes;
+  const virtualSize = header.virtualSize;
+  const totalClustersBig = (virtualSize + header.clusterSize - 1n) / header.clusterSize;
+  const totalClusters = Number(totalClustersBig);
+  const l1Total = header.l1EntriesNeeded;
+  const zeroFlagAllowed = header.version === 3 && !extended;
+  const subclusterBytes = cluster / 32;
+  const l1Start = Number(header.l1Offset);
+  const l1End = l1Start + header.l1Entries * 8;
+
+  // Regions: whole clusters each, at most `buckets` of them.
+  const wanted = Math.max(1, Math.floor(options.buckets ?? DEFAULT_BUCKETS));
+  const clustersPerRegion = Math.max(1, Math.ceil(totalClusters / wanted));
+  const regions = totalClusters === 0 ? 0 : Math.ceil(totalClusters / clustersPerRegion);
+  const dataPerRegion = new Float64Array(regions);
+  const zeroPerRegion = new Float64Array(regions);
+  const lastClusterBytes = Number(virtualSize - (totalClustersBig - 1n) * header.clusterSize);
+
+  const summary: MetadataSummary = {
+    l2TablesAllocated: 0,
+    dataClustersAllocated: 0,
+    standardClusters: 0,
+    compressedClusters: 0,
+    zeroClusters: 0,
+    subclustersAllocated: 0,
+    subclustersZero: 0,
+    allocatedBytes: 0n,
+    zeroBytes: 0n,
+    allocation: { regionBytes: BigInt(clustersPerRegion) * header.clusterSize, data: [], zero: [] },
+    warnings: [],
+  };
+  const warn = (message: string): void => {
+    if (summary.warnings.length < MAX_WARNINGS) summary.warnings.push(message);
+    else if (summary.warnings.length === MAX_WARNINGS) summary.warnings.push('further warnings left out');
+  };
+  let allocatedBytes = 0;
+  let zeroBytes = 0;
+
+  // Where each L2 table sits, so a table referenced twice is an error rather than a loop of rereads:
+  // this bounds the work by the file's size whatever the L1 table says.
+  const tableOwners = new Map<number, number>();
+  const compressedShift = 62 - (header.clusterBits - 8) - 32; // bits of the offset in the high word
+  const compressedOffsetHighMask = 2 ** compressedShift - 1;
+
+  const guestOffsetText = (clusterIndex: number): string => hex(clusterIndex * cluster);
+
+  const countTable = (table: Uint8Array, l1Index: number): void => {
+    const view = new DataView(table.buffer, table.byteOffset, cluster);
+    const words = new Uint32Array(table.buffer, table.byteOffset, cluster / 4);
+    const firstCluster = l1Index * entriesPerTable;
+    const entries = Math.min(entriesPerTable, totalClusters - firstCluster);
+    const stride = entryBytes / 4;
+    for (let i = 0; i < entries; i++) {
+      const w = i * stride;
+      // Most entries of a sparse table are zero: test the raw words before decoding anything.
+      if (words[w] === 0 && words[w + 1] === 0 && (!extended || (words[w + 2] === 0 && words[w + 3] === 0))) continue;
+      const at = i * entryBytes;
+      const high = view.getUint32(at);
+      const low = view.getUint32(at + 4);
+      const clusterIndex = firstCluster + i;
+      const region = Math.floor(clusterIndex / clustersPerRegion);
+      const guestBytes = clusterIndex === totalClusters - 1 ? lastClusterBytes : cluster;
+
+      if (high & 0x40000000) {
+        // [SPEC] compressed cluster descriptor, x = 62 - (cluster_bits - 8)
+        if (header.externalData) throw new ImageError('malformed', `compressed cluster at guest offset ${guestOffsetText(clusterIndex)} in an image with an external data file`);
+        const hostOffset = (high & compressedOffsetHighMask) * TWO_32 + low;
+        if (hostOffset === 0 || hostOffset >= fileSize) {
+          throw new ImageError('malformed', `compressed data for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, outside the file (${fileSize} bytes)`);
+        }
+        if (extended && (view.getUint32(at + 8) !== 0 || view.getUint32(at + 12) !== 0)) {
+          warn(`compressed cluster at guest offset ${guestOffsetText(clusterIndex)} has a non-zero subcluster bitmap (reserved)`);
+        }
+        summary.compressedClusters++;
+        summary.dataClustersAllocated++;
+        dataPerRegion[region] = (dataPerRegion[region] ?? 0) + guestBytes;
+        allocatedBytes += guestBytes;
+        continue;
+      }
+
+      const hostOffset = (high & 0x00ffffff) * TWO_32 + ((low & 0xfffffe00) >>> 0);
+      const copied = (high & 0x80000000) !== 0;
+      const hasHost = hostOffset !== 0 || (header.externalData && copied);
+      if ((low & 0x1fe) !== 0 || (high & 0x3f000000) !== 0 || (!zeroFlagAllowed && (low & 1) !== 0)) {
+        warn(`L2 entry for guest offset ${guestOffsetText(clusterIndex)} has reserved bits set`);
+      }
+      if (hasHost && !header.externalData) {
+        if (hostOffset % cluster !== 0) {
+          throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, not aligned to the ${cluster}-byte cluster size`);
+        }
+        if (hostOffset >= fileSize) {
+          throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, past the end of the file (${fileSize} bytes)`);
+        }
+      }
+
+      if (extended) {
+        const zeroMask = view.getUint32(at + 8); // bits 32..63: subcluster reads as zeros
+        const allocMask = view.getUint32(at + 12); // bits 0..31: subcluster allocated
+        if ((allocMask & zeroMask) !== 0) warn(`L2 entry for guest offset ${guestOffsetText(clusterIndex)} marks subclusters both allocated and zero`);
+        if (allocMask !== 0 && !hasHost) {
+          throw new ImageError('malformed', `the L2 entry for guest offset ${guestOffsetText(clusterIndex)} marks subclusters allocated but has no host cluster`);
+        }
+        const allocated = popcount(allocMask);
+        const zeros = popcount(zeroMask & ~allocMask);
+        summary.subclustersAllocated += allocated;
+        summary.subclustersZero += zeros;
+        if (allocated > 0) {
+          summary.standardClusters++;
+          summary.dataClustersAllocated++;
+          const bytes = Math.min(allocated * subclusterBytes, guestBytes);
+          dataPerRegion[region] = (dataPerRegion[region] ?? 0) + bytes;
+          allocatedBytes += bytes;
+        }
+        if (zeros > 0) {
+          const bytes = Math.min(zeros * subclusterBytes, guestBytes);
+          zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + bytes;
+          zeroBytes += bytes;
+        }
+        continue;
+      }
+
+      if (zeroFlagAllowed && (low & 1) !== 0) {
+        summary.zeroClusters++;
+        zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + guestBytes;
+        zeroBytes += guestBytes;
+      } else if (hasHost) {
+        summary.standardClusters++;
+        summary.dataClustersAllocated++;
+        dataPerRegion[region] = (dataPerRegion[region] ?? 0) + guestBytes;
+        allocatedBytes += guestBytes;
+      }
+    }
+  };
+
+  const checkTableOffset = (offset: number, l1Index: number): void => {
+    const where = `the L2 table of L1 entry ${l1Index} (guest offset ${hex(l1Index * entriesPerTable * cluster)})`;
+    if (offset % cluster !== 0) throw new ImageError('malformed', `${where} is at ${hex(offset)}, not aligned to the ${cluster}-byte cluster size`);
+    if (offset + cluster > fileSize) throw new ImageError('malformed', `${where} is at ${hex(offset)}, past the end of the file (${fileSize} bytes)`);
+    if (offset < l1End && offset + cluster > l1Start) throw new ImageError('malformed', `${where} overlaps the L1 table`);
+    const owner = tableOwners.get(offset);
+    if (owner !== undefined) throw new ImageError('malformed', `${where} is at ${hex(offset)}, the same place as the L2 table of L1 entry ${owner}`);
+    tableOwners.set(offset, l1Index);
+  };
+
+  const buffers = Array.from({ length: READS_IN_FLIGHT }, () => new Uint8Array(new ArrayBuffer(cluster)));
+  const readTable = async (offset: number, buffer: Uint8Array): Promise<Uint8Array> => {
+    const got = source.readInto ? await source.readInto(offset, buffer) : await copyRead(source, offset, buffer);
+    if (got < cluster) throw new ImageError('malformed', `the file ends inside the L2 table at ${hex(offset)}`);
+    return buffer;
+  };
+
+  let lastReport = 0;
+  const report = (l1Done: number): void => {
+    onProgress?.({ l1Done, l1Total, l2TablesRead: summary.l2TablesAllocated });
+  };
+
+  for (let chunkStart = 0; chunkStart < l1Total; chunkStart += L1_CHUNK_ENTRIES) {
+    throwIfAborted(signal);
+    const count = Math.min(L1_CHUNK_ENTRIES, l1Total - chunkStart);
+    const l1 = await source.read(header.l1Offset + BigInt(chunkStart * 8), count * 8);
+    if (l1.length < count * 8) throw new ImageError('malformed', 'the file ends inside the L1 table');
+    const l1View = new DataView(l1.buffer, l1.byteOffset, l1.byteLength);
+    const tables: Array<{ l1Index: number; offset: number }> = [];
+    for (let i = 0; i < count; i++) {
+      const high = l1View.getUint32(i * 8);
+      const low = l1View.getUint32(i * 8 + 4);
+      if (high === 0 && low === 0) continue;
+      const l1Index = chunkStart + i;
+      if ((low & 0x1ff) !== 0 || (high & 0x7f000000) !== 0) warn(`L1 entry ${l1Index} has reserved bits set`);
+      const offset = (high & 0x00ffffff) * TWO_32 + ((low & 0xfffffe00) >>> 0);
+      if (offset === 0) continue; // only the "copied" flag: no table
+      checkTableOffset(offset, l1Index);
+      tables.push({ l1Index, offset });
+    }
+    const pending: Array<Promise<Uint8Array>> = [];
+    for (let t = 0; t < tables.length && t < READS_IN_FLIGHT; t++) pending.push(readTable(tables[t]!.offset, buffers[t]!));
+    for (let t = 0; t < tables.length; t++) {
+      const table = await pending[t]!;
+      if (signal?.aborted) {
+        await Promise.allSettled(pending.slice(t + 1));
+        throw new ImageError('cancelled', 'cancelled');
+      }
+      countTable(table, tables[t]!.l1Index);
+      summary.l2TablesAllocated++;
+      const next = t + READS_IN_FLIGHT;
+      if (next < tables.length) pending.push(readTable(tables[next]!.offset, table));
+      if (onProgress && summary.l2TablesAllocated - lastReport >= 64) {
+        lastReport = summary.l2TablesAllocated;
+        report(tables[t]!.l1Index);
+      }
+    }
+    report(chunkStart + count);
+  }
+  if (l1Total === 0) report(0);
+
+  summary.allocatedBytes = BigInt(allocatedBytes);
+  summary.zeroBytes = BigInt(zeroBytes);
+  const regionLength = (r: number): number =>
+    r === regions - 1 ? (totalClusters - r * clustersPerRegion - 1) * cluster + lastClusterBytes : clustersPerRegion * cluster;
+  for (let r = 0; r < regions; r++) {
+    const length = regionLength(r);
+    summary.allocation.data.push(Math.min(1, (dataPerRegion[r] ?? 0) / length));
+    summary.allocation.zero.push(Math.min(1, (zeroPerRegion[r] ?? 0) / length));
+  }
+  return summary;
+}
+
+async function copyRead(source: ByteSource, offset: number, buffer: Uint8Array): Promise<number> {
+  const bytes = await source.read(offset, buffer.length);
+  buffer.set(bytes);
+  return bytes.length;
+}
+
+function popcount(mask: number): number {
+  let v = mask >>> 0;
+  v = v - ((v >>> 1) & 0x55555555);
+  v = (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+  return (((v + (v >>> 4)) & 0x0f0f0f0f) * 0x01010101) >>> 24;
+}
