@@ -86,7 +86,7 @@ export interface CacheCurve {
   wholeTable: boolean;
   entries: number;
   fullCoverageBytes: bigint;
-  /** Log-spaced cache sizes from minEntries entries to full coverage, ascending, no duplicates. */
+  /** Log-spaced cache sizes from minEntries entries to full coverage, ascending and distinct: min(points, N - minEntries + 1) of them. */
   points: CurvePoint[];
 }
 
@@ -171,10 +171,14 @@ export function prepareCacheModel(input: CacheModelGeometryInput): ModelResult<P
     const count = Math.min(MAX_CURVE_POINTS, Math.max(2, Math.floor(Number.isFinite(points) ? points : DEFAULT_CURVE_POINTS)));
     const low = minEntries;
     const high = Math.max(entries, minEntries);
+    // Log-spaced, but each point at least one entry past the last and leaving room for the rest, so
+    // the curve has exactly min(points, high - low + 1) distinct sizes ending at full coverage.
+    const total = Math.min(count, high - low + 1);
     const capacities: number[] = [];
-    for (let k = 0; k < count; k++) {
-      const capacity = k === count - 1 ? high : Math.round(Math.exp(Math.log(low) + ((Math.log(high) - Math.log(low)) * k) / (count - 1)));
-      if (capacities.length === 0 || capacity > (capacities[capacities.length - 1] as number)) capacities.push(capacity);
+    for (let k = 0; k < total; k++) {
+      const spaced = total === 1 ? high : Math.round(Math.exp(Math.log(low) + ((Math.log(high) - Math.log(low)) * k) / (total - 1)));
+      const previous = capacities.length === 0 ? low - 1 : (capacities[capacities.length - 1] as number);
+      capacities.push(Math.min(high - (total - 1 - k), Math.max(previous + 1, spaced)));
     }
     return {
       entrySize: geometry.entrySize,
