@@ -6,7 +6,7 @@
 
 import { weightedItems, type WeightedItems } from './che';
 
-export const EXACT_ZIPF_LIMIT = 4096;
+export const EXACT_ZIPF_LIMIT = 512;
 const HEAD_RANKS = 256;
 const GAUSS_ORDER = 8;
 const MAX_PANEL_WIDTH = 0.25; // in ln(rank)
