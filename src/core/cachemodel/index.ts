@@ -23,7 +23,7 @@
  *   through input.device).
  *
  * Methods (docs/cache-model.md): uniform access gives exactly C/N [IRM] when every touched entry is
- * fully covered; Zipf and hot-spot access use Che's characteristic-time approximation [CHE]; a
+ * fully covered; Zipf and hot-spot access use the characteristic-time approximation of LRU [CHE]; a
  * sequential scan misses once per entry per pass unless all N entries fit.
  */
 

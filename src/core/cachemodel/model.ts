@@ -4,7 +4,7 @@
 // or a what-if drag only solves one small equation per cache size.
 
 import { checkAccessPattern, type AccessPattern } from './access';
-import { cheHitRatio, singleEntryHitRatio, weightedItems, type WeightedItems } from './che';
+import { cheHitRatio, singleEntryHitRatio, weightedItems, type WeightedItems } from './characteristic-time';
 import { estimateThroughput, resolveDevice, type DeviceClass, type DeviceLatency, type ThroughputEstimate } from './cost';
 import { checkWorkingSet, entryClasses, entryGeometry, entrySpan, type DensitySegment, type EntryGeometry, type WorkingSet } from './geometry';
 import { fail, ok, type ModelResult } from './result';
@@ -40,7 +40,7 @@ export interface CacheModelInput extends CacheModelGeometryInput {
   cacheBytes: bigint;
 }
 
-export type ModelMethod = 'full-coverage' | 'exact-uniform' | 'exact-single-entry' | 'che' | 'sequential-scan';
+export type ModelMethod = 'full-coverage' | 'exact-uniform' | 'exact-single-entry' | 'characteristic-time' | 'sequential-scan';
 
 export interface CacheModelReport {
   access: AccessPattern;
@@ -236,7 +236,7 @@ function evaluator(access: AccessPattern, geometry: EntryGeometry, set: WorkingS
         if (capacity >= items.total) return fullCoverage(randomLookups);
         if (equal) return fromHit(capacity / items.total, 'exact-uniform');
         if (capacity === 1) return fromHit(singleEntryHitRatio(items), 'exact-single-entry');
-        return fromHit(cheHitRatio(items, capacity), 'che');
+        return fromHit(cheHitRatio(items, capacity), 'characteristic-time');
       };
     }
     case 'zipf': {
@@ -245,7 +245,7 @@ function evaluator(access: AccessPattern, geometry: EntryGeometry, set: WorkingS
       return (capacity) => {
         if (capacity >= n) return fullCoverage(randomLookups);
         if (capacity === 1) return fromHit(singleEntryHitRatio(items), 'exact-single-entry');
-        return fromHit(cheHitRatio(items, capacity), 'che');
+        return fromHit(cheHitRatio(items, capacity), 'characteristic-time');
       };
     }
   }

@@ -4,7 +4,7 @@
 // error is about f'(K)/24, negligible here), evaluated by Gauss-Legendre panels in log-rank, where the
 // integrand (1 - exp(-T x^-s / Z)) is a smooth step. A million entries become a few hundred nodes.
 
-import { weightedItems, type WeightedItems } from './che';
+import { weightedItems, type WeightedItems } from './characteristic-time';
 
 export const EXACT_ZIPF_LIMIT = 512;
 const HEAD_RANKS = 256;

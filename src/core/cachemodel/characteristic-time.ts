@@ -1,4 +1,4 @@
-// Che's characteristic-time approximation of an LRU cache under independent references [CHE]:
+// The characteristic-time approximation of an LRU cache under independent references [CHE]:
 // an item with access probability q stays cached if it is referenced again within the cache's
 // characteristic time T, which solves  sum_i (1 - exp(-q_i T)) = C  for a cache of C entries; the
 // hit ratio is then  sum_i q_i (1 - exp(-q_i T)).
@@ -63,7 +63,7 @@ export function characteristicTime(items: WeightedItems, capacity: number): numb
   return t;
 }
 
-/** Che's approximate LRU hit ratio for a cache of `capacity` entries over `items`. */
+/** The characteristic-time approximation of the LRU hit ratio for a cache of `capacity` entries over `items`. */
 export function cheHitRatio(items: WeightedItems, capacity: number): number {
   if (capacity >= items.total) return 1;
   if (capacity <= 0) return 0;
@@ -79,7 +79,7 @@ export function cheHitRatio(items: WeightedItems, capacity: number): number {
 
 /**
  * The exact LRU hit ratio of a one-entry cache: a hit happens exactly when an access repeats the
- * previous one, so it is sum_i q_i^2 (independent references). Che's approximation is at its weakest
+ * previous one, so it is sum_i q_i^2 (independent references). The approximation is at its weakest
  * there, and the case is cheap to state exactly.
  */
 export function singleEntryHitRatio(items: WeightedItems): number {

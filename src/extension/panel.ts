@@ -1,0 +1,142 @@
+// Hosts the sizing panel's webview beside the editor: a strict content security policy (the
+// extension's own resources only, scripts with a nonce), and the typed protocol for every message.
+import { randomBytes } from 'node:crypto';
+import * as vscode from 'vscode';
+import {
+  decodePanelMessage, encodeMessage, type HostMessage, type PanelView, type WhatIfValues,
+} from '../../webview/protocol';
+import type { SourceRange } from '../core/results';
+
+export interface PanelHandlers {
+  reveal(uri: vscode.Uri, range: SourceRange): void;
+  apply(uri: vscode.Uri, version: number, pointer: string, values: WhatIfValues): Promise<{ ok: boolean; message: string }>;
+  /** The webview is ready for a view (first open, or after it was reloaded). */
+  ready(): void;
+}
+
+interface RenderWaiter { seq: number; resolve: (disks: number) => void }
+
+export class SizingPanel implements vscode.Disposable {
+  static readonly viewType = 'diskwise.sizingPanel';
+  private panel: vscode.WebviewPanel | undefined;
+  private seq = 0;
+  private readonly waiters: RenderWaiter[] = [];
+  private readonly disposables: vscode.Disposable[] = [];
+  /** When each view was posted, for the panel-update timing. */
+  private readonly postedAt = new Map<number, number>();
+  lastRender: { seq: number; disks: number; ms: number } | undefined;
+  shownUri: string | undefined;
+
+  constructor(private readonly extensionUri: vscode.Uri, private readonly handlers: PanelHandlers) {}
+
+  get visible(): boolean {
+    return this.panel !== undefined;
+  }
+
+  open(preserveFocus = true): void {
+    if (this.panel) {
+      this.panel.reveal(vscode.ViewColumn.Beside, preserveFocus);
+      return;
+    }
+    const roots = [vscode.Uri.joinPath(this.extensionUri, 'dist'), vscode.Uri.joinPath(this.extensionUri, 'media')];
+    const panel = vscode.window.createWebviewPanel(SizingPanel.viewType, 'diskwise: cache sizing',
+      { viewColumn: vscode.ViewColumn.Beside, preserveFocus },
+      { enableScripts: true, localResourceRoots: roots, retainContextWhenHidden: true });
+    panel.iconPath = vscode.Uri.joinPath(this.extensionUri, 'media', 'panel-icon.svg');
+    panel.webview.html = this.html(panel.webview);
+    panel.webview.onDidReceiveMessage((raw: unknown) => this.receive(raw), undefined, this.disposables);
+    panel.onDidDispose(() => {
+      this.panel = undefined;
+      this.shownUri = undefined;
+    }, undefined, this.disposables);
+    this.panel = panel;
+  }
+
+  show(view: PanelView): Promise<number> {
+    this.shownUri = view.uri;
+    return this.post({ type: 'show', seq: ++this.seq, view });
+  }
+
+  empty(reason: string): Promise<number> {
+    this.shownUri = undefined;
+    return this.post({ type: 'empty', seq: ++this.seq, reason });
+  }
+
+  focusDisk(pointer: string): void {
+    if (this.panel) void this.panel.webview.postMessage(encodeMessage({ type: 'focusDisk', pointer }));
+  }
+
+  /** Resolves with the disk count once the webview has drawn this view. */
+  private post(message: Extract<HostMessage, { seq: number }>): Promise<number> {
+    if (!this.panel) return Promise.resolve(0);
+    this.postedAt.set(message.seq, Date.now());
+    const drawn = new Promise<number>((resolve) => this.waiters.push({ seq: message.seq, resolve }));
+    void this.panel.webview.postMessage(encodeMessage(message));
+    return drawn;
+  }
+
+  private receive(raw: unknown): void {
+    const message = decodePanelMessage(raw);
+    if (!message) return;
+    switch (message.type) {
+      case 'ready':
+        this.handlers.ready();
+        break;
+      case 'rendered': {
+        const posted = this.postedAt.get(message.seq);
+        this.postedAt.delete(message.seq);
+        if (posted !== undefined) this.lastRender = { seq: message.seq, disks: message.disks, ms: Date.now() - posted };
+        // Views superseded before they were drawn resolve too: the newest drawing answers for them.
+        for (let i = this.waiters.length - 1; i >= 0; i--) {
+          const waiter = this.waiters[i];
+          if (waiter && waiter.seq <= message.seq) {
+            this.waiters.splice(i, 1);
+            waiter.resolve(message.disks);
+          }
+        }
+        break;
+      }
+      case 'reveal':
+        this.handlers.reveal(vscode.Uri.parse(message.uri), message.range);
+        break;
+      case 'applyWhatIf':
+        void this.handlers.apply(vscode.Uri.parse(message.uri), message.version, message.pointer, message.values).then((outcome) => {
+          if (this.panel) void this.panel.webview.postMessage(encodeMessage({ type: 'applied', ...outcome }));
+        });
+        break;
+    }
+  }
+
+  private html(webview: vscode.Webview): string {
+    const nonce = randomBytes(16).toString('base64');
+    const script = webview.asWebviewUri(vscode.Uri.joinPath(this.extensionUri, 'dist', 'webview.js'));
+    const style = webview.asWebviewUri(vscode.Uri.joinPath(this.extensionUri, 'media', 'panel.css'));
+    const csp = [
+      "default-src 'none'",
+      `img-src ${webview.cspSource}`,
+      `font-src ${webview.cspSource}`,
+      `style-src ${webview.cspSource}`,
+      `script-src 'nonce-${nonce}'`,
+    ].join('; ');
+    return `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="UTF-8">
+<meta http-equiv="Content-Security-Policy" content="${csp}">
+<meta name="viewport" content="width=device-width, initial-scale=1.0">
+<link rel="stylesheet" href="${style.toString()}">
+<title>diskwise: cache sizing</title>
+</head>
+<body>
+<div id="root"><p class="none">Reading the definition…</p></div>
+<script nonce="${nonce}" src="${script.toString()}"></script>
+</body>
+</html>`;
+  }
+
+  dispose(): void {
+    this.panel?.dispose();
+    for (const d of this.disposables) d.dispose();
+    for (const waiter of this.waiters.splice(0)) waiter.resolve(0);
+  }
+}

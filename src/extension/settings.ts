@@ -1,0 +1,36 @@
+// The extension's settings, read in one place. Per-rule severities here override the mapping file's.
+import * as vscode from 'vscode';
+import type { Severity } from '../core/results';
+
+export type SeveritySetting = Severity | 'off';
+const SEVERITIES: readonly SeveritySetting[] = ['error', 'warning', 'info', 'off'];
+
+export interface Settings {
+  enable: boolean;
+  /** Relative to the workspace folder; empty when the folder's root is searched. */
+  mappingFile: string;
+  rules: Record<string, SeveritySetting>;
+  debounceMs: number;
+}
+
+export const SECTION = 'diskwise';
+
+export function readSettings(scope?: vscode.Uri): Settings {
+  const config = vscode.workspace.getConfiguration(SECTION, scope);
+  const rules: Record<string, SeveritySetting> = {};
+  const rawRules = config.get<unknown>('rules');
+  if (rawRules && typeof rawRules === 'object') {
+    for (const [rule, severity] of Object.entries(rawRules as Record<string, unknown>)) {
+      if (SEVERITIES.includes(severity as SeveritySetting)) rules[rule] = severity as SeveritySetting;
+    }
+  }
+  const debounce = config.get<number>('debounceMs', 200);
+  // A mapping path from an untrusted workspace's settings could point anywhere: ignore it there.
+  const mappingFile = vscode.workspace.isTrusted ? config.get<string>('mappingFile', '') : '';
+  return {
+    enable: config.get<boolean>('enable', true),
+    mappingFile: mappingFile.trim(),
+    rules,
+    debounceMs: Number.isFinite(debounce) && debounce >= 0 ? Math.min(debounce, 5000) : 200,
+  };
+}

@@ -1,0 +1,213 @@
+// From a parsed definition and its mapping to typed machines and disks: every value keeps where it
+// sits (JSON Pointer and range), so findings and fixes can point at it. Values that cannot be read
+// become problems here; rules only ever see well-typed values.
+import type { Node } from 'yaml';
+import type { SourceRange } from '../core/results';
+import { checkClusterSize, checkExtendedL2, checkSlice } from '../core/sizing';
+import { parseInterval, parseSize } from '../core/units';
+import { nodeAt, rangeOfNode, type DefinitionDocument } from './document';
+import { select, toJsonPointer, type PathSegment, type Selector } from './jsonpath';
+import type { AccessPattern, Mapping } from './mapping';
+import type { DiskField } from './mappingSchema';
+
+export interface Located<T> {
+  value: T;
+  /** The value as written (a number, or the string with its unit). */
+  raw: unknown;
+  path: PathSegment[];
+  pointer: string;
+  range: SourceRange;
+  node: Node;
+  /** Reached through a YAML alias: a fix here would change every user of the anchor. */
+  viaAlias: boolean;
+}
+
+export interface ValueProblem {
+  field: string;
+  message: string;
+  pointer: string;
+  range: SourceRange;
+}
+
+export interface DiskValues {
+  size?: Located<bigint>;
+  clusterSize?: Located<bigint>;
+  format?: Located<string>;
+  l2Cache?: Located<bigint>;
+  refcountCache?: Located<bigint>;
+  totalCache?: Located<bigint>;
+  l2Slice?: Located<bigint>;
+  cleanupInterval?: Located<number>;
+  extendedL2?: Located<boolean>;
+  image?: Located<string>;
+  requestSize?: Located<bigint>;
+  pattern?: Located<AccessPattern>;
+}
+
+export interface DiskSpec {
+  name: string;
+  machine: MachineSpec;
+  path: PathSegment[];
+  pointer: string;
+  range: SourceRange;
+  node: Node;
+  values: DiskValues;
+  /** A backing layer described inline in the definition, or named by path. */
+  backing?: { disk: DiskSpec } | { file: Located<string> };
+  /** Whether the disk is qcow2 (only those are sized). */
+  isQcow2: boolean;
+  /** Effective geometry after assumptions; undefined when the size is unknown or a value is invalid. */
+  geometryProblem?: string;
+}
+
+export interface MachineSpec {
+  name: string;
+  path: PathSegment[];
+  pointer: string;
+  range: SourceRange;
+  node?: Node;
+  memory?: Located<bigint>;
+  disks: DiskSpec[];
+}
+
+export interface Extraction {
+  machines: MachineSpec[];
+  problems: ValueProblem[];
+}
+
+const isRecord = (value: unknown): value is Record<string, unknown> => typeof value === 'object' && value !== null && !Array.isArray(value);
+
+const BOOLEAN_WORDS: Record<string, boolean> = { true: true, false: false, on: true, off: false, yes: true, no: false };
+
+class Extractor {
+  readonly problems: ValueProblem[] = [];
+  constructor(readonly document: DefinitionDocument, readonly mapping: Mapping) {}
+
+  private place(path: PathSegment[]): { node: Node; range: SourceRange; viaAlias: boolean } | undefined {
+    const found = nodeAt(this.document, path);
+    if (!found) return undefined;
+    return { node: found.node, range: rangeOfNode(this.document, found.node), viaAlias: found.viaAlias };
+  }
+
+  /** The first node a field's selector picks below `base`. */
+  private raw(selector: Selector | undefined, base: PathSegment[], baseValue: unknown): Located<unknown> | undefined {
+    if (!selector) return undefined;
+    const match = select(selector, baseValue)[0];
+    if (!match || match.value === null || match.value === undefined) return undefined;
+    const path = [...base, ...match.path];
+    const place = this.place(path);
+    if (!place) return undefined;
+    return { value: match.value, raw: match.value, path, pointer: toJsonPointer(path), ...place };
+  }
+
+  private problem(field: string, at: Located<unknown>, message: string): undefined {
+    this.problems.push({ field, message, pointer: at.pointer, range: at.range });
+    return undefined;
+  }
+
+  private typed<T>(field: string, at: Located<unknown> | undefined, read: (raw: unknown) => { ok: true; value: T } | { ok: false; error: string }): Located<T> | undefined {
+    if (!at) return undefined;
+    const result = read(at.raw);
+    if (!result.ok) return this.problem(field, at, result.error);
+    return { ...at, value: result.value };
+  }
+
+  machines(): MachineSpec[] {
+    const { mapping, document } = this;
+    const roots = mapping.machines ? select(mapping.machines, document.data) : [{ path: [] as PathSegment[], value: document.data }];
+    return roots.map((root, index) => this.machine(root.path, root.value, index));
+  }
+
+  private machine(path: PathSegment[], value: unknown, index: number): MachineSpec {
+    const place = this.place(path);
+    const fields = this.mapping.machineFields;
+    const nameAt = this.raw(fields.name, path, value);
+    const memory = this.typed('memory', this.raw(fields.memory, path, value), parseSize);
+    const machine: MachineSpec = {
+      name: nameAt && (typeof nameAt.raw === 'string' || typeof nameAt.raw === 'number') ? String(nameAt.raw) : this.mapping.machines ? `machine ${index + 1}` : this.document.path.split(/[\\/]/).pop() ?? 'machine',
+      path,
+      pointer: toJsonPointer(path),
+      range: place?.range ?? this.document.lines.range(0, 0),
+      node: place?.node,
+      memory,
+      disks: [],
+    };
+    select(this.mapping.disks, value).forEach((match, i) => {
+      if (!isRecord(match.value)) return;
+      const disk = this.disk(machine, [...path, ...match.path], match.value, `disk ${i + 1}`);
+      if (disk) machine.disks.push(disk);
+    });
+    return machine;
+  }
+
+  private disk(machine: MachineSpec, path: PathSegment[], value: Record<string, unknown>, fallbackName: string, depth = 0): DiskSpec | undefined {
+    const place = this.place(path);
+    if (!place) return undefined;
+    const f = this.mapping.diskFields;
+    const raw = (field: DiskField) => this.raw(f[field], path, value);
+    const size = (field: DiskField) => this.typed(field, raw(field), parseSize);
+    const nameAt = raw('name');
+    const values: DiskValues = {
+      size: size('size'),
+      clusterSize: this.typed('clusterSize', raw('clusterSize'), (v) => {
+        const parsed = parseSize(v);
+        return parsed.ok ? checkClusterSize(parsed.value) : parsed;
+      }),
+      format: this.typed('format', raw('format'), (v) => (typeof v === 'string' ? { ok: true, value: v } : { ok: false, error: 'a disk format must be a string such as "qcow2"' })),
+      l2Cache: size('l2Cache'),
+      refcountCache: size('refcountCache'),
+      totalCache: size('totalCache'),
+      l2Slice: size('l2Slice'),
+      cleanupInterval: this.typed('cleanupInterval', raw('cleanupInterval'), parseInterval),
+      extendedL2: this.typed('extendedL2', raw('extendedL2'), (v) => {
+        if (typeof v === 'boolean') return { ok: true, value: v };
+        const word = typeof v === 'string' ? BOOLEAN_WORDS[v.trim().toLowerCase()] : undefined;
+        return word === undefined ? { ok: false, error: `expected true or false for extended L2, got ${JSON.stringify(v)}` } : { ok: true, value: word };
+      }),
+      image: this.typed('image', raw('image'), (v) => (typeof v === 'string' && v.length > 0 ? { ok: true, value: v } : { ok: false, error: 'an image path must be a non-empty string' })),
+      requestSize: this.typed('requestSize', raw('requestSize'), (v) => {
+        const parsed = parseSize(v);
+        if (parsed.ok && parsed.value === 0n) return { ok: false, error: 'a guest write size must be at least 1 byte' };
+        return parsed;
+      }),
+      pattern: this.typed('pattern', raw('pattern'), (v) =>
+        v === 'random' || v === 'sequential' || v === 'mixed' ? { ok: true, value: v } : { ok: false, error: `the access pattern must be random, sequential or mixed, got ${JSON.stringify(v)}` }),
+    };
+    const cluster = values.clusterSize?.value ?? this.mapping.assume.clusterSize;
+    if (values.extendedL2?.value) {
+      const check = checkExtendedL2(cluster, true);
+      if (!check.ok) this.problem('extendedL2', values.extendedL2, check.error), (values.extendedL2 = undefined);
+    }
+    if (values.l2Slice) {
+      const check = checkSlice(values.l2Slice.value, cluster);
+      if (!check.ok) this.problem('l2Slice', values.l2Slice, check.error), (values.l2Slice = undefined);
+    }
+    if (values.size && values.size.value === 0n) this.problem('size', values.size, 'a virtual size of 0 bytes has nothing to cache'), (values.size = undefined);
+    const format = values.format?.value ?? this.mapping.assume.format;
+    const disk: DiskSpec = {
+      name: nameAt && (typeof nameAt.raw === 'string' || typeof nameAt.raw === 'number') ? String(nameAt.raw) : fallbackName,
+      machine,
+      path,
+      pointer: toJsonPointer(path),
+      range: place.range,
+      node: place.node,
+      values,
+      isQcow2: format.trim().toLowerCase() === 'qcow2',
+    };
+    const backing = raw('backing');
+    if (backing) {
+      if (typeof backing.raw === 'string' && backing.raw.length > 0) disk.backing = { file: { ...backing, value: backing.raw } };
+      else if (isRecord(backing.raw) && depth < 32) {
+        const nested = this.disk(machine, backing.path, backing.raw, `${disk.name} backing`, depth + 1);
+        if (nested) disk.backing = { disk: nested };
+      } else if (!isRecord(backing.raw)) this.problem('backing', backing, 'a backing disk must be an image path or a disk object');
+    }
+    return disk;
+  }
+}
+
+export function extractMachines(document: DefinitionDocument, mapping: Mapping): Extraction {
+  const extractor = new Extractor(document, mapping);
+  const machines = extractor.machines();
+  return { machines, problems: extractor.problems };
+}

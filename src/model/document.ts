@@ -1,0 +1,121 @@
+// A definition file read with every node's place in the text. YAML and JSON both go through the
+// `yaml` package (JSON is read with its JSON schema), which keeps comments and exact offsets.
+import {
+  isAlias, isMap, isScalar, isSeq, parseDocument, type Document, type Node, type Pair, type Scalar,
+  type YAMLMap, type YAMLSeq,
+} from 'yaml';
+import type { SourceRange } from '../core/results';
+import { LineIndex } from './lines';
+import type { PathSegment } from './jsonpath';
+
+export type DocumentFormat = 'yaml' | 'json';
+
+export interface DocumentProblem {
+  message: string;
+  range: SourceRange;
+}
+
+export interface DefinitionDocument {
+  path: string;
+  text: string;
+  format: DocumentFormat;
+  /** The document's data as plain values, for JSONPath. */
+  data: unknown;
+  tree: Document.Parsed;
+  lines: LineIndex;
+  /** The line break the file uses, so inserted lines match it. */
+  eol: string;
+}
+
+export interface ReadResult {
+  document?: DefinitionDocument;
+  problems: DocumentProblem[];
+}
+
+export const formatOf = (path: string): DocumentFormat => (/\.json$/i.test(path) ? 'json' : 'yaml');
+
+function firstLine(message: string): string {
+  return (message.split('\n')[0] ?? message).replace(/ at line \d+, column \d+:?$/, '');
+}
+
+function jsonSyntaxProblem(text: string, lines: LineIndex): DocumentProblem | undefined {
+  try {
+    JSON.parse(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
+    return undefined;
+  } catch (error) {
+    const message = error instanceof Error ? error.message : String(error);
+    const at = /position (\d+)/.exec(message);
+    const offset = at ? Number(at[1]) + (text.charCodeAt(0) === 0xfeff ? 1 : 0) : 0;
+    const clean = message.replace(/ in JSON at position \d+.*$/s, '').replace(/^JSON\.parse: /, '');
+    return { message: `not valid JSON: ${clean}`, range: lines.range(offset, Math.min(offset + 1, text.length)) };
+  }
+}
+
+export function readDefinition(path: string, text: string, format: DocumentFormat = formatOf(path)): ReadResult {
+  const lines = new LineIndex(text);
+  if (format === 'json') {
+    const problem = jsonSyntaxProblem(text, lines);
+    if (problem) return { problems: [problem] };
+  }
+  const tree = parseDocument(text, { schema: format === 'json' ? 'json' : 'core', prettyErrors: false, uniqueKeys: true, strict: true });
+  const problems: DocumentProblem[] = tree.errors.map((error) => ({
+    message: firstLine(error.message),
+    range: lines.range(error.pos[0], error.pos[1]),
+  }));
+  if (problems.length > 0) return { problems };
+  let data: unknown;
+  try {
+    data = tree.toJS({ maxAliasCount: 1000 });
+  } catch (error) {
+    const message = error instanceof Error ? error.message : String(error);
+    return { problems: [{ message: firstLine(message), range: lines.range(0, 0) }] };
+  }
+  const eol = /\r\n/.test(text) ? '\r\n' : '\n';
+  return { document: { path, text, format, data, tree, lines, eol }, problems: [] };
+}
+
+export interface LocatedNode {
+  node: Node;
+  /** The pair that holds the node when it is a map value (its key gives the range of the key). */
+  pair?: Pair;
+  /** Reached through an alias: editing it would change every place that uses the anchor. */
+  viaAlias: boolean;
+}
+
+function resolve(node: unknown, state: { viaAlias: boolean }, doc: Document.Parsed): unknown {
+  if (isAlias(node)) {
+    state.viaAlias = true;
+    return node.resolve(doc);
+  }
+  return node;
+}
+
+/** The node at a path of map keys and sequence indices. */
+export function nodeAt(document: DefinitionDocument, path: readonly PathSegment[]): LocatedNode | undefined {
+  const state = { viaAlias: false };
+  let current = resolve(document.tree.contents, state, document.tree);
+  let pair: Pair | undefined;
+  for (const segment of path) {
+    if (isMap(current)) {
+      pair = (current as YAMLMap).items.find((item) => keyText(item.key) === String(segment));
+      if (!pair) return undefined;
+      current = resolve(pair.value, state, document.tree);
+    } else if (isSeq(current) && typeof segment === 'number') {
+      pair = undefined;
+      current = resolve((current as YAMLSeq).items[segment], state, document.tree);
+    } else return undefined;
+  }
+  if (!current || typeof current !== 'object' || !('range' in current)) return undefined;
+  return { node: current as Node, pair, viaAlias: state.viaAlias };
+}
+
+export function keyText(key: unknown): string | undefined {
+  if (isScalar(key)) return String((key as Scalar).value);
+  return typeof key === 'string' ? key : undefined;
+}
+
+/** The range of a node's value (without trailing comments). */
+export function rangeOfNode(document: DefinitionDocument, node: Node): SourceRange {
+  const [start, valueEnd] = node.range ?? [0, 0];
+  return document.lines.range(start, valueEnd);
+}

@@ -1,0 +1,227 @@
+// Loads a mapping file: its syntax, its schema, its selectors and its assumed values, each problem
+// reported at its own line and column in the mapping file.
+import * as nodePath from 'node:path';
+import picomatch from 'picomatch';
+import type { core } from 'zod';
+type ZodIssue = core.$ZodIssue;
+import { driverProfile, type DriverGeneration, type HostPlatform } from '../core/profiles';
+import type { SourceRange } from '../core/results';
+import { checkClusterSize, checkRefcountBits, DEFAULT_CLUSTER, DEFAULT_REFCOUNT_BITS } from '../core/sizing';
+import { parseSize } from '../core/units';
+import { nodeAt, rangeOfNode, readDefinition, type DefinitionDocument } from './document';
+import { compileSelector, parseJsonPointer, toJsonPointer, type PathSegment, type Selector } from './jsonpath';
+import { DISK_FIELDS, MACHINE_FIELDS, mappingSchema, type DiskField, type MachineField, type MappingFile } from './mappingSchema';
+import type { Severity } from '../core/results';
+
+export const MAPPING_FILE_NAMES = ['diskwise.yaml', 'diskwise.yml', 'diskwise.json'] as const;
+export const DEFAULT_INCLUDE = ['**/*.yaml', '**/*.yml', '**/*.json'];
+const ALWAYS_EXCLUDED = ['**/node_modules/**', '**/.git/**'];
+
+export type AccessPattern = 'random' | 'sequential' | 'mixed';
+
+export interface Assumptions {
+  clusterSize: bigint;
+  format: string;
+  pattern: AccessPattern;
+  requestSize: bigint;
+  driver: DriverGeneration;
+  platform: HostPlatform;
+  refcountBits: bigint;
+}
+
+export interface IgnoreEntry {
+  rule: string;
+  pointer: string;
+  /** Absolute path of the definition file, or undefined for every file. */
+  file?: string;
+  reason: string;
+}
+
+export interface Mapping {
+  path: string;
+  dir: string;
+  file: MappingFile;
+  machines?: Selector;
+  disks: Selector;
+  machineFields: Partial<Record<MachineField, Selector>>;
+  diskFields: Partial<Record<DiskField, Selector>>;
+  assume: Assumptions;
+  profile: ReturnType<typeof driverProfile>;
+  cacheShareOfMemory: number;
+  severities: Record<string, Severity | 'off'>;
+  ignore: IgnoreEntry[];
+  /** Whether a definition file (absolute path) is one this mapping lints. */
+  includes(absolutePath: string): boolean;
+}
+
+export interface MappingProblem {
+  message: string;
+  pointer: string;
+  range: SourceRange;
+}
+
+export interface MappingLoad {
+  mapping?: Mapping;
+  problems: MappingProblem[];
+}
+
+function locate(doc: DefinitionDocument, path: readonly PathSegment[], key?: string): { pointer: string; range: SourceRange } {
+  // The deepest node that exists stands in for a missing one.
+  for (let depth = path.length; depth >= 0; depth--) {
+    const prefix = path.slice(0, depth);
+    const found = nodeAt(doc, prefix);
+    if (!found) continue;
+    if (key !== undefined && depth === path.length) {
+      const child = nodeAt(doc, [...prefix, key]);
+      const keyNode = child?.pair?.key;
+      if (keyNode && typeof keyNode === 'object' && 'range' in keyNode) {
+        return { pointer: toJsonPointer([...prefix, key]), range: rangeOfNode(doc, keyNode as never) };
+      }
+    }
+    const keyNode = found.pair?.key;
+    const anchor = depth < path.length && keyNode && typeof keyNode === 'object' && 'range' in keyNode ? (keyNode as never) : found.node;
+    const range = rangeOfNode(doc, anchor);
+    // A missing key is reported at the start of the map that lacks it, not across the whole map.
+    return { pointer: toJsonPointer(prefix), range: depth < path.length ? doc.lines.range(range.offset, range.offset + Math.min(range.length, 1)) : range };
+  }
+  return { pointer: '', range: doc.lines.range(0, 0) };
+}
+
+function describeIssue(issue: ZodIssue): string {
+  const where = issue.path.length ? `"${issue.path.join('.')}"` : 'the mapping file';
+  switch (issue.code) {
+    case 'unrecognized_keys':
+      return `unknown key${issue.keys.length > 1 ? 's' : ''} ${issue.keys.map((k) => `"${k}"`).join(', ')} in ${where}`;
+    case 'invalid_type':
+      return issue.message.includes('received undefined') || /required/i.test(issue.message)
+        ? `${where} is required`
+        : `${where}: ${issue.message.replace(/^Invalid input: /, '')}`;
+    default:
+      return `${where}: ${issue.message.replace(/^Invalid input: /, '')}`;
+  }
+}
+
+export function loadMapping(text: string, path: string, knownRuleIds: readonly string[] = []): MappingLoad {
+  const read = readDefinition(path, text);
+  if (!read.document) {
+    return { problems: read.problems.map((p) => ({ message: `mapping file: ${p.message}`, pointer: '', range: p.range })) };
+  }
+  const doc = read.document;
+  const problems: MappingProblem[] = [];
+  const parsed = mappingSchema.safeParse(doc.data ?? {});
+  if (!parsed.success) {
+    for (const issue of parsed.error.issues as unknown as ZodIssue[]) {
+      const path = issue.path as PathSegment[];
+      if (issue.code === 'unrecognized_keys') {
+        for (const key of issue.keys) problems.push({ message: describeIssue({ ...issue, keys: [key] }), ...locate(doc, path, key) });
+      } else {
+        problems.push({ message: describeIssue(issue), ...locate(doc, path) });
+      }
+    }
+    return { problems };
+  }
+  const file = parsed.data;
+  const at = (...path: PathSegment[]) => locate(doc, path);
+
+  const compile = (expression: string | undefined, path: PathSegment[]): Selector | undefined => {
+    if (expression === undefined) return undefined;
+    const compiled = compileSelector(expression);
+    if (compiled.ok) return compiled.value;
+    problems.push({ message: compiled.error, ...at(...path) });
+    return undefined;
+  };
+  const machines = compile(file.machines, ['machines']);
+  const disks = compile(file.disks, ['disks']);
+  const machineFields: Partial<Record<MachineField, Selector>> = {};
+  for (const field of MACHINE_FIELDS) {
+    const selector = compile(file.fields.machine?.[field], ['fields', 'machine', field]);
+    if (selector) machineFields[field] = selector;
+  }
+  const diskFields: Partial<Record<DiskField, Selector>> = {};
+  for (const field of DISK_FIELDS) {
+    const selector = compile(file.fields.disk[field], ['fields', 'disk', field]);
+    if (selector) diskFields[field] = selector;
+  }
+
+  const assumeSize = (key: 'clusterSize' | 'requestSize', fallback: bigint): bigint => {
+    const raw = file.assume?.[key];
+    if (raw === undefined) return fallback;
+    const size = parseSize(raw);
+    if (!size.ok) {
+      problems.push({ message: `assume.${key}: ${size.error}`, ...at('assume', key) });
+      return fallback;
+    }
+    if (key === 'clusterSize') {
+      const cluster = checkClusterSize(size.value);
+      if (!cluster.ok) problems.push({ message: `assume.clusterSize: ${cluster.error}`, ...at('assume', key) });
+      return cluster.ok ? cluster.value : fallback;
+    }
+    if (size.value === 0n) problems.push({ message: 'assume.requestSize: must be at least 1 byte', ...at('assume', key) });
+    return size.value === 0n ? fallback : size.value;
+  };
+  const clusterSize = assumeSize('clusterSize', DEFAULT_CLUSTER);
+  const requestSize = assumeSize('requestSize', 4096n);
+  let refcountBits = DEFAULT_REFCOUNT_BITS;
+  if (file.assume?.refcountBits !== undefined) {
+    const bits = checkRefcountBits(BigInt(file.assume.refcountBits));
+    if (bits.ok) refcountBits = bits.value;
+    else problems.push({ message: `assume.refcountBits: ${bits.error}`, ...at('assume', 'refcountBits') });
+  }
+
+  const known = new Set(knownRuleIds);
+  if (known.size > 0) {
+    for (const rule of Object.keys(file.rules ?? {})) {
+      if (!known.has(rule)) problems.push({ message: `rules: unknown rule id "${rule}"`, ...locate(doc, ['rules'], rule) });
+    }
+    (file.ignore ?? []).forEach((entry, i) => {
+      if (!known.has(entry.rule)) problems.push({ message: `ignore[${i}].rule: unknown rule id "${entry.rule}"`, ...at('ignore', i, 'rule') });
+    });
+  }
+  const dir = nodePath.dirname(nodePath.resolve(path));
+  (file.ignore ?? []).forEach((entry, i) => {
+    const pointer = parseJsonPointer(entry.pointer);
+    if (!pointer.ok) problems.push({ message: `ignore[${i}].pointer: ${pointer.error}`, ...at('ignore', i, 'pointer') });
+  });
+  if (problems.length > 0 || !disks) return { problems };
+
+  const include = picomatch(file.include ?? DEFAULT_INCLUDE, { dot: false });
+  const exclude = picomatch([...(file.exclude ?? []), ...ALWAYS_EXCLUDED], { dot: true });
+  const mappingPath = nodePath.resolve(path);
+  const generation = file.assume?.driver ?? 'current';
+  const platform = file.assume?.platform ?? 'linux';
+  const mapping: Mapping = {
+    path: mappingPath,
+    dir,
+    file,
+    machines,
+    disks,
+    machineFields,
+    diskFields,
+    assume: {
+      clusterSize,
+      format: file.assume?.format ?? 'qcow2',
+      pattern: file.assume?.pattern ?? 'mixed',
+      requestSize,
+      driver: generation,
+      platform,
+      refcountBits,
+    },
+    profile: driverProfile(generation, platform),
+    cacheShareOfMemory: file.budget?.cacheShareOfMemory ?? 0.05,
+    severities: file.rules ?? {},
+    ignore: (file.ignore ?? []).map((entry) => ({
+      rule: entry.rule,
+      pointer: entry.pointer,
+      file: entry.file === undefined ? undefined : nodePath.resolve(dir, entry.file),
+      reason: entry.reason,
+    })),
+    includes(absolutePath: string): boolean {
+      const resolved = nodePath.resolve(absolutePath);
+      if (resolved === mappingPath) return false;
+      const relative = nodePath.relative(dir, resolved).split(nodePath.sep).join('/');
+      if (relative.startsWith('../') || nodePath.isAbsolute(relative)) return false;
+      return include(relative) && !exclude(relative);
+    },
+  };
+  return { mapping, problems: [] };
+}

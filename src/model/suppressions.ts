@@ -1,0 +1,62 @@
+// Suppression comments in YAML: `# diskwise-accept RULE[, RULE...]: REASON` on the line above a disk
+// or machine (or at the end of its first line) silences those rules for it. A reason is required:
+// suppressions are reviewed exceptions, and the reason travels into JSON and SARIF output.
+import type { SourceRange } from '../core/results';
+import type { DefinitionDocument } from './document';
+
+export interface SuppressionComment {
+  rules: string[];
+  reason: string;
+  /** The comment's own place, for problems with it. */
+  range: SourceRange;
+  /** The 1-based line the suppression applies to. */
+  targetLine: number;
+}
+
+export interface SuppressionProblem {
+  message: string;
+  range: SourceRange;
+}
+
+const MARKER = /#\s*diskwise-accept\b(.*)$/;
+
+export function readSuppressions(document: DefinitionDocument, knownRules: ReadonlySet<string>): { comments: SuppressionComment[]; problems: SuppressionProblem[] } {
+  const comments: SuppressionComment[] = [];
+  const problems: SuppressionProblem[] = [];
+  if (document.format !== 'yaml' || !document.text.includes('diskwise-accept')) return { comments, problems };
+  const { lines } = document;
+  for (let line = 1; line <= lines.lineCount; line++) {
+    const text = lines.lineText(line);
+    const match = MARKER.exec(text);
+    if (!match) continue;
+    const start = lines.lineStart(line) + (match.index ?? 0);
+    const range = lines.range(start, lines.lineStart(line) + text.length);
+    const body = (match[1] ?? '').trim();
+    const colon = body.indexOf(':');
+    const ruleText = colon === -1 ? body : body.slice(0, colon);
+    const reason = colon === -1 ? '' : body.slice(colon + 1).trim();
+    const rules = ruleText.split(/[\s,]+/).filter(Boolean);
+    if (rules.length === 0) {
+      problems.push({ message: 'this suppression names no rule; write "# diskwise-accept RULE: REASON"', range });
+      continue;
+    }
+    const unknown = rules.filter((r) => !knownRules.has(r));
+    if (unknown.length > 0) {
+      problems.push({ message: `this suppression names unknown rule${unknown.length > 1 ? 's' : ''} ${unknown.join(', ')}`, range });
+      continue;
+    }
+    if (!reason) {
+      problems.push({ message: `this suppression of ${rules.join(', ')} gives no reason; write "# diskwise-accept ${rules.join(', ')}: REASON"`, range });
+      continue;
+    }
+    // A comment alone on its line applies to the next line with content; a trailing one to its own line.
+    const standalone = text.slice(0, match.index).trim() === '';
+    let target = line;
+    if (standalone) {
+      target = line + 1;
+      while (target <= lines.lineCount && /^\s*(#.*)?$/.test(lines.lineText(target))) target++;
+    }
+    comments.push({ rules, reason, range, targetLine: target });
+  }
+  return { comments, problems };
+}

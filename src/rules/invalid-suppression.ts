@@ -1,0 +1,10 @@
+import { docsPage, type Rule } from './types';
+
+/** Reported by the orchestrator for a suppression comment it cannot honour. */
+export const invalidSuppression: Rule = {
+  id: 'invalid-suppression',
+  severity: 'warning',
+  description: 'A suppression comment names no rule, an unknown rule, or gives no reason.',
+  fixable: false,
+  docs: docsPage('invalid-suppression'),
+};

@@ -1,0 +1,25 @@
+import { l2CoveredBytes, minimumRefcountCache } from '../core/sizing';
+import { share, size } from './format';
+import { docsPage, type Rule } from './types';
+
+export const l2CacheUndersized: Rule = {
+  id: 'l2-cache-undersized',
+  severity: 'warning',
+  description: 'The effective L2 cache maps less than the whole virtual disk, so random I/O pays extra metadata reads.',
+  fixable: true,
+  docs: docsPage('l2-cache-undersized'),
+  checkDisk({ disk, top, sizing, report, fix }) {
+    const { virtualSize, clusterSize, extendedL2 } = top.geometry;
+    if (l2CoveredBytes(top.l2, clusterSize, extendedL2, top.entrySize) >= virtualSize) return;
+    const need = sizing.recommended.l2Cache;
+    const where = top.l2Source === 'default' ? 'the driver default L2 cache' : top.l2Source === 'combined' ? 'the L2 share of the combined cache' : 'the L2 cache';
+    const message = `${where} of ${size(top.l2)} maps ${size(top.l2Covered)} of this ${size(virtualSize)} disk (${share(top.l2Covered, virtualSize)}); full coverage needs ${size(need)} (${size(need - top.l2)} more memory per open disk).`;
+    const { totalCache, l2Cache } = disk.values;
+    if (totalCache && !l2Cache) {
+      const total = need + (disk.values.refcountCache?.value ?? minimumRefcountCache(clusterSize));
+      report({ at: 'totalCache', message, fix: fix.setSize('totalCache', total, `Set the combined cache to ${size(total)}`) });
+      return;
+    }
+    report({ at: l2Cache ? 'l2Cache' : undefined, message, fix: fix.setSize('l2Cache', need, `Set the L2 cache to ${size(need)} (full coverage)`) });
+  },
+};

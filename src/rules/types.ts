@@ -1,0 +1,67 @@
+// What a rule is and what it is handed. A rule is plain data plus hooks: it reads located, typed
+// values and the disk's sizing, and reports findings whose fixes come from the helpers here. It never
+// parses, never touches the file system and never formats output.
+import type { DiskSizing, LayerCache } from '../core/cache';
+import type { DriverProfile } from '../core/profiles';
+import type { Fix, RelatedLocation, Severity } from '../core/results';
+import type { DiskSpec, DiskValues, Located, MachineSpec } from '../model/disks';
+import type { Assumptions, Mapping } from '../model/mapping';
+
+export interface RuleMeta {
+  id: string;
+  severity: Severity;
+  /** One line: what the rule catches. */
+  description: string;
+  fixable: boolean;
+  /** The rule's docs page, relative to the package root. */
+  docs: string;
+}
+
+export type SizeField = 'l2Cache' | 'refcountCache' | 'totalCache' | 'l2Slice';
+
+export interface FixHelpers {
+  /** Set a size field: replace the value where it is written, or insert the key where it is absent. */
+  setSize(field: SizeField, bytes: bigint, title: string): Fix | undefined;
+  setInterval(field: 'cleanupInterval', seconds: number, title: string): Fix | undefined;
+}
+
+export interface FindingInput {
+  message: string;
+  /** The value the finding is about; absent: the disk (or machine) itself. */
+  at?: keyof DiskValues | Located<unknown>;
+  fix?: Fix;
+  related?: RelatedLocation[];
+}
+
+export interface DiskCheck {
+  disk: DiskSpec;
+  sizing: DiskSizing;
+  /** The top layer's caches (sizing.layers[0]). */
+  top: LayerCache;
+  /** The request size and pattern after assumptions. */
+  requestSize: bigint;
+  pattern: Assumptions['pattern'];
+  profile: DriverProfile;
+  mapping: Mapping;
+  report(finding: FindingInput): void;
+  fix: FixHelpers;
+}
+
+export interface SizedDisk {
+  disk: DiskSpec;
+  sizing: DiskSizing;
+}
+
+export interface MachineCheck {
+  machine: MachineSpec;
+  disks: readonly SizedDisk[];
+  mapping: Mapping;
+  report(finding: FindingInput): void;
+}
+
+export interface Rule extends RuleMeta {
+  checkDisk?(check: DiskCheck): void;
+  checkMachine?(check: MachineCheck): void;
+}
+
+export const docsPage = (id: string): string => `docs/rules/${id}.md`;
