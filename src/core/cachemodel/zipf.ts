@@ -1,4 +1,4 @@
-// Zipf popularity over N cache entries as weighted nodes for che.ts. Up to EXACT_ZIPF_LIMIT entries
+// Zipf popularity over N cache entries as weighted nodes for characteristic-time.ts. Up to EXACT_ZIPF_LIMIT entries
 // every rank is its own node. Beyond that the head ranks stay exact and the tail sum over ranks
 // K+1..N is replaced by the integral over [K + 1/2, N + 1/2] (the midpoint rule read backwards; its
 // error is about f'(K)/24, negligible here), evaluated by Gauss-Legendre panels in log-rank, where the

@@ -1,9 +1,10 @@
-// Che's characteristic-time approximation [CHE] (Che, Tung, Wang, IEEE JSAC 20(7), 2002) against a
+// The characteristic-time approximation of LRU [CHE] ("Hierarchical Web caching systems: modeling,
+// design and experimental results", IEEE JSAC 20(7), 2002; full citation in FACTS.md) against a
 // deterministic LRU simulation (seeded mulberry32 generator, LRU written from its definition in
 // lru-simulation.ts). The issue's bar: agreement within 0.02 for Zipf s = 0.6, 0.8, 1.0 and a hot spot.
 import { strict as assert } from 'node:assert';
 import { modelCache, prepareCacheModel, type AccessPattern, type CacheModelGeometryInput } from '../../../src/core/cachemodel';
-import { characteristicTime, weightedItems } from '../../../src/core/cachemodel/che';
+import { characteristicTime, weightedItems } from '../../../src/core/cachemodel/characteristic-time';
 import { zipfItems } from '../../../src/core/cachemodel/zipf';
 import { fine, mulberry32, simulateLru, zipfSampler } from './lru-simulation';
 
@@ -30,11 +31,11 @@ function modelled(access: AccessPattern, capacity: number, workingSet: { offset:
   };
   const result = modelCache({ ...input, cacheBytes: BigInt(capacity) * 4n * KiB });
   if (!result.ok) assert.fail(result.problem.message);
-  assert.equal(result.value.method, 'che');
+  assert.equal(result.value.method, 'characteristic-time');
   return result.value.hitRatio;
 }
 
-describe('cachemodel: Che approximation vs LRU simulation [CHE]', function () {
+describe('cachemodel: characteristic-time approximation vs LRU simulation [CHE]', function () {
   this.timeout(20_000);
   const aligned = { offset: 0n, length: BigInt(ENTRIES) * BigInt(SPAN) };
 
@@ -76,7 +77,7 @@ describe('cachemodel: Che approximation vs LRU simulation [CHE]', function () {
 });
 
 describe('cachemodel: the numerical solution', () => {
-  it('the characteristic time solves sum(1 - exp(-q T)) = C to 1e-9 (Che equation, [CHE])', () => {
+  it('the characteristic time solves sum(1 - exp(-q T)) = C to 1e-9 (the [CHE] equation)', () => {
     const items = zipfItems(3000, 0.9);
     for (const capacity of [2, 10, 300, 1500, 2999]) {
       const t = characteristicTime(items, capacity);
@@ -104,7 +105,7 @@ describe('cachemodel: the numerical solution', () => {
   });
 });
 
-/** Che's hit ratio by plain bisection on the untransformed equation: a second, simple solver. */
+/** The [CHE] hit ratio by plain bisection on the untransformed equation: a second, simple solver. */
 function cheExact(items: ReturnType<typeof weightedItems>, capacity: number): number {
   const occupied = (t: number): number => {
     let sum = 0;

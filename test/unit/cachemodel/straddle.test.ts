@@ -51,8 +51,8 @@ describe('cachemodel: whole tables vs slices across a table boundary', () => {
 
   it('two slices (8 KiB): the partly covered end slices get half the weight; the simulation agrees within 0.02', () => {
     const sliced = report(4n * KiB, 8n * KiB);
-    assert.equal(sliced.method, 'che');
-    // Access shares 1/4, 1/2, 1/4 (bytes covered). Che [CHE]: with x = exp(-T/4), 2(1 - x) + (1 - x^2) = 2
+    assert.equal(sliced.method, 'characteristic-time');
+    // Access shares 1/4, 1/2, 1/4 (bytes covered). [CHE]: with x = exp(-T/4), 2(1 - x) + (1 - x^2) = 2
     // gives x = sqrt 2 - 1 and a hit ratio of (1 + x) / 2 = sqrt(1/2).
     assert.ok(Math.abs(sliced.hitRatio - Math.SQRT1_2) < 1e-9, String(sliced.hitRatio));
     const lru = simulated(32 * 1024 * 1024, 2, 13);

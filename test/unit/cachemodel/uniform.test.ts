@@ -1,5 +1,5 @@
-// Uniform random access: the independent reference model's textbook result [IRM] (Coffman & Denning,
-// Operating Systems Theory, 1973): N equally likely items and room for C gives a hit ratio of C/N.
+// Uniform random access: the independent reference model's textbook result [IRM] (FACTS.md
+// cites the operating-systems theory textbook it comes from): N equally likely items and room for C gives a hit ratio of C/N.
 // Entry counts come from the qcow2 table geometry [SPEC].
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
