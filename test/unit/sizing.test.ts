@@ -215,6 +215,11 @@ describe('sizing: first-write amplification (common practice)', () => {
     // a write of at least a subcluster fills only the subclusters it touches
     assert.equal(writeAmplification(4n * KiB, 64n * KiB, true).ratio, 1);
   });
+  it(`${COMMON} an uneven ratio is shown to two decimals (within 0.01 of bytes moved / request)`, () => {
+    const a = writeAmplification(3n, 512n, false);
+    assert.equal(a.bytesMoved, 512n);
+    assert.ok(Math.abs(a.ratio - 512 / 3) < 0.01, `${a.ratio}`);
+  });
   it(`${COMMON} property: bytes moved is the request rounded up to the unit; ratio c/w when w divides the unit`, () => {
     fc.assert(fc.property(extendedClusterArb, fc.boolean(), fc.integer({ min: 9, max: 21 }), (cluster, extended, requestBits) => {
       const request = 1n << BigInt(requestBits);
