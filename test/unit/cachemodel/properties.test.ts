@@ -70,6 +70,21 @@ describe('cachemodel: properties', () => {
     );
   });
 
+  it('a million Zipf entries: non-decreasing even one entry apart, along the whole curve', () => {
+    for (const exponent of [0.3, 0.8, 1.0, 2.5]) {
+      const prepared = prepareCacheModel({ virtualSize: 1_000_000n * 512n * 1024n * 1024n, clusterSize: 65536n, extendedL2: false, access: { kind: 'zipf', exponent } });
+      assert.ok(prepared.ok);
+      let previous = 0;
+      for (const point of prepared.value.curve(64).points) {
+        const c = point.capacityEntries;
+        const [here, next] = [prepared.value.hitRatioAt(c), prepared.value.hitRatioAt(c + 1)];
+        assert.ok(here >= previous - 1e-12 && next >= here - 1e-12, `s=${exponent} C=${c}: ${previous} ${here} ${next}`);
+        assert.ok(here >= 0 && next <= 1);
+        previous = here;
+      }
+    }
+  });
+
   it('a bad input is a problem naming the field, never an exception', () => {
     const result = prepareCacheModel({ virtualSize: 0n, clusterSize: 65536n, extendedL2: false, access: { kind: 'uniform' } });
     assert.ok(!result.ok);
