@@ -3,6 +3,9 @@
 import { strict as assert } from 'node:assert';
 import { execFile, execFileSync } from 'node:child_process';
 import * as path from 'node:path';
+import fc from 'fast-check';
+import { runSize } from '../../src/cli/size';
+import type { CommandIO } from '../../src/cli/io';
 import { CACHE, COMMON, CONTRACT, IEC, SPEC } from '../helpers/sources';
 
 const ROOT = path.resolve(__dirname, '..', '..');
@@ -245,5 +248,28 @@ describe('cli: diskwise size', function () {
       assert.match(run.stderr, /unknown command "sizes"/);
       assert.doesNotMatch(run.stderr + run.stdout, STACK_FRAME);
     });
+  });
+});
+
+describe('cli: diskwise size in process', () => {
+  it(`${CONTRACT} property: any argv gives exit 0 with output, or exit 2 with a message; never an exception`, () => {
+    const token = fc.oneof(
+      fc.constantFrom('--size', '--cluster-size', '--extended-l2', '--slice', '--refcount-bits', '--cache',
+        '--request-size', '--driver', '--platform', '--format', 'json', 'text', 'legacy', 'other', '--', '-', '--size='),
+      fc.constantFrom('20G', '0', '-1', '1.5', '64K', '4KB', '2M', '3000', '512', '16', '2048P', '1e3', ''),
+      fc.string({ maxLength: 6 }),
+    );
+    fc.assert(fc.property(fc.array(token, { maxLength: 8 }), (argv) => {
+      let stdout = '';
+      let stderr = '';
+      const io: CommandIO = { stdout: (t) => { stdout += t; }, stderr: (t) => { stderr += t; }, cwd: process.cwd(), stderrIsTTY: false };
+      const code = runSize(argv, io);
+      if (code === 0) assert.ok(stdout.length > 0 && stderr === '');
+      else {
+        assert.equal(code, 2);
+        assert.match(stderr, /^diskwise size: \S/);
+        assert.equal(stdout, '');
+      }
+    }), { numRuns: 300 });
   });
 });

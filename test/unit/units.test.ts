@@ -213,3 +213,18 @@ describe('units: formatSizeExact and sizeStyleOf', () => {
     assert.equal(valueOf(parseSize('2305843009213693953')), huge + 1n);
   });
 });
+
+describe('units: robustness', () => {
+  it('property: parseSize and parseInterval answer every input with a value or a message, never an exception', () => {
+    const anything = fc.oneof(fc.string(), fc.stringMatching(/^[-+]?\d{0,30}(\.\d{0,20})?\s?[A-Za-z]{0,4}$/), fc.anything());
+    fc.assert(fc.property(anything, (input) => {
+      for (const outcome of [parseSize(input), parseInterval(input)]) {
+        if (outcome.ok) continue;
+        assert.equal(typeof outcome.error, 'string');
+        assert.ok(outcome.error.length > 0);
+      }
+      const size = parseSize(input);
+      if (size.ok) assert.ok(size.value >= 0n, 'sizes are never negative');
+    }));
+  });
+});
