@@ -88,6 +88,7 @@ const OTHER_RUNS: string[][] = [
   ['size', '--size', '512G', '--cluster-size', '1M', '--format', 'json'], ['size', '--size', '2048P', '--format', 'json'],
   ['size', '--size', '1T', '--cluster-size', '2M'], ['size', '--size', '1T', '--cluster-size', '2M', '--extended-l2'],
   ['size', '--size', '20G', '--refcount-bits', '64'], ['size', '--size', '20G', '--platform', 'other'],
+  ['size', '--size', '20G', '--cache', '64M'],
 ];
 
 describe('cli: diskwise size', function () {
@@ -198,6 +199,10 @@ describe('cli: diskwise size', function () {
       const run = await diskwise('size', '--size', '20G', '--refcount-bits', '64');
       assert.equal(run.code, 0, run.stderr);
       assert.match(run.stdout, /^refcount cache +256 KiB +covers 2 GiB of host clusters at 64-bit refcounts/m);
+    });
+    it(`${CONTRACT} a configured cache above full coverage says it is capped`, async () => {
+      const run = await diskwise('size', '--size', '20G', '--cache', '64M');
+      assert.match(run.stdout, /^effective L2 +2\.5 MiB +configured, capped at full coverage; covers 20 GiB \(100\.0% of the disk\)/m);
     });
     it(`${CACHE} current/other: idle cleanup is off`, async () => {
       const run = await diskwise('size', '--size', '20G', '--platform', 'other');
