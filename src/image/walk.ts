@@ -51,7 +51,6 @@ export interface MetadataSummary {
 
 const L1_CHUNK_ENTRIES = 8192; // 64 KiB of L1 per read
 const READS_IN_FLIGHT = 4;
-const MAX_WARNINGS = 20;
 const TWO_32 = 4294967296;
 const DEFAULT_BUCKETS = 64;
 
@@ -95,9 +94,12 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
     allocation: { regionBytes: BigInt(clustersPerRegion) * header.clusterSize, data: [], zero: [] },
     warnings: [],
   };
-  const warn = (message: string): void => {
-    if (summary.warnings.length < MAX_WARNINGS) summary.warnings.push(message);
-    else if (summary.warnings.length === MAX_WARNINGS) summary.warnings.push('further warnings left out');
+  // Inconsistencies are counted per kind, so a damaged table gives a few lines, not thousands.
+  const oddities = new Map<string, { count: number; first: string }>();
+  const warn = (what: string, where: string): void => {
+    const seen = oddities.get(what);
+    if (seen) seen.count++;
+    else oddities.set(what, { count: 1, first: where });
   };
   let allocatedBytes = 0;
   let zeroBytes = 0;
@@ -135,7 +137,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
           throw new ImageError('malformed', `compressed data for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, outside the file (${fileSize} bytes)`);
         }
         if (extended && (view.getUint32(at + 8) !== 0 || view.getUint32(at + 12) !== 0)) {
-          warn(`compressed cluster at guest offset ${guestOffsetText(clusterIndex)} has a non-zero subcluster bitmap (reserved)`);
+          warn('compressed clusters with a non-zero subcluster bitmap (reserved)', `guest offset ${guestOffsetText(clusterIndex)}`);
         }
         summary.compressedClusters++;
         summary.dataClustersAllocated++;
@@ -148,7 +150,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
       const copied = (high & 0x80000000) !== 0;
       const hasHost = hostOffset !== 0 || (header.externalData && copied);
       if ((low & 0x1fe) !== 0 || (high & 0x3f000000) !== 0 || (!zeroFlagAllowed && (low & 1) !== 0)) {
-        warn(`L2 entry for guest offset ${guestOffsetText(clusterIndex)} has reserved bits set`);
+        warn('L2 entries with reserved bits set', `guest offset ${guestOffsetText(clusterIndex)}`);
       }
       if (hasHost && !header.externalData) {
         if (hostOffset % cluster !== 0) {
@@ -162,7 +164,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
       if (extended) {
         const zeroMask = view.getUint32(at + 8); // bits 32..63: subcluster reads as zeros
         const allocMask = view.getUint32(at + 12); // bits 0..31: subcluster allocated
-        if ((allocMask & zeroMask) !== 0) warn(`L2 entry for guest offset ${guestOffsetText(clusterIndex)} marks subclusters both allocated and zero`);
+        if ((allocMask & zeroMask) !== 0) warn('L2 entries marking subclusters both allocated and zero', `guest offset ${guestOffsetText(clusterIndex)}`);
         if (allocMask !== 0 && !hasHost) {
           throw new ImageError('malformed', `the L2 entry for guest offset ${guestOffsetText(clusterIndex)} marks subclusters allocated but has no host cluster`);
         }
@@ -232,7 +234,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
       const low = l1View.getUint32(i * 8 + 4);
       if (high === 0 && low === 0) continue;
       const l1Index = chunkStart + i;
-      if ((low & 0x1ff) !== 0 || (high & 0x7f000000) !== 0) warn(`L1 entry ${l1Index} has reserved bits set`);
+      if ((low & 0x1ff) !== 0 || (high & 0x7f000000) !== 0) warn('L1 entries with reserved bits set', `entry ${l1Index}`);
       const offset = (high & 0x00ffffff) * TWO_32 + ((low & 0xfffffe00) >>> 0);
       if (offset === 0) continue; // only the "copied" flag: no table
       checkTableOffset(offset, l1Index);
@@ -259,6 +261,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
   }
   if (l1Total === 0) report(0);
 
+  for (const [what, { count, first }] of oddities) summary.warnings.push(`${count} ${what}, the first at ${first}`);
   summary.allocatedBytes = BigInt(allocatedBytes);
   summary.zeroBytes = BigInt(zeroBytes);
   const regionLength = (r: number): number =>

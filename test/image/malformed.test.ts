@@ -106,6 +106,18 @@ describe('malformed images', function () {
     await expectError(damaged((b, i) => { b.writeBigUInt64BE(BigInt(i.l2Tables.get(0)!), i.l1Offset + 8); }), 'malformed', /L2 table of L1 entry 1 .* same place as the L2 table of L1 entry 0/);
   });
 
+  it('reserved bits are counted as warnings, not errors [SPEC: reserved, set to 0]', async () => {
+    const path = damaged((b, i) => {
+      const table = i.l2Tables.get(0)!;
+      b.writeBigUInt64BE(b.readBigUInt64BE(table) | 0x2n, table); // bit 1 of a standard descriptor
+      b.writeBigUInt64BE((1n << 57n) | 0x1n, table + 8 * 20); // bits 57 and 0 of an unallocated entry
+    });
+    const report = await inspectImage(path);
+    assert.equal(report.error, undefined);
+    assert.deepEqual(report.warnings, ['2 L2 entries with reserved bits set, the first at guest offset 0x0']);
+    assert.equal(report.zeroClusters, 1);
+  });
+
   it('a directory and a missing file', async () => {
     const dir = folder.file('dir.qcow2');
     mkdirSync(dir);

@@ -175,6 +175,7 @@ export function writeImage(path: string, spec: ImageSpec): WrittenImage {
       writes.push({ at: host!, bytes: payload });
     } else if (c.kind === 'zero') {
       if (extended) throw new Error('use zeroMask for zero subclusters with extended L2');
+      if (spec.version === 2) throw new Error('version 2 has no zero flag [SPEC]');
       table.setBigUint64(at, (host !== undefined ? BigInt(host) | (1n << 63n) : 0n) | 1n);
       truth.zeroClusters++;
     } else {
