@@ -37,14 +37,15 @@ export function weightedItems(nodes: ReadonlyArray<{ count: number; probability:
  * linear functions), so Newton's method started at T = 0 climbs monotonically to the root without
  * overshooting; a step-size test ends it.
  */
-export function characteristicTime(items: WeightedItems, capacity: number): number {
+export function characteristicTime(items: WeightedItems, capacity: number, start = 0): number {
   const { weights, probabilities, total } = items;
   const remaining = total - capacity;
   if (capacity <= 0) return 0;
   if (remaining <= 0) return Number.POSITIVE_INFINITY;
   const target = Math.log(remaining);
   const n = weights.length;
-  let t = 0;
+  // Any start left of the root keeps the monotone climb, e.g. the root for a smaller cache.
+  let t = Number.isFinite(start) && start > 0 ? start : 0;
   for (let iteration = 0; iteration < 200; iteration++) {
     let s0 = 0;
     let s1 = 0;
@@ -63,11 +64,25 @@ export function characteristicTime(items: WeightedItems, capacity: number): numb
   return t;
 }
 
+/**
+ * Carries the last solved characteristic time from one cache size to the next larger one: T grows
+ * with the cache, so the previous root is a valid start and the next solve takes a step or two.
+ */
+export interface WarmStart {
+  capacity: number;
+  time: number;
+}
+
 /** The characteristic-time approximation of the LRU hit ratio for a cache of `capacity` entries over `items`. */
-export function cheHitRatio(items: WeightedItems, capacity: number): number {
+export function cheHitRatio(items: WeightedItems, capacity: number, warm?: WarmStart): number {
   if (capacity >= items.total) return 1;
   if (capacity <= 0) return 0;
-  const t = characteristicTime(items, capacity);
+  const start = warm !== undefined && warm.capacity <= capacity ? warm.time : 0;
+  const t = characteristicTime(items, capacity, start);
+  if (warm !== undefined) {
+    warm.capacity = capacity;
+    warm.time = t;
+  }
   const { weights, probabilities } = items;
   let hit = 0;
   for (let i = 0; i < weights.length; i++) {

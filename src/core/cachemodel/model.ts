@@ -4,7 +4,7 @@
 // or a what-if drag only solves one small equation per cache size.
 
 import { checkAccessPattern, type AccessPattern } from './access';
-import { cheHitRatio, singleEntryHitRatio, weightedItems, type WeightedItems } from './characteristic-time';
+import { cheHitRatio, singleEntryHitRatio, weightedItems, type WarmStart, type WeightedItems } from './characteristic-time';
 import { estimateThroughput, resolveDevice, type DeviceClass, type DeviceLatency, type ThroughputEstimate } from './cost';
 import { checkWorkingSet, entryClasses, entryGeometry, entrySpan, type DensitySegment, type EntryGeometry, type WorkingSet } from './geometry';
 import { fail, ok, type ModelResult } from './result';
@@ -111,7 +111,8 @@ interface Evaluation {
   method: ModelMethod;
 }
 
-type Evaluator = (capacity: number) => Evaluation;
+/** `warm`, when given, carries the solver's last root along an ascending sweep of cache sizes. */
+type Evaluator = (capacity: number, warm?: WarmStart) => Evaluation;
 
 export function prepareCacheModel(input: CacheModelGeometryInput): ModelResult<PreparedCacheModel> {
   const geometryResult = entryGeometry(input.clusterSize, input.extendedL2, input.entrySize);
@@ -175,6 +176,7 @@ export function prepareCacheModel(input: CacheModelGeometryInput): ModelResult<P
     // the curve has exactly min(points, high - low + 1) distinct sizes ending at full coverage.
     const total = Math.min(count, high - low + 1);
     const capacities: number[] = [];
+    const warm: WarmStart = { capacity: 0, time: 0 };
     for (let k = 0; k < total; k++) {
       const spaced = total === 1 ? high : Math.round(Math.exp(Math.log(low) + ((Math.log(high) - Math.log(low)) * k) / (total - 1)));
       const previous = capacities.length === 0 ? low - 1 : (capacities[capacities.length - 1] as number);
@@ -186,7 +188,7 @@ export function prepareCacheModel(input: CacheModelGeometryInput): ModelResult<P
       entries,
       fullCoverageBytes,
       points: capacities.map((capacity) => {
-        const result = evaluate(capacity);
+        const result = evaluate(capacity, warm);
         return {
           cacheBytes: BigInt(capacity) * geometry.entrySize,
           capacityEntries: capacity,
@@ -232,20 +234,20 @@ function evaluator(access: AccessPattern, geometry: EntryGeometry, set: WorkingS
       const classes = entryClasses(geometry, segments);
       const items = weightedItems(classes);
       const equal = allEqual(items);
-      return (capacity) => {
+      return (capacity, warm) => {
         if (capacity >= items.total) return fullCoverage(randomLookups);
         if (equal) return fromHit(capacity / items.total, 'exact-uniform');
         if (capacity === 1) return fromHit(singleEntryHitRatio(items), 'exact-single-entry');
-        return fromHit(cheHitRatio(items, capacity), 'characteristic-time');
+        return fromHit(cheHitRatio(items, capacity, warm), 'characteristic-time');
       };
     }
     case 'zipf': {
       if (access.exponent === 0) return (capacity) => (capacity >= n ? fullCoverage(randomLookups) : fromHit(capacity / n, 'exact-uniform'));
       const items = zipfItems(n, access.exponent);
-      return (capacity) => {
+      return (capacity, warm) => {
         if (capacity >= n) return fullCoverage(randomLookups);
         if (capacity === 1) return fromHit(singleEntryHitRatio(items), 'exact-single-entry');
-        return fromHit(cheHitRatio(items, capacity), 'characteristic-time');
+        return fromHit(cheHitRatio(items, capacity, warm), 'characteristic-time');
       };
     }
   }

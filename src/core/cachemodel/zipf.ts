@@ -6,10 +6,10 @@
 
 import { weightedItems, type WeightedItems } from './characteristic-time';
 
-export const EXACT_ZIPF_LIMIT = 512;
-const HEAD_RANKS = 256;
+export const EXACT_ZIPF_LIMIT = 256;
+const HEAD_RANKS = 128;
 const GAUSS_ORDER = 8;
-const MAX_PANEL_WIDTH = 0.25; // in ln(rank)
+const MAX_PANEL_WIDTH = 0.5;
 
 interface GaussRule {
   nodes: number[];

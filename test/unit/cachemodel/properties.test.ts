@@ -80,6 +80,8 @@ describe('cachemodel: properties', () => {
         const [here, next] = [prepared.value.hitRatioAt(c), prepared.value.hitRatioAt(c + 1)];
         assert.ok(here >= previous - 1e-12 && next >= here - 1e-12, `s=${exponent} C=${c}: ${previous} ${here} ${next}`);
         assert.ok(here >= 0 && next <= 1);
+        // The curve's warm-started solves land on the same roots as a cold solve at that size.
+        assert.ok(Math.abs(point.hitRatio - here) <= 1e-9, `s=${exponent} C=${c}: curve ${point.hitRatio} vs ${here}`);
         previous = here;
       }
     }
