@@ -11,6 +11,8 @@ import { readSuppressions } from './model/suppressions';
 import { RULE_IDS, RULES, type Rule } from './rules';
 import type { DiskCheck, FindingInput, FixHelpers, SizedDisk, SizeField } from './rules/types';
 import type { SizeStyle } from './core/units';
+import type { ImageChainFacts, ImageLookup } from './model/images';
+import * as nodePath from 'node:path';
 
 export type { Finding, Fix, Severity, SourceRange } from './core/results';
 export type { Mapping, MappingProblem } from './model/mapping';
@@ -25,6 +27,8 @@ export interface SourceFile {
 export interface LintOptions {
   /** Severity per rule id, over the mapping file's `rules` (editor settings use this). */
   severities?: Record<string, Severity | 'off'>;
+  /** Facts of the image files definitions name, read by the caller; absent: images are not checked. */
+  images?: ImageLookup;
 }
 
 export interface DiskReport {
@@ -40,6 +44,8 @@ export interface DiskReport {
   extendedL2: boolean;
   requestSize: bigint;
   pattern: string;
+  /** The image file the definition names, and whether its layers came from the real files. */
+  image?: { path: string; read: boolean; layers: { path: string; format: string }[]; problem?: string };
 }
 
 export interface MachineReport {
@@ -82,8 +88,11 @@ class FileLint {
   private sizeStyle: SizeStyle | undefined;
   private readonly severities: Record<string, Severity | 'off'>;
 
+  readonly images: ImageLookup | undefined;
+
   constructor(readonly document: DefinitionDocument, readonly mapping: Mapping, options: LintOptions) {
     this.severities = { ...mapping.severities, ...options.severities };
+    this.images = options.images;
   }
 
   severityOf(rule: Rule): Severity | 'off' {
@@ -151,7 +160,8 @@ function settingsOf(disk: DiskSpec): CacheSettings {
  * its own values; one named only by path is taken to have the overlay's geometry (overlays are
  * usually created at their backing file's size) and the driver's default caches.
  */
-function chainOf(disk: DiskSpec, mapping: Mapping): LayerSpec[] | undefined {
+function chainOf(disk: DiskSpec, mapping: Mapping, image?: ImageChainFacts): LayerSpec[] | undefined {
+  if (image && image.problem?.layer !== 0 && image.layers[0]?.format === 'qcow2') return chainFromImage(disk, image);
   const chain: LayerSpec[] = [];
   let current: DiskSpec | undefined = disk;
   let inherited: bigint | undefined;
@@ -176,10 +186,30 @@ function chainOf(disk: DiskSpec, mapping: Mapping): LayerSpec[] | undefined {
   return chain;
 }
 
+/** The layers as the files are: each qcow2 layer's own geometry; the definition's settings where it gives them. */
+function chainFromImage(disk: DiskSpec, image: ImageChainFacts): LayerSpec[] | undefined {
+  const chain: LayerSpec[] = [];
+  let described: DiskSpec | undefined = disk;
+  for (const [index, layer] of image.layers.entries()) {
+    if (image.problem?.layer === index || layer.format !== 'qcow2') break;
+    if (layer.virtualSize === undefined || layer.clusterSize === undefined) break;
+    chain.push({
+      geometry: { virtualSize: layer.virtualSize, clusterSize: layer.clusterSize, extendedL2: layer.extendedL2 ?? false, refcountBits: layer.refcountBits ?? DEFAULT_REFCOUNT_BITS },
+      settings: described ? settingsOf(described) : {},
+    });
+    const backing: DiskSpec['backing'] = described?.backing;
+    described = backing && 'disk' in backing ? backing.disk : undefined;
+  }
+  return chain.length > 0 ? chain : undefined;
+}
+
 function lintDisk(lint: FileLint, disk: DiskSpec, machines: readonly MachineSpec[]): { sizing: DiskSizing; report: DiskReport } | undefined {
   const { mapping, document } = lint;
   const invalid = RULES.find((r) => r.id === 'invalid-value') as Rule;
-  const chain = chainOf(disk, mapping);
+  const written = disk.values.image;
+  const imagePath = written ? nodePath.resolve(nodePath.dirname(document.path), written.value) : undefined;
+  const facts = imagePath ? lint.images?.(imagePath) : undefined;
+  const chain = chainOf(disk, mapping, facts);
   if (!chain) {
     const sizeField = mapping.file.fields.disk.size;
     lint.add(invalid, {
@@ -212,6 +242,7 @@ function lintDisk(lint: FileLint, disk: DiskSpec, machines: readonly MachineSpec
       requestSize: disk.values.requestSize?.value ?? mapping.assume.requestSize,
       pattern: disk.values.pattern?.value ?? mapping.assume.pattern,
       profile: mapping.profile,
+      ...(written && imagePath && facts ? { image: { path: imagePath, written, facts, definitionDir: nodePath.dirname(document.path) } } : {}),
     };
     rule.checkDisk(check);
   }
@@ -234,6 +265,9 @@ function lintDisk(lint: FileLint, disk: DiskSpec, machines: readonly MachineSpec
       extendedL2: top.geometry.extendedL2,
       requestSize: disk.values.requestSize?.value ?? mapping.assume.requestSize,
       pattern: disk.values.pattern?.value ?? mapping.assume.pattern,
+      ...(imagePath
+        ? { image: { path: imagePath, read: facts !== undefined && facts.problem?.layer !== 0, layers: (facts?.layers ?? []).map((l) => ({ path: l.path, format: l.format })), ...(facts?.problem ? { problem: facts.problem.message } : {}) } }
+        : {}),
     },
   };
 }
@@ -271,10 +305,38 @@ function byPlace(a: Finding, b: Finding): number {
   return a.range.offset - b.range.offset || SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity] || (RULE_ORDER.get(a.rule) ?? 0) - (RULE_ORDER.get(b.rule) ?? 0);
 }
 
+/** A definition read and its disks extracted, before any rule runs. */
+export interface PreparedDocument {
+  file: SourceFile;
+  mapping: Mapping;
+  read: ReturnType<typeof readDefinition>;
+  extraction?: ReturnType<typeof extractMachines>;
+  /** Absolute paths of the image files the disks name: what a caller reads before linting. */
+  imagePaths: string[];
+}
+
+export function prepareDocument(file: SourceFile, mapping: Mapping): PreparedDocument {
+  const read = readDefinition(file.path, file.text);
+  if (!read.document) return { file, mapping, read, imagePaths: [] };
+  const extraction = extractMachines(read.document, mapping);
+  const dir = nodePath.dirname(file.path);
+  const imagePaths: string[] = [];
+  for (const machine of extraction.machines) {
+    for (const disk of machine.disks) {
+      if (disk.isQcow2 && disk.values.image) imagePaths.push(nodePath.resolve(dir, disk.values.image.value));
+    }
+  }
+  return { file, mapping, read, extraction, imagePaths };
+}
+
 /** Lints one definition file. Never throws for any text. */
 export function lintDocument(file: SourceFile, mapping: Mapping, options: LintOptions = {}): FileReport {
-  const read = readDefinition(file.path, file.text);
-  if (!read.document) {
+  return lintPrepared(prepareDocument(file, mapping), options);
+}
+
+export function lintPrepared(prepared: PreparedDocument, options: LintOptions = {}): FileReport {
+  const { file, mapping, read } = prepared;
+  if (!read.document || !prepared.extraction) {
     const rule = RULES.find((r) => r.id === 'parse-error') as Rule;
     return {
       path: file.path,
@@ -286,7 +348,7 @@ export function lintDocument(file: SourceFile, mapping: Mapping, options: LintOp
   }
   const document = read.document;
   const lint = new FileLint(document, mapping, options);
-  const { machines, problems } = extractMachines(document, mapping);
+  const { machines, problems } = prepared.extraction;
   const invalid = RULES.find((r) => r.id === 'invalid-value') as Rule;
   for (const problem of problems) lint.add(invalid, { message: `${problem.field}: ${problem.message}`, pointer: problem.pointer, range: problem.range });
 

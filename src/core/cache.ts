@@ -112,8 +112,10 @@ export function layerCache(geometry: LayerGeometry, settings: CacheSettings, pro
   // The driver allocates whole entries and never less than its minimum.
   l2 = maxOf(roundUp(maxOf(l2, 0n), entrySize), minL2);
   const l2Capped = l2 > usableL2;
+  // The legacy refcount default follows the L2 cache the driver asked for, before the cap.
+  const requestedL2 = l2;
   l2 = minOf(l2, usableL2);
-  refcount = maxOf(roundUp(maxOf(refcount ?? profile.defaultRefcountCache(l2, cluster), 0n), cluster), minRefcount);
+  refcount = maxOf(roundUp(maxOf(refcount ?? profile.defaultRefcountCache(requestedL2, cluster), 0n), cluster), minRefcount);
 
   const configuredCleanup = settings.cleanupInterval;
   return {

@@ -5,8 +5,8 @@ import { fail, ok, type Outcome } from './result';
 const KI = 1024n;
 /** Binary multipliers [IEC 80000-13]: K, Ki and KiB all mean 2^10, and so on up to P. */
 const BINARY: Record<string, bigint> = {};
-const DECIMAL: Record<string, bigint> = { kB: 1000n, MB: 1000n ** 2n, GB: 1000n ** 3n, TB: 1000n ** 4n, PB: 1000n ** 5n };
-const BINARY_LETTERS = ['K', 'M', 'G', 'T', 'P'] as const;
+const DECIMAL: Record<string, bigint> = { kB: 1000n, MB: 1000n ** 2n, GB: 1000n ** 3n, TB: 1000n ** 4n, PB: 1000n ** 5n, EB: 1000n ** 6n };
+const BINARY_LETTERS = ['K', 'M', 'G', 'T', 'P', 'E'] as const;
 BINARY_LETTERS.forEach((letter, i) => {
   const factor = KI ** BigInt(i + 1);
   BINARY[letter] = factor;
@@ -131,15 +131,15 @@ export function sizeStyleOf(written: unknown): SizeStyle | undefined {
   const unit = match[4] ?? '';
   const space = /\d\s+[A-Za-z]/.test(written);
   if (unit === '' || unit === 'B') return { kind: 'bytes', space: false };
-  if (/^[KMGTP]$/.test(unit)) return { kind: 'letter', space };
-  if (/^[KMGTP]i$/.test(unit)) return { kind: 'iec', space };
-  if (/^[KMGTP]iB$/.test(unit)) return { kind: 'iecB', space };
+  if (/^[KMGTPE]$/.test(unit)) return { kind: 'letter', space };
+  if (/^[KMGTPE]i$/.test(unit)) return { kind: 'iec', space };
+  if (/^[KMGTPE]iB$/.test(unit)) return { kind: 'iecB', space };
   return undefined; // decimal units: a binary value rarely fits them exactly, so fall back to the default
 }
 
 export function formatInterval(seconds: number): string {
   if (seconds === 0) return '0 (off)';
-  if (seconds % 3600 === 0) return `${seconds / 3600} h`;
-  if (seconds % 60 === 0) return `${seconds / 60} min`;
-  return `${seconds} s`;
+  if (seconds % 3600 === 0) return `${seconds / 3600}h`;
+  if (seconds % 60 === 0) return `${seconds / 60}m`;
+  return `${seconds}s`;
 }

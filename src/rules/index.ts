@@ -10,6 +10,9 @@ import { l2CacheUndersized } from './l2-cache-undersized';
 import { machineCacheBudget } from './machine-cache-budget';
 import { parseError } from './parse-error';
 import { sliceSizeSuggested } from './slice-size-suggested';
+import { backingChainCycle } from './backing-chain-cycle';
+import { imageMismatch } from './image-mismatch';
+import { imageUnreadable } from './image-unreadable';
 import type { Rule } from './types';
 
 export const RULES: readonly Rule[] = [
@@ -23,6 +26,9 @@ export const RULES: readonly Rule[] = [
   cleanupIntervalMissing,
   sliceSizeSuggested,
   machineCacheBudget,
+  imageMismatch,
+  imageUnreadable,
+  backingChainCycle,
   invalidSuppression,
 ];
 

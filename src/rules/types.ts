@@ -6,6 +6,7 @@ import type { DriverProfile } from '../core/profiles';
 import type { Fix, RelatedLocation, Severity } from '../core/results';
 import type { DiskSpec, DiskValues, Located, MachineSpec } from '../model/disks';
 import type { Assumptions, Mapping } from '../model/mapping';
+import type { ImageChainFacts } from '../model/images';
 
 export interface RuleMeta {
   id: string;
@@ -45,6 +46,8 @@ export interface DiskCheck {
   mapping: Mapping;
   report(finding: FindingInput): void;
   fix: FixHelpers;
+  /** The image file the disk names, when the caller read it. */
+  image?: { path: string; written: Located<string>; facts: ImageChainFacts; definitionDir: string };
 }
 
 export interface SizedDisk {

@@ -191,7 +191,7 @@ describe('cli: diskwise size', function () {
         assert.match(run.stdout, new RegExp(`^${label} +${value.replace('.', '\\.')}\\s`, 'm'), `row ${label}: ${value}`);
       }
       assert.match(run.stdout, /21474836480 bytes/);
-      assert.match(run.stdout, /idle cleanup +10 min/); // current/linux: 600 s [CACHE]
+      assert.match(run.stdout, /idle cleanup +10m/); // current/linux: 600 s [CACHE]
       // [CACHE] worked example: 256 KiB of refcount cache at 16-bit refcounts covers 8 GiB
       assert.match(run.stdout, /^refcount cache +256 KiB +covers 8 GiB of host clusters at 16-bit refcounts/m);
     });
