@@ -4,7 +4,9 @@ import * as esbuild from 'esbuild';
 import { existsSync } from 'node:fs';
 
 const watch = process.argv.includes('--watch');
-const common = { bundle: true, sourcemap: true, logLevel: 'warning', target: 'es2022' };
+// --release: minified, no source maps (what the .vsix ships; see scripts/vscode-package.mjs).
+const release = process.argv.includes('--release');
+const common = { bundle: true, sourcemap: !release, minify: release, logLevel: 'warning', target: 'es2022' };
 const targets = [
   { ...common, entryPoints: ['src/cli/main.ts'], outfile: 'dist/cli.js', platform: 'node', format: 'cjs',
     banner: { js: '#!/usr/bin/env node' } },

@@ -1,12 +1,212 @@
-// The VS Code adapter's entry point: wires the editor to the linter, nothing more.
+// The VS Code adapter's entry point: wires the editor to the linter and presents its results.
+// Everything here adapts; the sizing and the rules live in the engine.
+import * as path from 'node:path';
 import * as vscode from 'vscode';
+import { parse as parseYaml } from 'yaml';
+import type { SourceRange } from '../core/results';
+import { CAUTIONS } from '../core/cautions';
+import { DiskwiseCodeActions, fixAllInDocument } from './codeActions';
+import { toRange, workspaceEdit } from './edits';
+import { Linting, type LintResult, type Timings } from './linting';
+import { SizingPanel } from './panel';
+import { panelView } from './panelView';
+import { CacheStatus } from './statusBar';
+import { proposeMapping } from './starterProposal';
+import { whatIfEdit } from './whatIfEdits';
+import type { WhatIfValues } from '../../webview/protocol';
 
-export function activate(context: vscode.ExtensionContext): void {
+/** What the extension exports: read by the integration tests, useful to other extensions. */
+export interface DiskwiseApi {
+  timings(): Timings & { panelUpdateMs?: number; panelRenderMs?: number };
+  result(uri: vscode.Uri): LintResult | undefined;
+  panelShows(): string | undefined;
+  /** Resolves when the panel has drawn the view for the current state of this document. */
+  refreshPanel(uri: vscode.Uri): Promise<number>;
+  statusText(): string;
+  /** Resolves once mapping files are loaded and the open definitions are linted. */
+  ready: Promise<void>;
+}
+
+const DEFINITION_SELECTOR: vscode.DocumentSelector = [
+  { language: 'yaml', scheme: 'file' }, { language: 'json', scheme: 'file' }, { language: 'jsonc', scheme: 'file' },
+];
+
+export function activate(context: vscode.ExtensionContext): DiskwiseApi {
+  const timings: Timings = { activatedAt: Date.now() };
+  const linting = new Linting(context.extensionUri, timings);
+  const status = new CacheStatus();
+  let panelUpdateMs: number | undefined;
+  let lastDefinition: vscode.Uri | undefined;
+
+  const reveal = async (uri: vscode.Uri, range: SourceRange): Promise<void> => {
+    const document = await vscode.workspace.openTextDocument(uri);
+    const visible = vscode.window.visibleTextEditors.find((e) => e.document.uri.toString() === uri.toString());
+    const editor = await vscode.window.showTextDocument(document, { viewColumn: visible?.viewColumn ?? vscode.ViewColumn.One, preserveFocus: false });
+    const at = toRange(range);
+    editor.selection = new vscode.Selection(at.start, at.end);
+    editor.revealRange(at, vscode.TextEditorRevealType.InCenterIfOutsideViewport);
+  };
+
+  const applyWhatIf = async (uri: vscode.Uri, _version: number, pointer: string, values: WhatIfValues): Promise<{ ok: boolean; message: string }> => {
+    const document = await vscode.workspace.openTextDocument(uri);
+    const result = linting.fresh(document);
+    if (!result) return { ok: false, message: 'This file is not one the mapping file includes.' };
+    const outcome = whatIfEdit(uri.fsPath, document.getText(), result.mapping, pointer, values);
+    if (!outcome.ok) return { ok: false, message: outcome.message };
+    const applied = await vscode.workspace.applyEdit(workspaceEdit(document, [outcome.edit]));
+    return applied
+      ? { ok: true, message: `Wrote ${outcome.fields.join(', ')} into the definition (not saved). ${CAUTIONS.reopen}` }
+      : { ok: false, message: 'The editor refused the edit; the file may have changed.' };
+  };
+
+  // Forward reference: the panel's ready handler draws the current file.
+  let updatePanel: (uri?: vscode.Uri) => Promise<number> = async () => 0;
+  const panel = new SizingPanel(context.extensionUri, {
+    reveal: (uri, range) => void reveal(uri, range),
+    apply: applyWhatIf,
+    ready: () => void updatePanel(),
+  });
+
+  updatePanel = async (uri?: vscode.Uri): Promise<number> => {
+    if (!panel.visible) return 0;
+    const target = uri ?? lastDefinition;
+    if (!target) return panel.empty('Open a definition file that the mapping file includes to see its disks here.');
+    const document = vscode.workspace.textDocuments.find((d) => d.uri.toString() === target.toString());
+    const result = document ? linting.fresh(document) : linting.result(target);
+    if (!result) return panel.empty(`${path.basename(target.fsPath)} is not included by a mapping file (diskwise.yaml), so it has no disks to show.`);
+    return panel.show(panelView(result.uri.toString(), result.version ?? 0, result.report, result.mapping));
+  };
+
+  const followEditor = (editor: vscode.TextEditor | undefined): void => {
+    const document = editor?.document;
+    const included = document !== undefined && linting.isDefinition(document);
+    void vscode.commands.executeCommand('setContext', 'diskwise.activeFileIncluded', included);
+    if (!document || !included) {
+      // A panel or an output view is focused, or another file: keep showing the last definition.
+      if (document && document.uri.scheme === 'file' && !included) status.show(undefined);
+      return;
+    }
+    lastDefinition = document.uri;
+    status.show(linting.fresh(document));
+    void updatePanel(document.uri);
+  };
+
+  const activeDocument = (): vscode.TextDocument | undefined => {
+    const editor = vscode.window.activeTextEditor;
+    if (editor) return editor.document;
+    return lastDefinition ? vscode.workspace.textDocuments.find((d) => d.uri.toString() === lastDefinition?.toString()) : undefined;
+  };
+
   context.subscriptions.push(
-    vscode.commands.registerCommand('diskwise.lintWorkspace', () => {
-      void vscode.window.showInformationMessage('diskwise: lint started');
+    linting,
+    status,
+    panel,
+    vscode.languages.registerCodeActionsProvider(DEFINITION_SELECTOR, new DiskwiseCodeActions(linting), {
+      providedCodeActionKinds: DiskwiseCodeActions.kinds,
     }),
+    linting.onDidLint((result) => {
+      const active = vscode.window.activeTextEditor?.document.uri.toString();
+      if (result.uri.toString() === active) status.show(result);
+      if (panel.visible && panel.shownUri === result.uri.toString()) {
+        const started = Date.now();
+        void panel.show(panelView(result.uri.toString(), result.version ?? 0, result.report, result.mapping)).then(() => {
+          panelUpdateMs = Date.now() - started + (timings.lastLintMs ?? 0);
+        });
+      }
+    }),
+    linting.onDidReloadMappings(() => followEditor(vscode.window.activeTextEditor)),
+    vscode.window.onDidChangeActiveTextEditor(followEditor),
+    vscode.window.onDidChangeTextEditorSelection((event) => {
+      if (!panel.visible || panel.shownUri !== event.textEditor.document.uri.toString()) return;
+      const result = linting.result(event.textEditor.document.uri);
+      const offset = event.textEditor.document.offsetAt(event.selections[0]?.active ?? new vscode.Position(0, 0));
+      const disk = result?.report.disks.find((d) => offset >= d.range.offset && offset <= d.range.offset + d.range.length);
+      if (disk) panel.focusDisk(disk.pointer);
+    }),
+
+    vscode.commands.registerCommand('diskwise.showSizingPanel', async () => {
+      const document = activeDocument();
+      if (document && linting.isDefinition(document)) lastDefinition = document.uri;
+      panel.open(true);
+      return updatePanel();
+    }),
+    vscode.commands.registerCommand('diskwise.lintWorkspace', async () => {
+      await linting.reloadMappings();
+      const summary = await linting.lintWorkspace(true);
+      if (linting.mappings.all().length === 0) {
+        void vscode.window.showWarningMessage('diskwise: no mapping file (diskwise.yaml or diskwise.json) at the root of a workspace folder. Create one with "diskwise: Create a starter mapping file from this definition".');
+      } else {
+        void vscode.window.setStatusBarMessage(`diskwise: ${summary.files} definition${summary.files === 1 ? '' : 's'} linted, ${summary.findings} finding${summary.findings === 1 ? '' : 's'}`, 5000);
+      }
+      return summary;
+    }),
+    vscode.commands.registerCommand('diskwise.fixAllInFile', async () => {
+      const document = activeDocument();
+      if (!document || !linting.isDefinition(document)) {
+        void vscode.window.showInformationMessage('diskwise: the active file is not a definition the mapping file includes.');
+        return 0;
+      }
+      const applied = await fixAllInDocument(linting, document);
+      void vscode.window.setStatusBarMessage(`diskwise: applied ${applied} fix${applied === 1 ? '' : 'es'} (not saved)`, 5000);
+      return applied;
+    }),
+    vscode.commands.registerCommand('diskwise.createStarterMapping', (options?: { confirm?: boolean }) =>
+      createStarterMapping(linting, activeDocument(), options?.confirm !== false)),
   );
+
+  const ready = linting.start().then(() => followEditor(vscode.window.activeTextEditor));
+
+  return {
+    timings: () => ({ ...timings, panelUpdateMs, panelRenderMs: panel.lastRender?.ms }),
+    result: (uri) => linting.result(uri),
+    panelShows: () => panel.shownUri,
+    refreshPanel: (uri) => updatePanel(uri),
+    statusText: () => status.text,
+    ready,
+  };
+}
+
+async function createStarterMapping(linting: Linting, document: vscode.TextDocument | undefined, confirm: boolean): Promise<vscode.Uri | undefined> {
+  if (!document || !['yaml', 'json', 'jsonc'].includes(document.languageId)) {
+    void vscode.window.showInformationMessage('diskwise: open a YAML or JSON VM definition first; the starter mapping is proposed from it.');
+    return undefined;
+  }
+  const folder = vscode.workspace.getWorkspaceFolder(document.uri);
+  if (!folder) {
+    void vscode.window.showInformationMessage('diskwise: the definition must be inside a workspace folder, where the mapping file will be written.');
+    return undefined;
+  }
+  let data: unknown;
+  try {
+    data = parseYaml(document.getText());
+  } catch (error) {
+    void vscode.window.showErrorMessage(`diskwise: ${path.basename(document.uri.fsPath)} cannot be read: ${error instanceof Error ? error.message.split('\n')[0] : String(error)}`);
+    return undefined;
+  }
+  const relative = path.relative(folder.uri.fsPath, document.uri.fsPath).split(path.sep).join('/');
+  const proposal = proposeMapping(data, relative);
+  if (!proposal) {
+    void vscode.window.showWarningMessage('diskwise: no list of disk-like objects (with size, cluster or cache keys) found in this file; write the mapping file by hand.');
+    return undefined;
+  }
+  const target = vscode.Uri.joinPath(folder.uri, 'diskwise.yaml');
+  if (linting.mappings.all().some((s) => s.folder.uri.toString() === folder.uri.toString())) {
+    void vscode.window.showWarningMessage(`diskwise: ${folder.name} already has a mapping file; it was left as it is.`);
+    return undefined;
+  }
+  if (confirm) {
+    const choice = await vscode.window.showInformationMessage(
+      `Write diskwise.yaml with these selectors? ${proposal.summary}`,
+      { modal: true, detail: proposal.text },
+      'Write diskwise.yaml',
+    );
+    if (choice !== 'Write diskwise.yaml') return undefined;
+  }
+  await vscode.workspace.fs.writeFile(target, new TextEncoder().encode(proposal.text));
+  await linting.reloadMappings();
+  void linting.lintWorkspace(false);
+  await vscode.window.showTextDocument(target, { viewColumn: vscode.ViewColumn.Beside, preview: false });
+  return target;
 }
 
 export function deactivate(): void {

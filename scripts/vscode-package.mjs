@@ -1,0 +1,31 @@
+// npm run package: builds the release bundles and packs the extension into diskwise-VERSION.vsix.
+// vsce runs with no standard input (it would stop to ask about a missing LICENSE or repository).
+import { execFileSync } from 'node:child_process';
+import { existsSync, readFileSync, statSync } from 'node:fs';
+
+const manifest = JSON.parse(readFileSync('package.json', 'utf8'));
+const out = `${manifest.name}-${manifest.version}.vsix`;
+try {
+  execFileSync(process.execPath, ['scripts/build.mjs', '--release'], { stdio: 'inherit' });
+} catch {
+  console.error('package: the build failed (its message is above)');
+  process.exit(1);
+}
+for (const needed of ['dist/extension.js', 'dist/webview.js', 'schema/diskwise.schema.json']) {
+  if (!existsSync(needed)) {
+    console.error(`package: ${needed} is missing`);
+    process.exit(1);
+  }
+}
+// Relative links in README.md stay relative: the docs ship inside the package.
+const args = ['package', '--no-dependencies', '--no-rewrite-relative-links', '--out', out];
+if (!existsSync('LICENSE') && !existsSync('LICENSE.md')) args.push('--skip-license');
+if (!manifest.repository) args.push('--allow-missing-repository');
+try {
+  execFileSync(process.execPath, ['node_modules/@vscode/vsce/vsce', ...args], { stdio: ['ignore', 'inherit', 'inherit'] });
+} catch {
+  console.error('package: vsce failed (its message is above)');
+  process.exit(1);
+}
+const bytes = statSync(out).size;
+console.log(`package: ${out} ${(bytes / 1024).toFixed(1)} KiB (${bytes} bytes)`);

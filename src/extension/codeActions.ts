@@ -1,0 +1,74 @@
+// Quick fixes and "fix all" from the findings' own fix edits: the very edits the CLI's --fix applies.
+import * as vscode from 'vscode';
+import type { Finding, Fix } from '../lint';
+import { nonOverlapping } from '../model/edits';
+import { SOURCE, ruleOf } from './diagnostics';
+import { toRange, workspaceEdit } from './edits';
+import type { Linting } from './linting';
+
+export const FIX_ALL_KIND = vscode.CodeActionKind.SourceFixAll.append('diskwise');
+
+const sameRange = (a: vscode.Range, b: vscode.Range): boolean => a.isEqual(b);
+
+/** Fixes of every active finding that can be applied together in one pass. */
+export function fixAllEdits(findings: readonly Finding[]): { fixes: Fix[]; deferred: number } {
+  const fixes = findings.filter((f) => f.fix && !f.suppressed).map((f) => f.fix as Fix);
+  const { chosen, deferred } = nonOverlapping(fixes);
+  return { fixes: chosen, deferred: deferred.length };
+}
+
+export class DiskwiseCodeActions implements vscode.CodeActionProvider {
+  static readonly kinds = [vscode.CodeActionKind.QuickFix, FIX_ALL_KIND];
+
+  constructor(private readonly linting: Linting) {}
+
+  provideCodeActions(document: vscode.TextDocument, range: vscode.Range, context: vscode.CodeActionContext): vscode.CodeAction[] {
+    if (!this.linting.isDefinition(document)) return [];
+    const result = this.linting.fresh(document);
+    if (!result) return [];
+    const actions: vscode.CodeAction[] = [];
+    const wantsFixAll = context.only?.contains(FIX_ALL_KIND) || context.only?.intersects(FIX_ALL_KIND);
+    if (!context.only || context.only.intersects(vscode.CodeActionKind.QuickFix)) {
+      const ours = context.diagnostics.filter((d) => d.source === SOURCE);
+      for (const finding of result.report.findings) {
+        if (!finding.fix || finding.suppressed) continue;
+        const at = toRange(finding.range);
+        const diagnostic = ours.find((d) => ruleOf(d) === finding.rule && sameRange(d.range, at));
+        if (!diagnostic && !at.intersection(range)) continue;
+        const action = new vscode.CodeAction(finding.fix.title, vscode.CodeActionKind.QuickFix);
+        action.edit = workspaceEdit(document, finding.fix.edits);
+        if (diagnostic) action.diagnostics = [diagnostic];
+        action.isPreferred = true;
+        actions.push(action);
+      }
+    }
+    if (!context.only || wantsFixAll || context.only.contains(vscode.CodeActionKind.Source)) {
+      const { fixes } = fixAllEdits(result.report.findings);
+      if (fixes.length > 0) {
+        const action = new vscode.CodeAction(`diskwise: apply ${fixes.length} safe fix${fixes.length > 1 ? 'es' : ''} in this file`, FIX_ALL_KIND);
+        action.edit = workspaceEdit(document, fixes.flatMap((f) => f.edits));
+        actions.push(action);
+      }
+    }
+    return actions;
+  }
+}
+
+/**
+ * The "fix all" command: applies a pass of compatible fixes, re-lints, and repeats while fixes that
+ * overlapped an earlier one remain (a few passes at most). Returns how many fixes were applied.
+ */
+export async function fixAllInDocument(linting: Linting, document: vscode.TextDocument): Promise<number> {
+  let applied = 0;
+  for (let pass = 0; pass < 5; pass++) {
+    const result = linting.fresh(document);
+    if (!result) break;
+    const { fixes, deferred } = fixAllEdits(result.report.findings);
+    if (fixes.length === 0) break;
+    const ok = await vscode.workspace.applyEdit(workspaceEdit(document, fixes.flatMap((f) => f.edits)));
+    if (!ok) break;
+    applied += fixes.length;
+    if (deferred === 0) break;
+  }
+  return applied;
+}

@@ -1,0 +1,226 @@
+// Keeps every included definition's lint result current: open documents as the user types
+// (debounced), the rest of the workspace in the background and through a file watcher, and the
+// mapping files themselves, whose own problems show at their positions.
+import * as vscode from 'vscode';
+import { lintDocument, type FileReport, type Mapping } from '../lint';
+import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
+import { isMappingFileName, Mappings, readText } from './mappings';
+import { readSettings } from './settings';
+
+export interface LintResult {
+  uri: vscode.Uri;
+  /** The document version linted; undefined when linted from disk. */
+  version: number | undefined;
+  text: string;
+  report: FileReport;
+  mapping: Mapping;
+}
+
+export interface Timings {
+  activatedAt: number;
+  /** Milliseconds from activation to the first diagnostics published for a definition. */
+  firstDiagnosticsMs?: number;
+  /** Lint time of the most recent document lint. */
+  lastLintMs?: number;
+}
+
+const DEFINITION_LANGUAGES = new Set(['yaml', 'json', 'jsonc']);
+
+export class Linting implements vscode.Disposable {
+  readonly diagnostics = vscode.languages.createDiagnosticCollection('diskwise');
+  readonly mappings = new Mappings();
+  private readonly results = new Map<string, LintResult>();
+  private readonly timers = new Map<string, NodeJS.Timeout>();
+  private readonly emitter = new vscode.EventEmitter<LintResult>();
+  /** Fires after a definition was linted (from an editor or from disk). */
+  readonly onDidLint = this.emitter.event;
+  private readonly mappingEmitter = new vscode.EventEmitter<void>();
+  /** Fires after the mapping files were reloaded. */
+  readonly onDidReloadMappings = this.mappingEmitter.event;
+  private readonly disposables: vscode.Disposable[] = [];
+
+  constructor(private readonly extensionUri: vscode.Uri, readonly timings: Timings) {}
+
+  private get enabled(): boolean {
+    return readSettings().enable;
+  }
+
+  /** Loads the mapping files, lints the open definitions, then the whole workspace in the background. */
+  async start(): Promise<void> {
+    await this.reloadMappings();
+    this.disposables.push(
+      vscode.workspace.onDidChangeTextDocument((event) => this.schedule(event.document)),
+      vscode.workspace.onDidOpenTextDocument((document) => { if (this.isDefinition(document)) this.lintOpen(document); }),
+      vscode.workspace.onDidSaveTextDocument((document) => {
+        if (isMappingFileName(document.uri) || this.mappings.stateOfMappingFile(document.uri)) void this.mappingChanged(document.uri);
+      }),
+      vscode.workspace.onDidChangeConfiguration((event) => {
+        if (event.affectsConfiguration('diskwise')) void this.reloadMappings().then(() => this.lintWorkspace(false));
+      }),
+      vscode.workspace.onDidChangeWorkspaceFolders(() => void this.reloadMappings().then(() => this.lintWorkspace(false))),
+      this.watch(),
+    );
+    // What the user is looking at first, then everything else behind a progress notification.
+    for (const document of vscode.workspace.textDocuments) if (this.isDefinition(document)) this.lintOpen(document);
+    void this.lintWorkspace(true);
+  }
+
+  result(uri: vscode.Uri): LintResult | undefined {
+    return this.results.get(uri.toString());
+  }
+
+  /** The result for the document's current text, linting now if the stored one is stale. */
+  fresh(document: vscode.TextDocument): LintResult | undefined {
+    const stored = this.results.get(document.uri.toString());
+    if (stored && stored.version === document.version) return stored;
+    return this.lintOpen(document);
+  }
+
+  isDefinition(document: vscode.TextDocument): boolean {
+    return this.enabled && DEFINITION_LANGUAGES.has(document.languageId) && this.mappings.mappingFor(document.uri) !== undefined;
+  }
+
+  private schedule(document: vscode.TextDocument, delay = readSettings(document.uri).debounceMs): void {
+    if (!this.enabled || document.uri.scheme !== 'file') return;
+    const key = document.uri.toString();
+    const pending = this.timers.get(key);
+    if (pending) clearTimeout(pending);
+    const run = (): void => {
+      this.timers.delete(key);
+      if (this.mappings.stateOfMappingFile(document.uri) || isMappingFileName(document.uri)) {
+        void this.mappingChanged(document.uri, document.getText());
+      } else if (this.isDefinition(document)) {
+        this.lintOpen(document);
+      }
+    };
+    if (delay <= 0) run();
+    else this.timers.set(key, setTimeout(run, delay));
+  }
+
+  private lintOpen(document: vscode.TextDocument): LintResult | undefined {
+    const mapping = this.mappings.mappingFor(document.uri);
+    if (!mapping || !DEFINITION_LANGUAGES.has(document.languageId)) return undefined;
+    return this.lint(document.uri, document.getText(), document.version, mapping);
+  }
+
+  private lint(uri: vscode.Uri, text: string, version: number | undefined, mapping: Mapping): LintResult {
+    const started = Date.now();
+    const report = lintDocument({ path: uri.fsPath, text }, mapping, { severities: readSettings(uri).rules });
+    this.timings.lastLintMs = Date.now() - started;
+    const result: LintResult = { uri, version, text, report, mapping };
+    this.results.set(uri.toString(), result);
+    this.diagnostics.set(uri, fileDiagnostics(this.extensionUri, uri, report.findings));
+    if (this.timings.firstDiagnosticsMs === undefined) this.timings.firstDiagnosticsMs = Date.now() - this.timings.activatedAt;
+    this.emitter.fire(result);
+    return result;
+  }
+
+  private async lintFromDisk(uri: vscode.Uri): Promise<void> {
+    const open = vscode.workspace.textDocuments.find((d) => d.uri.toString() === uri.toString());
+    if (open) { this.lintOpen(open); return; }
+    const mapping = this.mappings.mappingFor(uri);
+    if (!mapping) return;
+    const text = await readText(uri);
+    if (text !== undefined) this.lint(uri, text, undefined, mapping);
+  }
+
+  async reloadMappings(): Promise<void> {
+    const states = await this.mappings.reloadAll();
+    for (const state of states) this.diagnostics.set(state.uri, mappingDiagnostics(state.problems));
+    // Results under a mapping that no longer includes them are dropped with their diagnostics.
+    for (const [key, result] of [...this.results]) {
+      if (!this.mappings.mappingFor(result.uri)) {
+        this.results.delete(key);
+        this.diagnostics.delete(result.uri);
+      }
+    }
+    this.mappingEmitter.fire();
+  }
+
+  private async mappingChanged(uri: vscode.Uri, text?: string): Promise<void> {
+    const known = this.mappings.stateOfMappingFile(uri);
+    if (!known) {
+      // A new mapping file at a folder's root: take it up.
+      await this.reloadMappings();
+      await this.lintWorkspace(false);
+      return;
+    }
+    const state = await this.mappings.reload(uri, text);
+    if (!state) return;
+    this.diagnostics.set(state.uri, mappingDiagnostics(state.problems));
+    if (!state.mapping) return; // keep the last good results while the mapping file is broken
+    this.mappingEmitter.fire();
+    await this.lintWorkspace(false);
+  }
+
+  /** Every file the mapping files include; with `progress`, behind a notification. */
+  async lintWorkspace(progress: boolean): Promise<{ files: number; findings: number }> {
+    if (!this.enabled) {
+      this.diagnostics.clear();
+      return { files: 0, findings: 0 };
+    }
+    const run = async (report?: vscode.Progress<{ message?: string; increment?: number }>): Promise<{ files: number; findings: number }> => {
+      const files = await this.includedFiles();
+      let findings = 0;
+      let done = 0;
+      for (const uri of files) {
+        await this.lintFromDisk(uri);
+        findings += this.results.get(uri.toString())?.report.findings.filter((f) => !f.suppressed).length ?? 0;
+        done++;
+        report?.report({ message: `${done} of ${files.length} definitions`, increment: 100 / Math.max(files.length, 1) });
+      }
+      return { files: files.length, findings };
+    };
+    if (!progress) return run();
+    return vscode.window.withProgress({ location: vscode.ProgressLocation.Notification, title: 'diskwise: linting definitions' }, run);
+  }
+
+  private async includedFiles(): Promise<vscode.Uri[]> {
+    const found = new Map<string, vscode.Uri>();
+    for (const state of this.mappings.all()) {
+      const mapping = state.mapping;
+      if (!mapping) continue;
+      const globs = mapping.file.include && mapping.file.include.length > 0 ? mapping.file.include : ['**/*.{yaml,yml,json}'];
+      for (const glob of globs) {
+        const uris = await vscode.workspace.findFiles(new vscode.RelativePattern(vscode.Uri.file(mapping.dir), glob), '**/node_modules/**');
+        for (const uri of uris) if (mapping.includes(uri.fsPath) && uri.fsPath !== state.uri.fsPath) found.set(uri.toString(), uri);
+      }
+    }
+    return [...found.values()].sort((a, b) => a.fsPath.localeCompare(b.fsPath));
+  }
+
+  private watch(): vscode.Disposable {
+    const watcher = vscode.workspace.createFileSystemWatcher('**/*.{yaml,yml,json}');
+    const changed = (uri: vscode.Uri): void => {
+      if (!this.enabled) return;
+      if (this.mappings.stateOfMappingFile(uri) || isMappingFileName(uri)) {
+        const open = vscode.workspace.textDocuments.find((d) => d.uri.toString() === uri.toString());
+        if (!open?.isDirty) void this.mappingChanged(uri);
+        return;
+      }
+      // Open documents follow their editor's text, not the disk.
+      if (vscode.workspace.textDocuments.some((d) => d.uri.toString() === uri.toString())) return;
+      if (this.mappings.mappingFor(uri)) void this.lintFromDisk(uri);
+    };
+    watcher.onDidChange(changed);
+    watcher.onDidCreate(changed);
+    watcher.onDidDelete((uri) => {
+      if (this.mappings.stateOfMappingFile(uri)) {
+        this.diagnostics.delete(uri);
+        void this.reloadMappings();
+        return;
+      }
+      this.results.delete(uri.toString());
+      this.diagnostics.delete(uri);
+    });
+    return watcher;
+  }
+
+  dispose(): void {
+    for (const timer of this.timers.values()) clearTimeout(timer);
+    for (const d of this.disposables) d.dispose();
+    this.diagnostics.dispose();
+    this.emitter.dispose();
+    this.mappingEmitter.dispose();
+  }
+}

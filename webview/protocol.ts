@@ -1,0 +1,133 @@
+// The one message protocol between the extension host and the sizing panel's webview. Both sides
+// import this module, so a message's shape cannot drift between them. It is pure: no DOM, no vscode.
+import type { SourceRange, Severity, SizingReport } from '../src/core/results';
+import type { LayerSpec } from '../src/core/cache';
+import type { DriverGeneration, HostPlatform } from '../src/core/profiles';
+
+export interface FindingView {
+  rule: string;
+  severity: Severity;
+  message: string;
+  pointer: string;
+  range: SourceRange;
+  suppressed?: string;
+  fixTitle?: string;
+}
+
+/** The values a definition writes for a disk's caches; absent means the driver's default. */
+export interface ConfiguredCache {
+  l2Cache?: bigint;
+  refcountCache?: bigint;
+  totalCache?: bigint;
+  l2Slice?: bigint;
+  cleanupInterval?: number;
+}
+
+export interface DiskView {
+  /** Stable within one file: the disk's JSON Pointer. */
+  pointer: string;
+  name: string;
+  machine: string;
+  range: SourceRange;
+  sizing: SizingReport;
+  /** The cache entry size in use: the slice, or the whole L2 table (one cluster). */
+  entrySize: bigint;
+  extendedL2: boolean;
+  configured: ConfiguredCache;
+  recommended: { l2Cache: bigint; cleanupInterval: number };
+  /** The layers as the engine sized them, top first: the what-if mode recomputes from these. */
+  chain: LayerSpec[];
+  findings: FindingView[];
+}
+
+export interface MachineView {
+  pointer: string;
+  name: string;
+  range: SourceRange;
+  memory?: bigint;
+  /** The share of memory the caches may take, in bytes; absent when the machine's memory is unknown. */
+  budget?: bigint;
+  cacheMemoryTotal: bigint;
+  disks: DiskView[];
+  findings: FindingView[];
+}
+
+export interface PanelView {
+  uri: string;
+  fileName: string;
+  version: number;
+  profile: { generation: DriverGeneration; platform: HostPlatform };
+  budgetShare?: number;
+  machines: MachineView[];
+  /** Findings not tied to a machine (syntax errors, mapping problems). */
+  fileFindings: FindingView[];
+  cautions: string[];
+}
+
+/** What the user tries in the what-if mode; each absent value keeps the definition's own. */
+export interface WhatIfValues {
+  clusterSize?: bigint;
+  l2Cache?: bigint;
+  l2Slice?: bigint;
+}
+
+export type HostMessage =
+  | { type: 'show'; seq: number; view: PanelView }
+  | { type: 'empty'; seq: number; reason: string }
+  | { type: 'focusDisk'; pointer: string }
+  | { type: 'applied'; ok: boolean; message: string };
+
+export type PanelMessage =
+  | { type: 'ready' }
+  | { type: 'rendered'; seq: number; disks: number }
+  | { type: 'reveal'; uri: string; range: SourceRange }
+  | { type: 'applyWhatIf'; uri: string; version: number; pointer: string; values: WhatIfValues };
+
+// The webview channel carries JSON, which has no bigint: byte counts travel as tagged strings and
+// come back as bigint on the other side, so neither side ever rounds a size through a float.
+const BIGINT_TAG = '$bigint';
+
+export function toWire(value: unknown): unknown {
+  if (typeof value === 'bigint') return { [BIGINT_TAG]: value.toString() };
+  if (Array.isArray(value)) return value.map(toWire);
+  if (value !== null && typeof value === 'object') {
+    const out: Record<string, unknown> = {};
+    for (const [key, member] of Object.entries(value)) if (member !== undefined) out[key] = toWire(member);
+    return out;
+  }
+  return value;
+}
+
+export function fromWire(value: unknown): unknown {
+  if (Array.isArray(value)) return value.map(fromWire);
+  if (value !== null && typeof value === 'object') {
+    const record = value as Record<string, unknown>;
+    const tagged = record[BIGINT_TAG];
+    if (typeof tagged === 'string' && Object.keys(record).length === 1 && /^-?\d+$/.test(tagged)) return BigInt(tagged);
+    const out: Record<string, unknown> = {};
+    for (const [key, member] of Object.entries(record)) out[key] = fromWire(member);
+    return out;
+  }
+  return value;
+}
+
+const HOST_TYPES = new Set<HostMessage['type']>(['show', 'empty', 'focusDisk', 'applied']);
+const PANEL_TYPES = new Set<PanelMessage['type']>(['ready', 'rendered', 'reveal', 'applyWhatIf']);
+
+function typeOf(value: unknown): unknown {
+  return value !== null && typeof value === 'object' ? (value as { type?: unknown }).type : undefined;
+}
+
+/** Decodes a message from the host; undefined for anything that is not one. */
+export function decodeHostMessage(raw: unknown): HostMessage | undefined {
+  const value = fromWire(raw);
+  return HOST_TYPES.has(typeOf(value) as HostMessage['type']) ? (value as HostMessage) : undefined;
+}
+
+/** Decodes a message from the panel; undefined for anything that is not one. */
+export function decodePanelMessage(raw: unknown): PanelMessage | undefined {
+  const value = fromWire(raw);
+  return PANEL_TYPES.has(typeOf(value) as PanelMessage['type']) ? (value as PanelMessage) : undefined;
+}
+
+export const encodeMessage = (message: HostMessage | PanelMessage): unknown => toWire(message);

@@ -1,0 +1,329 @@
+// Builds the sizing panel's DOM from a PanelView. Text goes in through textContent only, drawings are
+// SVG attributes (no inline styles: the content security policy allows none).
+import type { SizingReport } from '../src/core/results';
+import { formatInterval, formatSize, formatSizeExact, parseSize } from '../src/core/units';
+import type { DiskView, FindingView, MachineView, PanelView, WhatIfValues } from './protocol';
+import { CLUSTER_CHOICES, sliceChoices, whatIf, type WhatIfResult } from './whatif';
+
+export interface PanelActions {
+  reveal(finding: { range: FindingView['range'] }): void;
+  apply(disk: DiskView, values: WhatIfValues): void;
+  /** The what-if state changed: redraw. */
+  changed(): void;
+}
+
+/** Trial values per disk pointer; kept across updates so typing in the editor does not reset them. */
+export type WhatIfState = Map<string, WhatIfValues>;
+
+const SVG = 'http://www.w3.org/2000/svg';
+
+function el<K extends keyof HTMLElementTagNameMap>(tag: K, className?: string, text?: string): HTMLElementTagNameMap[K] {
+  const node = document.createElement(tag);
+  if (className) node.className = className;
+  if (text !== undefined) node.textContent = text;
+  return node;
+}
+
+function custom(tag: string, attrs: Record<string, string> = {}, text?: string): HTMLElement {
+  const node = document.createElement(tag);
+  for (const [key, value] of Object.entries(attrs)) node.setAttribute(key, value);
+  if (text !== undefined) node.textContent = text;
+  return node;
+}
+
+/** A horizontal bar: `share` of the track filled (0..1), drawn in SVG so it needs no style attribute. */
+function bar(share: number, kind: 'coverage' | 'budget', over = false): SVGSVGElement {
+  const svg = document.createElementNS(SVG, 'svg');
+  svg.setAttribute('class', `bar bar-${kind}${over ? ' bar-over' : ''}`);
+  svg.setAttribute('viewBox', '0 0 100 6');
+  svg.setAttribute('preserveAspectRatio', 'none');
+  svg.setAttribute('role', 'img');
+  const track = document.createElementNS(SVG, 'rect');
+  track.setAttribute('class', 'bar-track');
+  track.setAttribute('width', '100');
+  track.setAttribute('height', '6');
+  const fill = document.createElementNS(SVG, 'rect');
+  fill.setAttribute('class', 'bar-fill');
+  fill.setAttribute('width', String(Math.max(0, Math.min(1, share)) * 100));
+  fill.setAttribute('height', '6');
+  svg.append(track, fill);
+  return svg;
+}
+
+/** Percent with one decimal, rounded down so that a cache short of full coverage never shows 100 %. */
+export function percent(part: bigint, whole: bigint): string {
+  if (whole === 0n) return '—';
+  const tenths = (part * 1000n) / whole;
+  return `${`${tenths / 10n}.${tenths % 10n}`.replace(/\.0$/, '')} %`;
+}
+
+const ratio = (part: bigint, whole: bigint): number => (whole === 0n ? 0 : Number((part * 10000n) / whole) / 10000);
+
+interface Row {
+  field: string;
+  label: string;
+  value: bigint | number | string;
+  was?: bigint | number | string;
+  kind: 'size' | 'count' | 'text';
+  extra?: Node;
+  hint?: string;
+}
+
+function valueText(row: Pick<Row, 'kind'>, value: bigint | number | string): string {
+  if (row.kind === 'size' && typeof value === 'bigint') return formatSize(value);
+  return String(value);
+}
+
+function numbersTable(rows: Row[]): HTMLElement {
+  const table = el('table', 'numbers');
+  const body = el('tbody');
+  for (const row of rows) {
+    const tr = el('tr');
+    tr.dataset.field = row.field;
+    const th = el('th', undefined, row.label);
+    th.scope = 'row';
+    if (row.hint) th.title = row.hint;
+    const td = el('td', 'value');
+    td.dataset.field = row.field;
+    if (typeof row.value === 'bigint' || typeof row.value === 'number') td.dataset.value = row.value.toString();
+    const main = el('span', 'num', valueText(row, row.value));
+    if (typeof row.value === 'bigint') main.title = `${row.value.toString()} bytes`;
+    td.append(main);
+    if (row.was !== undefined && row.was !== row.value) {
+      td.classList.add('changed');
+      td.append(el('span', 'was', `was ${valueText(row, row.was)}`));
+    }
+    if (row.extra) td.append(row.extra);
+    tr.append(th, td);
+    body.append(tr);
+  }
+  table.append(body);
+  return table;
+}
+
+function findingList(findings: FindingView[], actions: PanelActions): HTMLElement {
+  const list = el('ul', 'findings');
+  for (const finding of findings) {
+    const item = el('li', `finding severity-${finding.severity}${finding.suppressed ? ' suppressed' : ''}`);
+    item.dataset.rule = finding.rule;
+    const tag = custom('vscode-tag', { class: 'rule' }, finding.rule);
+    const message = el('button', 'finding-message', finding.message);
+    message.type = 'button';
+    message.title = `${finding.severity} at line ${finding.range.line}, column ${finding.range.column}${finding.fixTitle ? ` — fix: ${finding.fixTitle}` : ''}`;
+    message.addEventListener('click', () => actions.reveal(finding));
+    item.append(el('span', 'severity', finding.severity), tag, message);
+    if (finding.suppressed) item.append(el('span', 'suppressed-reason', `accepted: ${finding.suppressed}`));
+    list.append(item);
+  }
+  return list;
+}
+
+function diskRows(disk: DiskView, sizing: SizingReport, entrySize: bigint, was?: { sizing: SizingReport; entrySize: bigint }, configuredL2?: bigint, wasConfiguredL2?: bigint): Row[] {
+  const covered = ratio(sizing.l2CoveredBytes, sizing.virtualSize);
+  const coverage = el('div', 'coverage');
+  coverage.append(bar(covered, 'coverage', covered < 1), el('span', 'coverage-of', `${formatSize(sizing.l2CoveredBytes)} of ${formatSize(sizing.virtualSize)}`));
+  const wholeTable = entrySize === sizing.clusterSize;
+  const l2Text = (value: bigint | undefined): string | bigint => value ?? 'driver default';
+  return [
+    { field: 'virtualSize', label: 'Virtual size', value: sizing.virtualSize, kind: 'size' },
+    { field: 'clusterSize', label: 'Cluster size', value: sizing.clusterSize, was: was?.sizing.clusterSize, kind: 'size' },
+    { field: 'l2EntryBytes', label: 'L2 entry', value: `${sizing.l2EntryBytes} B${disk.extendedL2 ? ' (extended L2)' : ''}`, kind: 'text' },
+    { field: 'entrySize', label: 'Cache entry', value: `${formatSize(entrySize)}${wholeTable ? ' (whole L2 table)' : ' (slice)'}`, was: was ? `${formatSize(was.entrySize)}` : undefined, kind: 'text' },
+    { field: 'l2FullCoverage', label: 'L2 cache for full coverage', value: sizing.l2FullCoverage, was: was?.sizing.l2FullCoverage, kind: 'size', hint: 'One 8-byte (16 with extended L2) entry per cluster of the virtual disk, in whole cache entries' },
+    { field: 'l2Configured', label: 'Configured L2 cache', value: l2Text(configuredL2), was: wasConfiguredL2 !== configuredL2 ? l2Text(wasConfiguredL2) : undefined, kind: configuredL2 === undefined ? 'text' : 'size' },
+    { field: 'l2Effective', label: 'Effective L2 cache', value: sizing.l2Effective, was: was?.sizing.l2Effective, kind: 'size', hint: 'What the driver really uses: configured, else its default, never above full coverage' },
+    { field: 'coverage', label: 'Share of the disk the cache maps', value: percent(sizing.l2CoveredBytes, sizing.virtualSize), was: was ? percent(was.sizing.l2CoveredBytes, was.sizing.virtualSize) : undefined, kind: 'text', extra: coverage },
+    { field: 'refcountEffective', label: 'Refcount cache', value: sizing.refcountEffective, was: was?.sizing.refcountEffective, kind: 'size' },
+    { field: 'layers', label: 'Layers (with backing files)', value: sizing.layers, kind: 'count' },
+    { field: 'cacheMemoryTotal', label: 'Cache memory, all layers', value: sizing.cacheMemoryTotal, was: was?.sizing.cacheMemoryTotal, kind: 'size' },
+  ];
+}
+
+function option(value: string, label: string, selected: boolean): HTMLElement {
+  const node = custom('vscode-option', { value }, label);
+  if (selected) node.setAttribute('selected', '');
+  return node;
+}
+
+function whatIfControls(disk: DiskView, values: WhatIfValues, result: WhatIfResult, state: WhatIfState, actions: PanelActions): HTMLElement {
+  const box = el('div', 'whatif');
+  const top = disk.chain[0];
+  const cluster = values.clusterSize ?? top?.geometry.clusterSize ?? disk.sizing.clusterSize;
+  const update = (next: WhatIfValues): void => { state.set(disk.pointer, next); actions.changed(); };
+
+  const clusterPick = custom('vscode-dropdown', { 'data-control': 'clusterSize', 'aria-label': 'Cluster size' });
+  for (const choice of CLUSTER_CHOICES) clusterPick.append(option(choice.toString(), formatSize(choice), choice === cluster));
+  clusterPick.addEventListener('change', () => {
+    const picked = BigInt((clusterPick as HTMLSelectElement).value);
+    const next: WhatIfValues = { ...values, clusterSize: picked };
+    if (next.l2Slice !== undefined && next.l2Slice > picked) next.l2Slice = picked;
+    update(next);
+  });
+
+  const currentSlice = 'l2Slice' in values ? values.l2Slice : top?.settings.entrySize;
+  const slicePick = custom('vscode-dropdown', { 'data-control': 'l2Slice', 'aria-label': 'Cache entry size' });
+  slicePick.append(option('table', 'whole L2 table', currentSlice === undefined));
+  for (const choice of sliceChoices(cluster)) slicePick.append(option(choice.toString(), formatSize(choice), choice === currentSlice));
+  slicePick.addEventListener('change', () => {
+    const raw = (slicePick as HTMLSelectElement).value;
+    update({ ...values, l2Slice: raw === 'table' ? undefined : BigInt(raw) });
+  });
+
+  const l2Shown = values.l2Cache ?? disk.configured.l2Cache;
+  const l2Field = custom('vscode-text-field', { 'data-control': 'l2Cache', placeholder: 'e.g. 2560K', value: l2Shown !== undefined ? formatSizeExact(l2Shown) : '' }, 'L2 cache');
+  const l2Error = el('span', 'field-error');
+  const readL2 = (): void => {
+    const text = ((l2Field as HTMLInputElement).value ?? '').trim();
+    if (text === '') { const next = { ...values }; delete next.l2Cache; update(next); return; }
+    const parsed = parseSize(text);
+    if (!parsed.ok) { l2Error.textContent = parsed.error; return; }
+    update({ ...values, l2Cache: parsed.value });
+  };
+  l2Field.addEventListener('change', readL2);
+  l2Field.addEventListener('keydown', (event) => { if ((event as KeyboardEvent).key === 'Enter') readL2(); });
+
+  const fullButton = custom('vscode-button', { appearance: 'secondary', 'data-action': 'full-coverage' }, 'Use full coverage');
+  fullButton.addEventListener('click', () => update({ ...values, l2Cache: result.recommended.l2Cache }));
+
+  const labelled = (label: string, control: HTMLElement): HTMLElement => {
+    const wrap = el('label', 'control');
+    wrap.append(el('span', 'control-label', label), control);
+    return wrap;
+  };
+  const controls = el('div', 'controls');
+  controls.append(labelled('Cluster size', clusterPick), labelled('Cache entry', slicePick), l2Field, fullButton);
+  box.append(controls, l2Error);
+  for (const problem of result.problems) box.append(el('p', 'problem', problem));
+
+  const actionsRow = el('div', 'actions');
+  const changedValues = pendingValues(disk, values);
+  const apply = custom('vscode-button', { 'data-action': 'apply' }, 'Apply to the definition');
+  if (Object.keys(changedValues).length === 0 || result.problems.length > 0) apply.setAttribute('disabled', '');
+  apply.addEventListener('click', () => actions.apply(disk, changedValues));
+  const reset = custom('vscode-button', { appearance: 'secondary', 'data-action': 'reset' }, 'Reset');
+  reset.addEventListener('click', () => { state.set(disk.pointer, {}); actions.changed(); });
+  actionsRow.append(apply, reset);
+  box.append(actionsRow);
+  if (changedValues.clusterSize !== undefined) {
+    box.append(el('p', 'caution', 'The cluster size is fixed when an image is created: the definition can say it, but the image must be converted into a new file to match. Back up first and verify the copy.'));
+  }
+  return box;
+}
+
+/** The trial values that differ from what the definition already says. */
+export function pendingValues(disk: DiskView, values: WhatIfValues): WhatIfValues {
+  const top = disk.chain[0];
+  const out: WhatIfValues = {};
+  if (values.clusterSize !== undefined && values.clusterSize !== top?.geometry.clusterSize) out.clusterSize = values.clusterSize;
+  if (values.l2Cache !== undefined && values.l2Cache !== disk.configured.l2Cache) out.l2Cache = values.l2Cache;
+  if ('l2Slice' in values && values.l2Slice !== disk.configured.l2Slice && values.l2Slice !== undefined) out.l2Slice = values.l2Slice;
+  return out;
+}
+
+interface DiskOutcome { card: HTMLElement; total: bigint }
+
+function diskCard(view: PanelView, disk: DiskView, state: WhatIfState, actions: PanelActions): DiskOutcome {
+  const card = el('article', 'disk');
+  card.dataset.pointer = disk.pointer;
+  card.dataset.disk = disk.name;
+  const head = el('header', 'disk-head');
+  const title = custom('vscode-link', { class: 'disk-name', title: 'Show this disk in the editor', href: '#' }, disk.name);
+  title.addEventListener('click', (event) => { event.preventDefault(); actions.reveal(disk); });
+  head.append(title);
+  const active = disk.findings.filter((f) => !f.suppressed);
+  if (active.length > 0) head.append(custom('vscode-badge', { class: 'finding-count', title: `${active.length} finding(s)` }, String(active.length)));
+  const toggle = custom('vscode-button', { appearance: 'icon', class: 'whatif-toggle', 'data-action': 'whatif', title: 'Try other values' }, 'What if…');
+  const open = state.has(disk.pointer);
+  toggle.addEventListener('click', () => {
+    if (state.has(disk.pointer)) state.delete(disk.pointer); else state.set(disk.pointer, {});
+    actions.changed();
+  });
+  head.append(toggle);
+  card.append(head);
+
+  let sizing = disk.sizing;
+  let entrySize = disk.entrySize;
+  let configuredL2 = disk.configured.l2Cache;
+  let result: WhatIfResult | undefined;
+  const values = state.get(disk.pointer);
+  if (values) {
+    result = whatIf(disk, view.profile, values);
+    if (result.problems.length === 0) {
+      sizing = result.sizing;
+      entrySize = result.entrySize;
+      if (values.l2Cache !== undefined) configuredL2 = values.l2Cache;
+    }
+    card.classList.add('trying');
+  }
+  const was = values && result && result.problems.length === 0 ? { sizing: disk.sizing, entrySize: disk.entrySize } : undefined;
+  card.append(numbersTable(diskRows(disk, sizing, entrySize, was, configuredL2, disk.configured.l2Cache)));
+  const cleanup = disk.configured.cleanupInterval;
+  card.append(el('p', 'cleanup', `Cleanup interval: ${cleanup === undefined ? `driver default` : formatInterval(cleanup)}; recommended L2 cache ${formatSize(disk.recommended.l2Cache)}`));
+  if (open && values && result) card.append(whatIfControls(disk, values, result, state, actions));
+  if (disk.findings.length > 0) card.append(findingList(disk.findings, actions));
+  return { card, total: sizing.cacheMemoryTotal };
+}
+
+function machineSection(view: PanelView, machine: MachineView, state: WhatIfState, actions: PanelActions): HTMLElement {
+  const section = el('section', 'machine');
+  section.dataset.machine = machine.name;
+  const head = el('header', 'machine-head');
+  const name = custom('vscode-link', { class: 'machine-name', href: '#', title: 'Show this machine in the editor' }, machine.name);
+  name.addEventListener('click', (event) => { event.preventDefault(); actions.reveal(machine); });
+  const h2 = el('h2');
+  h2.append(name);
+  head.append(h2);
+  if (machine.memory !== undefined) head.append(el('span', 'memory', `${formatSize(machine.memory)} RAM`));
+  section.append(head);
+
+  const cards = machine.disks.map((disk) => diskCard(view, disk, state, actions));
+  const total = cards.reduce((sum, c) => sum + c.total, 0n);
+  const budgetLine = el('div', 'budget');
+  budgetLine.dataset.field = 'machineCacheTotal';
+  budgetLine.dataset.value = total.toString();
+  const summary = el('span', 'budget-text');
+  if (machine.budget !== undefined) {
+    const over = total > machine.budget;
+    summary.textContent = `Cache memory ${formatSize(total)} of a ${formatSize(machine.budget)} budget (${percent(total, machine.budget)})`;
+    budgetLine.append(summary, bar(ratio(total, machine.budget), 'budget', over));
+    if (over) budgetLine.classList.add('over');
+  } else {
+    summary.textContent = `Cache memory ${formatSize(total)} (no memory known, so no budget)`;
+    budgetLine.append(summary);
+  }
+  if (total !== machine.cacheMemoryTotal) budgetLine.append(el('span', 'was', `was ${formatSize(machine.cacheMemoryTotal)}`));
+  section.append(budgetLine);
+  if (machine.findings.length > 0) section.append(findingList(machine.findings, actions));
+  for (const { card } of cards) section.append(card);
+  if (machine.disks.length === 0) section.append(el('p', 'none', 'No qcow2 disk found for this machine.'));
+  return section;
+}
+
+export function renderPanel(root: HTMLElement, view: PanelView, state: WhatIfState, actions: PanelActions): number {
+  const scroll = window.scrollY;
+  const content = el('main', 'panel');
+  const header = el('header', 'file-head');
+  header.append(el('h1', undefined, view.fileName));
+  const profileText = `${view.profile.generation} driver defaults, ${view.profile.platform === 'linux' ? 'Linux' : 'non-Linux'} host`;
+  header.append(el('span', 'profile', profileText));
+  content.append(header);
+  if (view.fileFindings.length > 0) content.append(findingList(view.fileFindings, actions));
+  let disks = 0;
+  for (const machine of view.machines) {
+    content.append(machineSection(view, machine, state, actions));
+    disks += machine.disks.length;
+  }
+  if (view.machines.length === 0) content.append(el('p', 'none', 'No machine found in this file with the mapping\'s selectors.'));
+  const notes = el('footer', 'cautions');
+  for (const caution of view.cautions) notes.append(el('p', undefined, caution));
+  content.append(custom('vscode-divider'), notes);
+  root.replaceChildren(content);
+  window.scrollTo(0, scroll);
+  return disks;
+}
+
+export function renderEmpty(root: HTMLElement, reason: string): void {
+  const content = el('main', 'panel empty');
+  content.append(el('p', 'none', reason));
+  root.replaceChildren(content);
+}
