@@ -1,5 +1,6 @@
 // The diskwise command: dispatches to lint, size and inspect. Whatever happens inside, a user sees a
 // message and an exit code, never a stack trace.
+import { runLint } from './lint';
 import { runSize } from './size';
 import { EXIT_USAGE, processIO, type CommandIO } from './io';
 
@@ -19,6 +20,8 @@ Run "diskwise <command> --help" for a command's options.
 export async function runCommand(argv: readonly string[], io: CommandIO): Promise<number> {
   const [command, ...rest] = argv;
   switch (command) {
+    case 'lint':
+      return runLint(rest, io, VERSION);
     case 'size':
       return runSize(rest, io);
     case '--version':

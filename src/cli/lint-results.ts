@@ -1,0 +1,83 @@
+// What one `diskwise lint` run produced, in the shape every output format reads: the files with
+// their reports, and the counts the summary line and the exit code are computed from.
+import * as nodePath from 'node:path';
+import type { FileReport, Finding, Mapping } from '../lint';
+
+export interface LintedFile {
+  /** Absolute path. */
+  path: string;
+  /** Absent when the file could not be read. */
+  report?: FileReport;
+  /** Why the file could not be read (or written back by --fix). */
+  error?: string;
+  /** Fixes --fix applied to this file. */
+  fixed: number;
+}
+
+export interface LintRun {
+  mapping: Mapping;
+  cwd: string;
+  files: LintedFile[];
+  /** --quiet: only errors are shown (counts and the exit code still see everything). */
+  quiet: boolean;
+  fix: boolean;
+  version: string;
+}
+
+export interface LintSummary {
+  files: number;
+  disks: number;
+  errors: number;
+  warnings: number;
+  infos: number;
+  suppressed: number;
+  /** Unsuppressed findings that carry a fix. */
+  fixable: number;
+  fixed: number;
+  /** Files that could not be read or written. */
+  failed: number;
+}
+
+export function summarize(run: LintRun): LintSummary {
+  const summary: LintSummary = { files: 0, disks: 0, errors: 0, warnings: 0, infos: 0, suppressed: 0, fixable: 0, fixed: 0, failed: 0 };
+  for (const file of run.files) {
+    summary.fixed += file.fixed;
+    if (file.error !== undefined) summary.failed++;
+    if (!file.report) continue;
+    summary.files++;
+    summary.disks += file.report.disks.length;
+    for (const finding of file.report.findings) {
+      if (finding.suppressed) {
+        summary.suppressed++;
+        continue;
+      }
+      if (finding.severity === 'error') summary.errors++;
+      else if (finding.severity === 'warning') summary.warnings++;
+      else summary.infos++;
+      if (finding.fix && finding.fix.edits.length > 0) summary.fixable++;
+    }
+  }
+  return summary;
+}
+
+/** The findings an output shows: everything, or under --quiet the unsuppressed errors only. */
+export function shownFindings(run: LintRun, report: FileReport): Finding[] {
+  return run.quiet ? report.findings.filter((f) => f.severity === 'error' && !f.suppressed) : report.findings;
+}
+
+/** A definition file's path relative to the mapping file's folder, with forward slashes. */
+export function mappingRelative(mapping: Mapping, absolutePath: string): string {
+  return nodePath.relative(mapping.dir, absolutePath).split(nodePath.sep).join('/');
+}
+
+/**
+ * Whether a suppression came from the mapping file's ignore list (rather than a comment in the
+ * definition): the engine records only the reason, so the CLI matches the list the same way.
+ */
+export function suppressedByMapping(mapping: Mapping, path: string, finding: Finding): boolean {
+  if (!finding.suppressed) return false;
+  const within = (pointer: string, scope: string) => scope === '' || pointer === scope || pointer.startsWith(`${scope}/`);
+  return mapping.ignore.some(
+    (entry) => entry.rule === finding.rule && entry.reason === finding.suppressed?.reason && (entry.file === undefined || entry.file === path) && within(finding.pointer, entry.pointer),
+  );
+}

@@ -1,0 +1,110 @@
+// `diskwise lint --format sarif`: one SARIF 2.1.0 log with one run. Locations are relative to the
+// mapping file's folder (a base id the log resolves itself), columns and character offsets are
+// UTF-16 code units, fixes carry the engine's own edits, and suppressed findings stay in the log
+// with their justification.
+import { pathToFileURL } from 'node:url';
+import { RULES, type Finding, type SourceRange } from '../lint';
+import type { Severity } from '../core/results';
+import { mappingRelative, shownFindings, suppressedByMapping, type LintRun } from './lint-results';
+
+/** The base id every artifact location is relative to: the mapping file's folder. */
+export const SARIF_BASE_ID = 'MAPPING_ROOT';
+
+const LEVEL: Record<Severity, 'error' | 'warning' | 'note'> = { error: 'error', warning: 'warning', info: 'note' };
+
+interface ArtifactLocation {
+  uri: string;
+  uriBaseId?: string;
+}
+
+function artifactLocation(run: LintRun, absolutePath: string): ArtifactLocation {
+  const relative = mappingRelative(run.mapping, absolutePath);
+  if (relative.startsWith('../') || relative === '..') return { uri: pathToFileURL(absolutePath).href };
+  return { uri: relative.split('/').map(encodeURIComponent).join('/'), uriBaseId: SARIF_BASE_ID };
+}
+
+function region(range: SourceRange) {
+  return {
+    startLine: range.line,
+    startColumn: range.column,
+    endLine: range.endLine,
+    endColumn: range.endColumn,
+    charOffset: range.offset,
+    charLength: range.length,
+  };
+}
+
+function location(artifact: ArtifactLocation, range: SourceRange, pointer: string, message?: string, id?: number) {
+  return {
+    id,
+    physicalLocation: { artifactLocation: artifact, region: region(range) },
+    logicalLocations: pointer === '' ? undefined : [{ fullyQualifiedName: pointer }],
+    message: message === undefined ? undefined : { text: message },
+  };
+}
+
+const RULE_INDEX = new Map(RULES.map((rule, index) => [rule.id, index]));
+
+function result(run: LintRun, path: string, finding: Finding) {
+  const artifact = artifactLocation(run, path);
+  return {
+    ruleId: finding.rule,
+    ruleIndex: RULE_INDEX.get(finding.rule),
+    level: LEVEL[finding.severity],
+    message: { text: finding.message },
+    locations: [location(artifact, finding.range, finding.pointer)],
+    relatedLocations: finding.related?.map((r, i) => location(artifact, r.range, r.pointer, r.message, i + 1)),
+    fixes:
+      finding.fix && finding.fix.edits.length > 0
+        ? [{
+            description: { text: finding.fix.title },
+            artifactChanges: [{
+              artifactLocation: artifact,
+              replacements: finding.fix.edits.map((edit) => ({
+                deletedRegion: { charOffset: edit.offset, charLength: edit.length },
+                insertedContent: { text: edit.text },
+              })),
+            }],
+          }]
+        : undefined,
+    suppressions: finding.suppressed
+      ? [{ kind: suppressedByMapping(run.mapping, path, finding) ? 'external' : 'inSource', status: 'accepted', justification: finding.suppressed.reason }]
+      : undefined,
+  };
+}
+
+export function renderSarif(run: LintRun): string {
+  const results = run.files.flatMap((file) => (file.report ? shownFindings(run, file.report).map((f) => result(run, file.path, f)) : []));
+  const notifications = run.files
+    .filter((file) => file.error !== undefined)
+    .map((file) => ({
+      level: 'error',
+      message: { text: file.error as string },
+      locations: [{ physicalLocation: { artifactLocation: artifactLocation(run, file.path) } }],
+    }));
+  const log = {
+    $schema: 'https://json.schemastore.org/sarif-2.1.0.json',
+    version: '2.1.0',
+    runs: [{
+      tool: {
+        driver: {
+          name: 'diskwise',
+          version: run.version,
+          semanticVersion: run.version,
+          rules: RULES.map((rule) => ({
+            id: rule.id,
+            shortDescription: { text: rule.description },
+            help: { text: `${rule.description} See ${rule.docs} in the diskwise package.`, markdown: `${rule.description} See [${rule.docs}](${rule.docs}).` },
+            defaultConfiguration: { level: LEVEL[rule.severity] },
+            properties: { fixable: rule.fixable },
+          })),
+        },
+      },
+      invocations: [{ executionSuccessful: notifications.length === 0, toolExecutionNotifications: notifications.length > 0 ? notifications : undefined }],
+      originalUriBaseIds: { [SARIF_BASE_ID]: { uri: pathToFileURL(run.mapping.dir.endsWith('/') ? run.mapping.dir : `${run.mapping.dir}/`).href } },
+      columnKind: 'utf16CodeUnits',
+      results,
+    }],
+  };
+  return `${JSON.stringify(log, null, 2)}\n`;
+}

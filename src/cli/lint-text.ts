@@ -1,0 +1,45 @@
+// `diskwise lint` for people: findings grouped by file, one line each that terminals and editors
+// turn into a link (`path:line:col`), a hint under each fixable one, and one closing summary.
+// Suppressed findings are not shown; the summary counts them.
+import type { Finding } from '../lint';
+import { displayPath } from './lint-discovery';
+import { shownFindings, summarize, type LintRun, type LintSummary } from './lint-results';
+
+const plural = (count: number, one: string, many = `${one}s`) => `${count} ${count === 1 ? one : many}`;
+
+function padEnd(text: string, width: number): string {
+  return text.length >= width ? text : text + ' '.repeat(width - text.length);
+}
+
+export function summaryLine(summary: LintSummary, run: Pick<LintRun, 'fix'>): string {
+  const checked = `Checked ${plural(summary.files, 'file')} with ${plural(summary.disks, 'qcow2 disk')}`;
+  const counts = [plural(summary.errors, 'error'), plural(summary.warnings, 'warning'), `${summary.infos} info`];
+  const extras: string[] = [];
+  if (summary.suppressed > 0) extras.push(`${summary.suppressed} accepted by a suppression`);
+  if (run.fix && summary.fixed > 0) extras.push(`${plural(summary.fixed, 'fix', 'fixes')} applied`);
+  if (summary.fixable > 0) extras.push(run.fix ? `${summary.fixable} fixable still open` : `${summary.fixable} fixable with --fix`);
+  if (summary.failed > 0) extras.push(`${plural(summary.failed, 'file')} could not be read`);
+  return `${checked}: ${counts.join(', ')}${extras.length > 0 ? ` (${extras.join('; ')})` : ''}.`;
+}
+
+export function renderText(run: LintRun): string {
+  const out: string[] = [];
+  for (const file of run.files) {
+    if (!file.report) continue;
+    const findings = shownFindings(run, file.report).filter((f) => !f.suppressed);
+    if (findings.length === 0) continue;
+    const path = displayPath(file.path, run.cwd);
+    const place = (f: Finding) => `${path}:${f.range.line}:${f.range.column}`;
+    const placeWidth = Math.max(...findings.map((f) => place(f).length));
+    const ruleWidth = Math.max(...findings.map((f) => f.rule.length));
+    if (out.length > 0) out.push('');
+    for (const finding of findings) {
+      out.push(`${padEnd(place(finding), placeWidth)}  ${padEnd(finding.severity, 7)}  ${padEnd(finding.rule, ruleWidth)}  ${finding.message}`);
+      for (const related of finding.related ?? []) out.push(`    see ${path}:${related.range.line}:${related.range.column}: ${related.message}`);
+      if (finding.fix && finding.fix.edits.length > 0) out.push(`    fix: ${finding.fix.title}`);
+    }
+  }
+  if (out.length > 0) out.push('');
+  out.push(summaryLine(summarize(run), run));
+  return `${out.join('\n')}\n`;
+}

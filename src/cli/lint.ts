@@ -1,0 +1,152 @@
+// `diskwise lint` (CONTRACTS.md §2): find the mapping file, pick the definition files, lint each
+// one (and fix it with --fix), print text, JSON or SARIF, and exit 0, 1 or 2 as the contract says.
+import * as fs from 'node:fs';
+import { lintDocument, type FileReport, type Mapping } from '../lint';
+import { lastOption, parseArgs, type OptionSpec } from './args';
+import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
+import { displayPath, ioMessage, resolveMapping, selectFiles, stripBom } from './lint-discovery';
+import { encodeLike, fixText, writeFileAtomic } from './lint-fix';
+import { renderJson } from './lint-json';
+import { startProgress } from './lint-progress';
+import { summarize, type LintedFile, type LintRun } from './lint-results';
+import { renderSarif } from './lint-sarif';
+import { renderText } from './lint-text';
+
+const OPTIONS: Record<string, OptionSpec> = {
+  config: { value: true },
+  format: { value: true },
+  fix: { value: false },
+  'max-warnings': { value: true },
+  quiet: { value: false },
+  help: { value: false },
+};
+
+const FORMATS = ['text', 'json', 'sarif'] as const;
+type LintFormat = (typeof FORMATS)[number];
+
+export const LINT_USAGE = `usage: diskwise lint [PATH...] [--config FILE] [--format text|json|sarif]
+                     [--fix] [--max-warnings N] [--quiet]
+
+  PATH            files or folders to check (default: every file the mapping file includes);
+                  a named file is always checked, a folder only for the files the mapping includes
+  --config        the mapping file (default: diskwise.yaml, diskwise.yml or diskwise.json in
+                  this folder or the nearest folder above it)
+  --format        text (default), json or sarif (SARIF 2.1.0)
+  --fix           apply every fix in place, changing nothing else in the files
+  --max-warnings  fail (exit 1) when more than N warnings remain
+  --quiet         show errors only (warnings still count toward --max-warnings)
+
+exit status: 0 no errors and warnings within --max-warnings; 1 errors, or too many warnings;
+             2 usage, mapping file or file read/write problems
+`;
+
+interface LintRequest {
+  paths: string[];
+  config?: string;
+  format: LintFormat;
+  fix: boolean;
+  maxWarnings?: number;
+  quiet: boolean;
+}
+
+function usageError(io: CommandIO, message: string): number {
+  io.stderr(`diskwise lint: ${message}\n\n${LINT_USAGE}`);
+  return EXIT_USAGE;
+}
+
+/** Reads one file, lints it and (with --fix) fixes it; never throws. */
+function lintFile(path: string, mapping: Mapping, request: LintRequest, notes: string[], cwd: string): LintedFile {
+  let bytes: Buffer;
+  try {
+    bytes = fs.readFileSync(path);
+  } catch (error) {
+    return { path, error: `cannot read: ${ioMessage(error)}`, fixed: 0 };
+  }
+  const decoded = bytes.toString('utf8');
+  const hadBom = decoded.charCodeAt(0) === 0xfeff;
+  // Offsets are counted without the byte order mark, as editors count them; --fix puts it back.
+  const text = stripBom(decoded);
+  let report: FileReport;
+  try {
+    report = lintDocument({ path, text }, mapping);
+  } catch (error) {
+    return { path, error: `internal error while linting: ${error instanceof Error ? error.message : String(error)}`, fixed: 0 };
+  }
+  if (!request.fix || !report.parsed || !report.findings.some((f) => f.fix && !f.suppressed)) return { path, report, fixed: 0 };
+  if (!encodeLike(text, hadBom).equals(bytes)) {
+    notes.push(`${displayPath(path, cwd)}: left unchanged by --fix: the file is not valid UTF-8, so writing it back would change bytes the fixes do not touch`);
+    return { path, report, fixed: 0 };
+  }
+  const outcome = fixText(path, text, mapping, report);
+  if (outcome.withheld) notes.push(`${displayPath(path, cwd)}: ${outcome.withheld}`);
+  if (outcome.applied === 0) return { path, report: outcome.report, fixed: 0 };
+  try {
+    writeFileAtomic(path, encodeLike(outcome.text, hadBom));
+  } catch (error) {
+    return { path, report, error: `cannot write the fixes: ${ioMessage(error)}`, fixed: 0 };
+  }
+  return { path, report: outcome.report, fixed: outcome.applied };
+}
+
+function readRequest(argv: readonly string[], io: CommandIO): LintRequest | number {
+  const parsed = parseArgs(argv, OPTIONS);
+  if (!parsed.ok) return usageError(io, parsed.error);
+  const args = parsed.value;
+  if (args.flags.has('help')) {
+    io.stdout(LINT_USAGE);
+    return EXIT_OK;
+  }
+  const format = lastOption(args, 'format') ?? 'text';
+  if (!(FORMATS as readonly string[]).includes(format)) return usageError(io, `--format must be text, json or sarif, not "${format}"`);
+  const maxRaw = lastOption(args, 'max-warnings');
+  let maxWarnings: number | undefined;
+  if (maxRaw !== undefined) {
+    if (!/^\d+$/.test(maxRaw) || !Number.isSafeInteger(Number(maxRaw))) return usageError(io, `--max-warnings needs a whole number of warnings (0 or more), not "${maxRaw}"`);
+    maxWarnings = Number(maxRaw);
+  }
+  return {
+    paths: args.positionals,
+    config: lastOption(args, 'config'),
+    format: format as LintFormat,
+    fix: args.flags.has('fix'),
+    maxWarnings,
+    quiet: args.flags.has('quiet'),
+  };
+}
+
+export async function runLint(argv: readonly string[], io: CommandIO, version: string): Promise<number> {
+  const request = readRequest(argv, io);
+  if (typeof request === 'number') return request;
+
+  const mapping = resolveMapping(io.cwd, request.config, request.paths);
+  if (!mapping.ok) {
+    io.stderr(`${mapping.error}\n`);
+    return EXIT_USAGE;
+  }
+  const selection = selectFiles(mapping.value, io.cwd, request.paths);
+  const notes: string[] = [];
+  const progress = startProgress(io, selection.files.length, request.fix ? 'fixing' : 'linting');
+  const files: LintedFile[] = [];
+  for (const path of selection.files) {
+    files.push(lintFile(path, mapping.value, request, notes, io.cwd));
+    progress.tick(files.length);
+  }
+  progress.done();
+
+  const run: LintRun = { mapping: mapping.value, cwd: io.cwd, files, quiet: request.quiet, fix: request.fix, version };
+  const render = request.format === 'json' ? renderJson : request.format === 'sarif' ? renderSarif : renderText;
+  io.stdout(render(run));
+
+  const problems = [...selection.errors];
+  for (const file of files) if (file.error !== undefined) problems.push(`${displayPath(file.path, io.cwd)}: ${file.error}`);
+  for (const folder of selection.empty) notes.push(`${folder}: the mapping file includes no definition files in this folder`);
+  const summary = summarize(run);
+  const tooManyWarnings = request.maxWarnings !== undefined && summary.warnings > request.maxWarnings;
+  if (tooManyWarnings) notes.push(`${summary.warnings} warnings, more than --max-warnings ${request.maxWarnings} allows`);
+  if (selection.files.length === 0 && request.paths.length === 0) notes.push(`the mapping file's include globs match no files below ${displayPath(mapping.value.dir, io.cwd)}`);
+  for (const line of [...problems, ...notes]) io.stderr(`${line}\n`);
+
+  if (problems.length > 0) return EXIT_USAGE;
+  if (summary.errors > 0 || tooManyWarnings) return EXIT_FINDINGS;
+  return EXIT_OK;
+}
