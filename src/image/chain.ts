@@ -30,8 +30,10 @@ export interface ChainOptions {
   /** Layers counted with the image itself; default 64. */
   maxDepth?: number;
   signal?: AbortSignal;
-  /** Only the image itself, no backing files. */
+  /** Follow backing files (default true). */
   followChain?: boolean;
+  /** Blocking positioned reads (default true); see FileSourceOptions.blocking. */
+  blockingReads?: boolean;
 }
 
 /** Called for each readable qcow2 layer while its file is open (the inspector walks it here). */
@@ -82,7 +84,7 @@ export async function visitChain(path: string, options: ChainOptions = {}, visit
         throw new ImageError('cycle', `the backing chain refers back to ${first?.path ?? real} (layer ${earlier + 1}): a cycle`);
       }
       seen.set(real, layers.length - 1);
-      const source = await FileByteSource.open(current.path);
+      const source = await FileByteSource.open(current.path, { blocking: options.blockingReads });
       try {
         if (current.format === null) layer.format = (await hasQcow2Magic(source)) ? 'qcow2' : 'raw';
         if (layer.format !== 'qcow2') {

@@ -2,7 +2,7 @@
  * qcow2 image reading for diskwise: read-only, over a small byte-source interface.
  *
  * Main entry points
- * - `inspectImage(path, { followChain?, walk?, signal?, onProgress?, buckets?, maxDepth? }): Promise<ImageReport>`
+ * - `inspectImage(path, { followChain?, walk?, signal?, onProgress?, buckets?, maxDepth?, blockingReads? }): Promise<ImageReport>`
  *   Header facts, the metadata walk (L2 tables, data/compressed/zero clusters, subclusters, an
  *   allocation map) and the backing chain (`report.chain`, nearest backing first). Never throws for a
  *   bad file: the failing layer carries `error` (a message naming the file) and `errorKind`.
@@ -23,7 +23,7 @@
  * Byte counts are bigint; counts of tables and clusters are numbers. Nothing here writes a file.
  */
 export { ImageError, toProblem, type ImageErrorKind, type ImageProblem } from './errors';
-export { FileByteSource, MemoryByteSource, type ByteSource } from './source';
+export { FileByteSource, MemoryByteSource, type ByteSource, type FileSourceOptions } from './source';
 export { readHeader, QCOW2_MAGIC, INCOMPATIBLE, EXTENSION, type Qcow2Header, type FeatureName, type FeatureKind } from './header';
 export { walkMetadata, type AllocationMap, type MetadataSummary, type WalkOptions, type WalkProgress } from './walk';
 export { readChain, chainProblem, resolveBackingPath, DEFAULT_MAX_CHAIN_DEPTH, type ChainLayer, type ChainOptions } from './chain';

@@ -49,7 +49,7 @@ export interface InspectProgress extends WalkProgress {
   path: string;
 }
 
-export interface InspectOptions extends Pick<ChainOptions, 'maxDepth' | 'signal'> {
+export interface InspectOptions extends Pick<ChainOptions, 'maxDepth' | 'signal' | 'blockingReads'> {
   /** Follow backing files (default true). */
   followChain?: boolean;
   /** Walk the L1/L2 tables (default true); off gives the header facts only. */
@@ -63,7 +63,7 @@ export interface InspectOptions extends Pick<ChainOptions, 'maxDepth' | 'signal'
 export async function inspectImage(path: string, options: InspectOptions = {}): Promise<ImageReport> {
   const summaries = new Map<number, MetadataSummary>();
   const walk = options.walk !== false;
-  const layers = await visitChain(path, { maxDepth: options.maxDepth, signal: options.signal, followChain: options.followChain }, async (layer, source, index) => {
+  const layers = await visitChain(path, { maxDepth: options.maxDepth, signal: options.signal, followChain: options.followChain, blockingReads: options.blockingReads }, async (layer, source, index) => {
     if (!walk || !layer.header) return;
     const onProgress = options.onProgress;
     summaries.set(

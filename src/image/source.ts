@@ -1,5 +1,6 @@
 // The reader sees an image only through positioned reads, so it runs the same over a file handle,
 // an in-memory buffer (tests, fuzzing) or anything an editor hands it. Nothing here can write.
+import { readSync } from 'node:fs';
 import { open, type FileHandle } from 'node:fs/promises';
 import { ImageError } from './errors';
 
@@ -16,20 +17,31 @@ export interface ByteSource {
   close?(): Promise<void>;
 }
 
+export interface FileSourceOptions {
+  /**
+   * Read with blocking positioned reads (default) rather than through the thread pool. One read is at
+   * most one cluster (2 MiB) and the walk yields to the event loop every few milliseconds, so the
+   * caller stays responsive; a thread-pool round trip per L2 table would cost more than the read.
+   * Pass false on file systems that can stall (network mounts) when blocking is not acceptable.
+   */
+  blocking?: boolean;
+}
+
 /** An image file opened read-only ('r'): the handle has no write access at all. */
 export class FileByteSource implements ByteSource {
   private constructor(
     private readonly handle: FileHandle,
     private readonly bytes: number,
+    private readonly blocking: boolean,
   ) {}
 
-  static async open(path: string): Promise<FileByteSource> {
+  static async open(path: string, options: FileSourceOptions = {}): Promise<FileByteSource> {
     const handle = await open(path, 'r');
     try {
       const stat = await handle.stat();
       if (stat.isDirectory()) throw new ImageError('unreadable', 'is a directory, not an image file');
       if (!stat.isFile()) throw new ImageError('unreadable', 'is not a regular file');
-      return new FileByteSource(handle, stat.size);
+      return new FileByteSource(handle, stat.size, options.blocking !== false);
     } catch (error) {
       await handle.close();
       throw error;
@@ -49,7 +61,9 @@ export class FileByteSource implements ByteSource {
   async readInto(offset: number, target: Uint8Array): Promise<number> {
     let done = 0;
     while (done < target.length) {
-      const { bytesRead } = await this.handle.read(target, done, target.length - done, offset + done);
+      const bytesRead = this.blocking
+        ? readSync(this.handle.fd, target, done, target.length - done, offset + done)
+        : (await this.handle.read(target, done, target.length - done, offset + done)).bytesRead;
       if (bytesRead === 0) break;
       done += bytesRead;
     }

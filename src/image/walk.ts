@@ -53,6 +53,7 @@ const L1_CHUNK_ENTRIES = 8192; // 64 KiB of L1 per read
 const READS_IN_FLIGHT = 4;
 const TWO_32 = 4294967296;
 const DEFAULT_BUCKETS = 64;
+const YIELD_EVERY_MS = 8;
 
 const hex = (n: number): string => `0x${n.toString(16)}`;
 
@@ -114,89 +115,99 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
 
   const countTable = (table: Uint8Array, l1Index: number): void => {
     const view = new DataView(table.buffer, table.byteOffset, cluster);
-    const words = new Uint32Array(table.buffer, table.byteOffset, cluster / 4);
+    const words = new Int32Array(table.buffer, table.byteOffset, cluster / 4);
     const firstCluster = l1Index * entriesPerTable;
     const entries = Math.min(entriesPerTable, totalClusters - firstCluster);
     const stride = entryBytes / 4;
-    for (let i = 0; i < entries; i++) {
-      const w = i * stride;
-      // Most entries of a sparse table are zero: test the raw words before decoding anything.
-      if (words[w] === 0 && words[w + 1] === 0 && (!extended || (words[w + 2] === 0 && words[w + 3] === 0))) continue;
-      const at = i * entryBytes;
-      const high = view.getUint32(at);
-      const low = view.getUint32(at + 4);
-      const clusterIndex = firstCluster + i;
-      const region = Math.floor(clusterIndex / clustersPerRegion);
-      const guestBytes = clusterIndex === totalClusters - 1 ? lastClusterBytes : cluster;
+    const limit = entries * stride;
+    // Most of a sparse table is zero: OR 16 raw words (8 standard or 4 extended entries) at a time
+    // and decode only the blocks that hold something.
+    let w = 0;
+    for (; w + 16 <= limit; w += 16) {
+      if ((words[w]! | words[w + 1]! | words[w + 2]! | words[w + 3]! | words[w + 4]! | words[w + 5]! | words[w + 6]! | words[w + 7]! |
+        words[w + 8]! | words[w + 9]! | words[w + 10]! | words[w + 11]! | words[w + 12]! | words[w + 13]! | words[w + 14]! | words[w + 15]!) === 0) continue;
+      for (let e = w; e < w + 16; e += stride) countEntry(view, words, e / stride, firstCluster);
+    }
+    for (; w < limit; w += stride) countEntry(view, words, w / stride, firstCluster);
+  };
 
-      if (high & 0x40000000) {
-        // [SPEC] compressed cluster descriptor, x = 62 - (cluster_bits - 8)
-        if (header.externalData) throw new ImageError('malformed', `compressed cluster at guest offset ${guestOffsetText(clusterIndex)} in an image with an external data file`);
-        const hostOffset = (high & compressedOffsetHighMask) * TWO_32 + low;
-        if (hostOffset === 0 || hostOffset >= fileSize) {
-          throw new ImageError('malformed', `compressed data for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, outside the file (${fileSize} bytes)`);
-        }
-        if (extended && (view.getUint32(at + 8) !== 0 || view.getUint32(at + 12) !== 0)) {
-          warn('compressed clusters with a non-zero subcluster bitmap (reserved)', `guest offset ${guestOffsetText(clusterIndex)}`);
-        }
-        summary.compressedClusters++;
-        summary.dataClustersAllocated++;
-        dataPerRegion[region] = (dataPerRegion[region] ?? 0) + guestBytes;
-        allocatedBytes += guestBytes;
-        continue;
-      }
+  const countEntry = (view: DataView, words: Int32Array, i: number, firstCluster: number): void => {
+    const w = i * (entryBytes / 4);
+    if (words[w] === 0 && words[w + 1] === 0 && (!extended || (words[w + 2] === 0 && words[w + 3] === 0))) return;
+    const at = i * entryBytes;
+    const high = view.getUint32(at);
+    const low = view.getUint32(at + 4);
+    const clusterIndex = firstCluster + i;
+    const region = Math.floor(clusterIndex / clustersPerRegion);
+    const guestBytes = clusterIndex === totalClusters - 1 ? lastClusterBytes : cluster;
 
-      const hostOffset = (high & 0x00ffffff) * TWO_32 + ((low & 0xfffffe00) >>> 0);
-      const copied = (high & 0x80000000) !== 0;
-      const hasHost = hostOffset !== 0 || (header.externalData && copied);
-      if ((low & 0x1fe) !== 0 || (high & 0x3f000000) !== 0 || (!zeroFlagAllowed && (low & 1) !== 0)) {
-        warn('L2 entries with reserved bits set', `guest offset ${guestOffsetText(clusterIndex)}`);
+    if (high & 0x40000000) {
+      // [SPEC] compressed cluster descriptor, x = 62 - (cluster_bits - 8)
+      if (header.externalData) throw new ImageError('malformed', `compressed cluster at guest offset ${guestOffsetText(clusterIndex)} in an image with an external data file`);
+      const hostOffset = (high & compressedOffsetHighMask) * TWO_32 + low;
+      if (hostOffset === 0 || hostOffset >= fileSize) {
+        throw new ImageError('malformed', `compressed data for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, outside the file (${fileSize} bytes)`);
       }
-      if (hasHost && !header.externalData) {
-        if (hostOffset % cluster !== 0) {
-          throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, not aligned to the ${cluster}-byte cluster size`);
-        }
-        if (hostOffset >= fileSize) {
-          throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, past the end of the file (${fileSize} bytes)`);
-        }
+      if (extended && (view.getUint32(at + 8) !== 0 || view.getUint32(at + 12) !== 0)) {
+        warn('compressed clusters with a non-zero subcluster bitmap (reserved)', `guest offset ${guestOffsetText(clusterIndex)}`);
       }
+      summary.compressedClusters++;
+      summary.dataClustersAllocated++;
+      dataPerRegion[region] = (dataPerRegion[region] ?? 0) + guestBytes;
+      allocatedBytes += guestBytes;
+      return;
+    }
 
-      if (extended) {
-        const zeroMask = view.getUint32(at + 8); // bits 32..63: subcluster reads as zeros
-        const allocMask = view.getUint32(at + 12); // bits 0..31: subcluster allocated
-        if ((allocMask & zeroMask) !== 0) warn('L2 entries marking subclusters both allocated and zero', `guest offset ${guestOffsetText(clusterIndex)}`);
-        if (allocMask !== 0 && !hasHost) {
-          throw new ImageError('malformed', `the L2 entry for guest offset ${guestOffsetText(clusterIndex)} marks subclusters allocated but has no host cluster`);
-        }
-        const allocated = popcount(allocMask);
-        const zeros = popcount(zeroMask & ~allocMask);
-        summary.subclustersAllocated += allocated;
-        summary.subclustersZero += zeros;
-        if (allocated > 0) {
-          summary.standardClusters++;
-          summary.dataClustersAllocated++;
-          const bytes = Math.min(allocated * subclusterBytes, guestBytes);
-          dataPerRegion[region] = (dataPerRegion[region] ?? 0) + bytes;
-          allocatedBytes += bytes;
-        }
-        if (zeros > 0) {
-          const bytes = Math.min(zeros * subclusterBytes, guestBytes);
-          zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + bytes;
-          zeroBytes += bytes;
-        }
-        continue;
+    const hostOffset = (high & 0x00ffffff) * TWO_32 + ((low & 0xfffffe00) >>> 0);
+    const copied = (high & 0x80000000) !== 0;
+    const hasHost = hostOffset !== 0 || (header.externalData && copied);
+    if ((low & 0x1fe) !== 0 || (high & 0x3f000000) !== 0 || (!zeroFlagAllowed && (low & 1) !== 0)) {
+      warn('L2 entries with reserved bits set', `guest offset ${guestOffsetText(clusterIndex)}`);
+    }
+    if (hasHost && !header.externalData) {
+      if (hostOffset % cluster !== 0) {
+        throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, not aligned to the ${cluster}-byte cluster size`);
       }
+      if (hostOffset >= fileSize) {
+        throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, past the end of the file (${fileSize} bytes)`);
+      }
+    }
 
-      if (zeroFlagAllowed && (low & 1) !== 0) {
-        summary.zeroClusters++;
-        zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + guestBytes;
-        zeroBytes += guestBytes;
-      } else if (hasHost) {
+    if (extended) {
+      const zeroMask = view.getUint32(at + 8); // bits 32..63: subcluster reads as zeros
+      const allocMask = view.getUint32(at + 12); // bits 0..31: subcluster allocated
+      if ((allocMask & zeroMask) !== 0) warn('L2 entries marking subclusters both allocated and zero', `guest offset ${guestOffsetText(clusterIndex)}`);
+      if (allocMask !== 0 && !hasHost) {
+        throw new ImageError('malformed', `the L2 entry for guest offset ${guestOffsetText(clusterIndex)} marks subclusters allocated but has no host cluster`);
+      }
+      const allocated = popcount(allocMask);
+      const zeros = popcount(zeroMask & ~allocMask);
+      summary.subclustersAllocated += allocated;
+      summary.subclustersZero += zeros;
+      if (allocated > 0) {
         summary.standardClusters++;
         summary.dataClustersAllocated++;
-        dataPerRegion[region] = (dataPerRegion[region] ?? 0) + guestBytes;
-        allocatedBytes += guestBytes;
+        const bytes = Math.min(allocated * subclusterBytes, guestBytes);
+        dataPerRegion[region] = (dataPerRegion[region] ?? 0) + bytes;
+        allocatedBytes += bytes;
       }
+      if (zeros > 0) {
+        const bytes = Math.min(zeros * subclusterBytes, guestBytes);
+        zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + bytes;
+        zeroBytes += bytes;
+      }
+      return;
+    }
+
+    if (zeroFlagAllowed && (low & 1) !== 0) {
+      summary.zeroClusters++;
+      zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + guestBytes;
+      zeroBytes += guestBytes;
+    } else if (hasHost) {
+      summary.standardClusters++;
+      summary.dataClustersAllocated++;
+      dataPerRegion[region] = (dataPerRegion[region] ?? 0) + guestBytes;
+      allocatedBytes += guestBytes;
     }
   };
 
@@ -215,6 +226,15 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
     const got = source.readInto ? await source.readInto(offset, buffer) : await copyRead(source, offset, buffer);
     if (got < cluster) throw new ImageError('malformed', `the file ends inside the L2 table at ${hex(offset)}`);
     return buffer;
+  };
+
+  // Blocking reads never give the event loop a turn on their own: hand it one every few
+  // milliseconds so progress can be drawn and a cancel request can arrive.
+  let lastYield = performance.now();
+  const breathe = async (): Promise<void> => {
+    if (performance.now() - lastYield < YIELD_EVERY_MS) return;
+    await new Promise<void>((resolve) => setImmediate(resolve));
+    lastYield = performance.now();
   };
 
   let lastReport = 0;
@@ -244,6 +264,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
     for (let t = 0; t < tables.length && t < READS_IN_FLIGHT; t++) pending.push(readTable(tables[t]!.offset, buffers[t]!));
     for (let t = 0; t < tables.length; t++) {
       const table = await pending[t]!;
+      await breathe();
       if (signal?.aborted) {
         await Promise.allSettled(pending.slice(t + 1));
         throw new ImageError('cancelled', 'cancelled');
