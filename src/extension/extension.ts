@@ -17,7 +17,7 @@ import type { WhatIfValues } from '../../webview/protocol';
 
 /** What the extension exports: read by the integration tests, useful to other extensions. */
 export interface DiskwiseApi {
-  timings(): Timings & { panelUpdateMs?: number; panelRenderMs?: number };
+  timings(): Timings & { panelUpdateMs?: number; panelUpdates: number; panelRenderMs?: number };
   result(uri: vscode.Uri): LintResult | undefined;
   panelShows(): string | undefined;
   /** Resolves when the panel has drawn the view for the current state of this document. */
@@ -36,6 +36,7 @@ export function activate(context: vscode.ExtensionContext): DiskwiseApi {
   const linting = new Linting(context.extensionUri, timings);
   const status = new CacheStatus();
   let panelUpdateMs: number | undefined;
+  let panelUpdates = 0;
   let lastDefinition: vscode.Uri | undefined;
 
   const reveal = async (uri: vscode.Uri, range: SourceRange): Promise<void> => {
@@ -111,6 +112,7 @@ export function activate(context: vscode.ExtensionContext): DiskwiseApi {
         const started = Date.now();
         void panel.show(panelView(result.uri.toString(), result.version ?? 0, result.report, result.mapping)).then(() => {
           panelUpdateMs = Date.now() - started + (timings.lastLintMs ?? 0);
+          panelUpdates++;
         });
       }
     }),
@@ -157,7 +159,7 @@ export function activate(context: vscode.ExtensionContext): DiskwiseApi {
   const ready = linting.start().then(() => followEditor(vscode.window.activeTextEditor));
 
   return {
-    timings: () => ({ ...timings, panelUpdateMs, panelRenderMs: panel.lastRender?.ms }),
+    timings: () => ({ ...timings, panelUpdateMs, panelUpdates, panelRenderMs: panel.lastRender?.ms }),
     result: (uri) => linting.result(uri),
     panelShows: () => panel.shownUri,
     refreshPanel: (uri) => updatePanel(uri),

@@ -1,7 +1,10 @@
 // Keeps every included definition's lint result current: open documents as the user types
 // (debounced), the rest of the workspace in the background and through a file watcher, and the
 // mapping files themselves, whose own problems show at their positions.
+import * as path from 'node:path';
 import * as vscode from 'vscode';
+// Loaded through require so the bundle takes the package's CommonJS build.
+import tinyglobby = require('tinyglobby');
 import { lintDocument, type FileReport, type Mapping } from '../lint';
 import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
 import { isMappingFileName, Mappings, readText } from './mappings';
@@ -18,6 +21,8 @@ export interface LintResult {
 
 export interface Timings {
   activatedAt: number;
+  /** Milliseconds from activation until the mapping files were loaded. */
+  mappingsLoadedMs?: number;
   /** Milliseconds from activation to the first diagnostics published for a definition. */
   firstDiagnosticsMs?: number;
   /** Lint time of the most recent document lint. */
@@ -48,6 +53,7 @@ export class Linting implements vscode.Disposable {
   /** Loads the mapping files, lints the open definitions, then the whole workspace in the background. */
   async start(): Promise<void> {
     await this.reloadMappings();
+    this.timings.mappingsLoadedMs = Date.now() - this.timings.activatedAt;
     this.disposables.push(
       vscode.workspace.onDidChangeTextDocument((event) => this.schedule(event.document)),
       vscode.workspace.onDidOpenTextDocument((document) => { if (this.isDefinition(document)) this.lintOpen(document); }),
@@ -181,9 +187,11 @@ export class Linting implements vscode.Disposable {
       const mapping = state.mapping;
       if (!mapping) continue;
       const globs = mapping.file.include && mapping.file.include.length > 0 ? mapping.file.include : ['**/*.{yaml,yml,json}'];
-      for (const glob of globs) {
-        const uris = await vscode.workspace.findFiles(new vscode.RelativePattern(vscode.Uri.file(mapping.dir), glob), '**/node_modules/**');
-        for (const uri of uris) if (mapping.includes(uri.fsPath) && uri.fsPath !== state.uri.fsPath) found.set(uri.toString(), uri);
+      // The mapping decides what is included; the walk only proposes candidates below its folder.
+      const paths = await tinyglobby.glob(globs, { cwd: mapping.dir, absolute: true, ignore: ['**/node_modules/**', '**/.git/**'] });
+      for (const file of paths) {
+        const uri = vscode.Uri.file(path.normalize(file));
+        if (mapping.includes(uri.fsPath) && uri.fsPath !== state.uri.fsPath) found.set(uri.toString(), uri);
       }
     }
     return [...found.values()].sort((a, b) => a.fsPath.localeCompare(b.fsPath));

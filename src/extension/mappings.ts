@@ -1,5 +1,6 @@
 // Finds each workspace folder's mapping file and keeps it loaded: from the open editor's text while
 // it is being edited (so its errors show as the user types), from disk otherwise.
+import { promises as fs } from 'node:fs';
 import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { loadMapping, type Mapping, type MappingProblem } from '../lint';
@@ -13,8 +14,11 @@ export interface MappingState {
   problems: MappingProblem[];
 }
 
+// Definitions live on the extension host's own disk (scheme file): read them directly, which is
+// several times faster than a round trip through the editor's file service at start-up.
 async function exists(uri: vscode.Uri): Promise<boolean> {
   try {
+    if (uri.scheme === 'file') return (await fs.stat(uri.fsPath)).isFile();
     await vscode.workspace.fs.stat(uri);
     return true;
   } catch {
@@ -40,6 +44,7 @@ export async function readText(uri: vscode.Uri): Promise<string | undefined> {
   const open = vscode.workspace.textDocuments.find((d) => d.uri.toString() === uri.toString());
   if (open) return open.getText();
   try {
+    if (uri.scheme === 'file') return await fs.readFile(uri.fsPath, 'utf8');
     return new TextDecoder('utf-8').decode(await vscode.workspace.fs.readFile(uri));
   } catch {
     return undefined;

@@ -6,6 +6,8 @@ import { SUITE_START_MARK } from './marks';
 // Each file registers its tests when required; listed here because the suite is one bundle.
 const testFiles: Array<() => unknown> = [
   () => require('./activation.test'),
+  () => require('./diagnostics.test'),
+  () => require('./mapping-and-commands.test'),
 ];
 
 export function run(): Promise<void> {
