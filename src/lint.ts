@@ -212,6 +212,9 @@ function lintDisk(lint: FileLint, disk: DiskSpec, machines: readonly MachineSpec
   const chain = chainOf(disk, mapping, facts);
   if (!chain) {
     const sizeField = mapping.file.fields.disk.size;
+    // A size that is written but unreadable already has its invalid-value finding.
+    const sizeChainKeys = mapping.diskFields.size?.memberChain;
+    if (sizeChainKeys && nodeAt(document, [...disk.path, ...sizeChainKeys])) return undefined;
     lint.add(invalid, {
       message: sizeField
         ? `disk "${disk.name}" has no virtual size: nothing at ${sizeField}, so its caches cannot be sized`

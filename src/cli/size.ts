@@ -9,6 +9,7 @@ import {
   entriesPerL2Table, guestBytesPerL2Table, refcountCoveredBytes, writeAmplification,
 } from '../core/sizing';
 import { formatInterval, formatSize, parseSize } from '../core/units';
+import { modelCache, parseAccessSpec, type AccessPattern, type CacheModelReport } from '../core/cachemodel';
 import { formatOption, lastOption, parseArgs, type OptionSpec, type ParsedArgs } from './args';
 import { renderColumns } from './table';
 import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
@@ -21,6 +22,8 @@ const OPTIONS: Record<string, OptionSpec> = {
   'refcount-bits': { value: true },
   cache: { value: true },
   'request-size': { value: true },
+  access: { value: true },
+  'working-set': { value: true },
   driver: { value: true },
   platform: { value: true },
   format: { value: true },
@@ -29,6 +32,7 @@ const OPTIONS: Record<string, OptionSpec> = {
 
 export const SIZE_USAGE = `usage: diskwise size --size SIZE [--cluster-size 64K] [--extended-l2] [--slice SIZE]
                      [--refcount-bits 16] [--cache SIZE] [--request-size 4K]
+                     [--access uniform|zipf:S|hotspot:P/Q|sequential] [--working-set SIZE]
                      [--driver current|legacy] [--platform linux|other] [--format text|json]
 
   --size           virtual size of the disk (e.g. 20G, 1.5T, 512GiB)
@@ -38,6 +42,8 @@ export const SIZE_USAGE = `usage: diskwise size --size SIZE [--cluster-size 64K]
   --refcount-bits  refcount width: 1, 2, 4, 8, 16, 32 or 64 (default 16)
   --cache          configured L2 cache size (default: the driver's)
   --request-size   typical guest write size, for first-write cost (default 4K)
+  --access         guest access pattern for the predicted hit ratio (default uniform)
+  --working-set    guest bytes the workload touches (default: the whole disk)
   --driver         driver generation whose defaults apply (default current)
   --platform       host platform whose defaults apply (default linux)
 `;
@@ -53,6 +59,8 @@ interface SizeRequest {
   generation: DriverGeneration;
   platform: HostPlatform;
   format: 'text' | 'json';
+  access: AccessPattern;
+  workingSet?: bigint;
 }
 
 function sizeOption(args: ParsedArgs, name: string, what: string): Outcome<bigint | undefined> {
@@ -101,6 +109,14 @@ function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
   const request = sizeOption(args, 'request-size', 'guest write size');
   if (!request.ok) return request;
   if (request.value === 0n) return fail('--request-size (guest write size): must be at least 1 byte');
+  const accessText = lastOption(args, 'access') ?? 'uniform';
+  const access = parseAccessSpec(accessText);
+  if (!access.ok) return fail(`--access: ${access.problem.message}`);
+  const workingSet = sizeOption(args, 'working-set', 'working set');
+  if (!workingSet.ok) return workingSet;
+  if (workingSet.value !== undefined && (workingSet.value === 0n || workingSet.value > size.value)) {
+    return fail(`--working-set: ${workingSet.value} bytes must be more than 0 and at most the virtual size (${size.value} bytes)`);
+  }
   const generation = choice(args, 'driver', DRIVER_GENERATIONS, 'current');
   if (!generation.ok) return generation;
   const platform = choice(args, 'platform', HOST_PLATFORMS, 'linux');
@@ -108,7 +124,7 @@ function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
   return ok({
     virtualSize: size.value, cluster: cluster.value, extendedL2, slice: sliceRaw.value, refcountBits,
     cache: cache.value, requestSize: request.value ?? 4096n, generation: generation.value,
-    platform: platform.value, format: format.value,
+    platform: platform.value, format: format.value, access: access.value, workingSet: workingSet.value,
   });
 }
 
@@ -129,12 +145,31 @@ export function runSize(argv: readonly string[], io: CommandIO): number {
   const geometry = { virtualSize: r.virtualSize, clusterSize: r.cluster, extendedL2: r.extendedL2, refcountBits: r.refcountBits };
   const sizing = sizeChain([{ geometry, settings }], profile);
   const layer = layerCache(geometry, settings, profile);
+  const predicted = modelCache({
+    virtualSize: r.virtualSize, clusterSize: r.cluster, extendedL2: r.extendedL2, entrySize: layer.entrySize,
+    cacheBytes: layer.l2, access: r.access, ioSize: r.requestSize,
+    ...(r.workingSet !== undefined ? { workingSet: { offset: 0n, length: r.workingSet } } : {}),
+  });
+  if (!predicted.ok) {
+    io.stderr(`diskwise size: ${predicted.problem.field}: ${predicted.problem.message}\n`);
+    return EXIT_USAGE;
+  }
+  const m = predicted.value;
   if (r.format === 'json') {
-    io.stdout(`${stringifyJson({ ...sizing.report, l2Tables: layer.l2Tables })}\n`);
+    const model = { hitRatio: m.hitRatio, entries: m.entries, cachedEntries: m.cachedEntries, missesPer1000: m.missesPer1000, metadataBytesPerIo: m.metadataBytesPerIo };
+    io.stdout(`${stringifyJson({ ...sizing.report, l2Tables: layer.l2Tables, model })}\n`);
     return EXIT_OK;
   }
-  io.stdout(renderSizeText(r, sizing.report, layer, profile.summary));
+  io.stdout(renderSizeText(r, sizing.report, layer, profile.summary, m));
   return EXIT_OK;
+}
+
+const round = (value: number): string => (value >= 10 ? value.toFixed(0) : value.toFixed(1));
+
+function accessName(r: SizeRequest): string {
+  const a = r.access;
+  const kind = a.kind === 'zipf' ? `Zipf s=${a.exponent}` : a.kind === 'hotspot' ? `${a.share * 100}% of I/O on ${a.fraction * 100}% of the data` : `${a.kind} access`;
+  return r.workingSet === undefined ? kind : `${kind} over ${formatSize(r.workingSet)}`;
 }
 
 function percent(part: bigint, whole: bigint): string {
@@ -148,6 +183,7 @@ function renderSizeText(
   report: ReturnType<typeof sizeChain>['report'],
   layer: ReturnType<typeof layerCache>,
   profileSummary: string,
+  model: CacheModelReport,
 ): string {
   const entry = layer.entrySize === r.cluster ? 'whole L2 tables' : `${formatSize(layer.entrySize)} slices`;
   const amplification = writeAmplification(r.requestSize, r.cluster, r.extendedL2);
@@ -161,6 +197,8 @@ function renderSizeText(
     ['refcount cache', formatSize(report.refcountEffective), `covers ${formatSize(refcountCoveredBytes(report.refcountEffective, r.cluster, r.refcountBits))} of host clusters at ${r.refcountBits}-bit refcounts`],
     ['cache memory', formatSize(report.cacheMemoryTotal), 'L2 + refcount, this layer'],
     ['idle cleanup', formatInterval(layer.cleanupInterval), 'driver default'],
+    ['predicted hits', `${(model.hitRatio * 100).toFixed(1)}%`, `${accessName(r)}: ${model.cachedEntries} of ${model.entries} cache entries held (${model.method})`],
+    ['metadata reads', `${round(model.missesPer1000)}/1000`, `extra reads per 1,000 guest I/Os, ${formatSize(BigInt(Math.round(model.metadataBytesPerIo)))} per I/O on average`],
     ['first write', `${amplification.ratio}x`, `a ${formatSize(r.requestSize)} write into unallocated space fills ${formatSize(amplification.bytesMoved)}`],
   ];
   const cautions = [CAUTIONS.reopen, CAUTIONS.hostMemory, CAUTIONS.fixedAtCreation, CAUTIONS.review];

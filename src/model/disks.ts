@@ -5,6 +5,7 @@ import type { Node } from 'yaml';
 import type { SourceRange } from '../core/results';
 import { checkClusterSize, checkExtendedL2, checkSlice } from '../core/sizing';
 import { parseInterval, parseSize } from '../core/units';
+import { accessOfPattern, PATTERN_HELP } from '../core/workload';
 import { nodeAt, rangeOfNode, type DefinitionDocument } from './document';
 import { select, toJsonPointer, type PathSegment, type Selector } from './jsonpath';
 import type { AccessPattern, Mapping } from './mapping';
@@ -170,8 +171,11 @@ class Extractor {
         if (parsed.ok && parsed.value === 0n) return { ok: false, error: 'a guest write size must be at least 1 byte' };
         return parsed;
       }),
-      pattern: this.typed('pattern', raw('pattern'), (v) =>
-        v === 'random' || v === 'sequential' || v === 'mixed' ? { ok: true, value: v } : { ok: false, error: `the access pattern must be random, sequential or mixed, got ${JSON.stringify(v)}` }),
+      pattern: this.typed('pattern', raw('pattern'), (v) => {
+        if (typeof v !== 'string') return { ok: false, error: `the access pattern must be ${PATTERN_HELP}, got ${JSON.stringify(v)}` };
+        const access = accessOfPattern(v);
+        return access.ok ? { ok: true, value: v } : access;
+      }),
     };
     const cluster = values.clusterSize?.value ?? this.mapping.assume.clusterSize;
     if (values.extendedL2?.value) {

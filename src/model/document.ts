@@ -6,6 +6,7 @@ import {
 } from 'yaml';
 import type { SourceRange } from '../core/results';
 import { LineIndex } from './lines';
+import { findJsonSyntaxError } from './jsonSyntax';
 import type { PathSegment } from './jsonpath';
 
 export type DocumentFormat = 'yaml' | 'json';
@@ -39,16 +40,9 @@ function firstLine(message: string): string {
 }
 
 function jsonSyntaxProblem(text: string, lines: LineIndex): DocumentProblem | undefined {
-  try {
-    JSON.parse(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
-    return undefined;
-  } catch (error) {
-    const message = error instanceof Error ? error.message : String(error);
-    const at = /position (\d+)/.exec(message);
-    const offset = at ? Number(at[1]) + (text.charCodeAt(0) === 0xfeff ? 1 : 0) : 0;
-    const clean = message.replace(/ in JSON at position \d+.*$/s, '').replace(/^JSON\.parse: /, '');
-    return { message: `not valid JSON: ${clean}`, range: lines.range(offset, Math.min(offset + 1, text.length)) };
-  }
+  const error = findJsonSyntaxError(text);
+  if (!error) return undefined;
+  return { message: `not valid JSON: ${error.message}`, range: lines.range(error.offset, Math.min(error.offset + 1, text.length)) };
 }
 
 export function readDefinition(path: string, text: string, format: DocumentFormat = formatOf(path)): ReadResult {

@@ -8,6 +8,7 @@ import { driverProfile, type DriverGeneration, type HostPlatform } from '../core
 import type { SourceRange } from '../core/results';
 import { checkClusterSize, checkRefcountBits, DEFAULT_CLUSTER, DEFAULT_REFCOUNT_BITS } from '../core/sizing';
 import { parseSize } from '../core/units';
+import { accessOfPattern } from '../core/workload';
 import { nodeAt, rangeOfNode, readDefinition, type DefinitionDocument } from './document';
 import { compileSelector, parseJsonPointer, toJsonPointer, type PathSegment, type Selector } from './jsonpath';
 import { DISK_FIELDS, MACHINE_FIELDS, mappingSchema, type DiskField, type MachineField, type MappingFile } from './mappingSchema';
@@ -17,7 +18,8 @@ export const MAPPING_FILE_NAMES = ['diskwise.yaml', 'diskwise.yml', 'diskwise.js
 export const DEFAULT_INCLUDE = ['**/*.yaml', '**/*.yml', '**/*.json'];
 const ALWAYS_EXCLUDED = ['**/node_modules/**', '**/.git/**'];
 
-export type AccessPattern = 'random' | 'sequential' | 'mixed';
+/** As written: random, sequential, mixed, or a cache-model spec (see core/workload). */
+export type AccessPattern = string;
 
 export interface Assumptions {
   clusterSize: bigint;
@@ -160,6 +162,10 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
     return size.value === 0n ? fallback : size.value;
   };
   const clusterSize = assumeSize('clusterSize', DEFAULT_CLUSTER);
+  if (file.assume?.pattern !== undefined) {
+    const access = accessOfPattern(file.assume.pattern);
+    if (!access.ok) problems.push({ message: `assume.pattern: ${access.error}`, ...at('assume', 'pattern') });
+  }
   const requestSize = assumeSize('requestSize', 4096n);
   let refcountBits = DEFAULT_REFCOUNT_BITS;
   if (file.assume?.refcountBits !== undefined) {

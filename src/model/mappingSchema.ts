@@ -29,7 +29,7 @@ const diskFieldDescriptions: Record<DiskField, string> = {
   image: 'Path of the image file, relative to the definition file',
   backing: 'A backing image path, or a nested disk object',
   requestSize: 'Typical guest write size',
-  pattern: 'Guest access pattern: random, sequential or mixed',
+  pattern: 'Guest access pattern: random, sequential, mixed, uniform, zipf:S or hotspot:P/Q',
 };
 
 const diskFields = z
@@ -57,7 +57,7 @@ export const mappingSchema = z
       .object({
         clusterSize: size.optional(),
         format: z.string().min(1).optional(),
-        pattern: z.enum(['random', 'sequential', 'mixed']).optional(),
+        pattern: z.string().min(1).optional().describe('random, sequential, mixed, uniform, zipf:S or hotspot:P/Q'),
         requestSize: size.optional(),
         driver: z.enum(['current', 'legacy']).optional().describe('Which generation of driver defaults applies'),
         platform: z.enum(['linux', 'other']).optional().describe('Host platform whose defaults apply'),

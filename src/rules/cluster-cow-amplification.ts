@@ -1,5 +1,6 @@
 import { CAUTIONS } from '../core/cautions';
 import { KiB, writeAmplification } from '../core/sizing';
+import { isSequential } from '../core/workload';
 import { size } from './format';
 import { docsPage, type Rule } from './types';
 
@@ -13,7 +14,7 @@ export const clusterCowAmplification: Rule = {
   fixable: false,
   docs: docsPage('cluster-cow-amplification'),
   checkDisk({ disk, top, requestSize, pattern, report }) {
-    if (pattern === 'sequential') return;
+    if (isSequential(pattern)) return;
     const { clusterSize, extendedL2 } = top.geometry;
     const amplification = writeAmplification(requestSize, clusterSize, extendedL2);
     if (amplification.unit <= LARGE_UNIT || requestSize >= amplification.unit) return;

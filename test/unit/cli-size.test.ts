@@ -43,6 +43,8 @@ const SIZING_KEYS = [
   'virtualSize', 'clusterSize', 'l2EntryBytes', 'l2FullCoverage', 'l2Effective', 'l2CoveredBytes',
   'refcountEffective', 'layers', 'cacheMemoryTotal', 'l2Tables',
 ];
+/** Issue 6 adds the cache model's prediction after them. */
+const SIZE_OUTPUT_KEYS = [...SIZING_KEYS, 'model'];
 
 const KiB = 1024;
 const MiB = 1024 * KiB;
@@ -109,7 +111,7 @@ describe('cli: diskwise size', function () {
       assert.equal(run.stderr, '');
       const parsed: unknown = JSON.parse(run.stdout);
       assert.ok(parsed !== null && typeof parsed === 'object' && !Array.isArray(parsed));
-      assert.deepEqual(Object.keys(parsed), SIZING_KEYS);
+      assert.deepEqual(Object.keys(parsed), SIZE_OUTPUT_KEYS);
       assert.deepEqual(parsed, {
         virtualSize: 20 * GiB, // 21474836480
         clusterSize: 64 * KiB, // the usual default [SPEC]
@@ -121,6 +123,8 @@ describe('cli: diskwise size', function () {
         layers: 1,
         cacheMemoryTotal: 2.5 * MiB + 256 * KiB,
         l2Tables: 40, // 20 GiB / (64 KiB * 8192) = 40 [SPEC]
+        // the cache holds all 40 tables: uniform access hits every time, C/N = 40/40 [IRM]
+        model: { hitRatio: 1, entries: 40, cachedEntries: 40, missesPer1000: 0, metadataBytesPerIo: 0 },
       });
       // integers in the text itself: no quotes, no fraction, no exponent
       for (const key of SIZING_KEYS) assert.match(run.stdout, new RegExp(`"${key}": \\d+(,|\\n)`), key);
@@ -175,7 +179,7 @@ describe('cli: diskwise size', function () {
       assert.equal(run.code, 0, run.stderr);
       assert.match(run.stdout, /"virtualSize": 2305843009213693952,/);
       assert.match(run.stdout, /"l2FullCoverage": 281474976710656,/); // 2^61 / 2^16 * 8 = 2^48
-      assert.match(run.stdout, /"l2Tables": 4294967296\n/); // one table maps 2^16 * 2^13 = 2^29: 2^61 / 2^29 = 2^32
+      assert.match(run.stdout, /"l2Tables": 4294967296,\n/); // one table maps 2^16 * 2^13 = 2^29: 2^61 / 2^29 = 2^32
     });
   });
 
