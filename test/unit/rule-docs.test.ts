@@ -1,0 +1,54 @@
+// Every rule has its docs page, and each page's "Before" example really gives the finding the page
+// says, at the line and column it says, when linted with the demo's mapping file. Keeps the pages
+// honest as the rules change.
+import { strict as assert } from 'node:assert';
+import { existsSync, readFileSync } from 'node:fs';
+import * as path from 'node:path';
+import { lintDocument, loadMapping, RULES } from '../../src/lint';
+
+const ROOT = path.resolve(__dirname, '../..');
+const DEMO_MAPPING = path.join(ROOT, 'examples/diskwise.yaml');
+
+function demoMapping() {
+  const load = loadMapping(readFileSync(DEMO_MAPPING, 'utf8'), DEMO_MAPPING);
+  assert.ok(load.mapping, load.problems.map((p) => p.message).join('; '));
+  return load.mapping;
+}
+
+/** The first YAML block after "Before", and every "line L, column C" in the paragraph after it. */
+function example(page: string): { text: string; places: { line: number; column: number }[] } | undefined {
+  const before = page.indexOf('\nBefore');
+  if (before === -1) return undefined;
+  const block = /```yaml\n([\s\S]*?)```/.exec(page.slice(before));
+  if (!block) return undefined;
+  const after = page.slice(before + block.index + block[0].length);
+  const paragraph = after.split(/\n\s*\n/).find((p) => p.trim().length > 0) ?? '';
+  const places = [...paragraph.matchAll(/line (\d+),\s+column (\d+)/g)].map((m) => ({ line: Number(m[1]), column: Number(m[2]) }));
+  return { text: block[1] as string, places };
+}
+
+describe('rule docs pages', () => {
+  for (const rule of RULES) {
+    describe(rule.id, () => {
+      const file = path.join(ROOT, rule.docs);
+      it(`has its page at ${rule.docs}, titled with the id and stating severity and fix`, () => {
+        assert.ok(existsSync(file), `${rule.docs} is missing`);
+        const page = readFileSync(file, 'utf8');
+        assert.ok(page.startsWith(`# ${rule.id}\n`));
+        assert.ok(page.includes(`**Severity:** ${rule.severity}`), 'severity matches the rule');
+        assert.ok(page.includes(`**Fix:** ${rule.fixable ? 'yes' : 'no'}`), 'fixability matches the rule');
+        assert.match(page, /## What it catches/);
+      });
+      it('its "Before" example gives this finding where the page says', function () {
+        const page = readFileSync(file, 'utf8');
+        // Examples of the image rules need real image files beside the definition.
+        if (page.includes('<!-- example needs image files -->')) this.skip();
+        const found = example(page);
+        assert.ok(found && found.places.length > 0, 'the page has a Before example and names the place of its finding');
+        const report = lintDocument({ path: path.join(ROOT, 'examples/fleet/docs-example.yaml'), text: found.text }, demoMapping());
+        const actual = report.findings.filter((f) => f.rule === rule.id).map((f) => ({ line: f.range.line, column: f.range.column }));
+        assert.deepEqual(actual, found.places, report.findings.map((f) => `${f.rule} ${f.range.line}:${f.range.column}`).join('\n'));
+      });
+    });
+  }
+});
