@@ -54,6 +54,8 @@ export function ioMessage(error: unknown): string {
       return 'permission denied';
     case 'EISDIR':
       return 'is a directory, not a file';
+    case 'ELOOP':
+      return 'too many levels of symbolic links';
     default:
       return error instanceof Error ? error.message : String(error);
   }
