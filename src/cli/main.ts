@@ -1,6 +1,7 @@
 // The diskwise command: dispatches to lint, size and inspect. Whatever happens inside, a user sees a
 // message and an exit code, never a stack trace.
 import { runLint } from './lint';
+import { runInspect } from './inspect';
 import { runSize } from './size';
 import { EXIT_USAGE, processIO, type CommandIO } from './io';
 
@@ -24,6 +25,8 @@ export async function runCommand(argv: readonly string[], io: CommandIO): Promis
       return runLint(rest, io, VERSION);
     case 'size':
       return runSize(rest, io);
+    case 'inspect':
+      return runInspect(rest, io);
     case '--version':
     case '-v':
       io.stdout(`${VERSION}\n`);
