@@ -100,8 +100,8 @@ export function resolveMapping(cwd: string, config: string | undefined, paths: r
 export interface FileSelection {
   /** Absolute paths, sorted, without duplicates. */
   files: string[];
-  /** Named paths that do not exist or cannot be read, as messages. */
-  errors: string[];
+  /** Named paths that do not exist or cannot be read (absolute path and why). */
+  errors: { path: string; message: string }[];
   /** Named folders in which the mapping includes nothing (worth a note, not an error). */
   empty: string[];
 }
@@ -136,7 +136,7 @@ export function selectFiles(mapping: Mapping, cwd: string, paths: readonly strin
       try {
         stat = fs.statSync(resolved);
       } catch (error) {
-        selection.errors.push(`${given}: ${ioMessage(error)}`);
+        selection.errors.push({ path: resolved, message: ioMessage(error) });
         continue;
       }
       if (stat.isDirectory()) {

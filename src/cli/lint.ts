@@ -126,18 +126,19 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   const selection = selectFiles(mapping.value, io.cwd, request.paths);
   const notes: string[] = [];
   const progress = startProgress(io, selection.files.length, request.fix ? 'fixing' : 'linting');
-  const files: LintedFile[] = [];
+  const files: LintedFile[] = selection.errors.map((e) => ({ path: e.path, error: e.message, fixed: 0 }));
   for (const path of selection.files) {
     files.push(lintFile(path, mapping.value, request, notes, io.cwd));
     progress.tick(files.length);
   }
   progress.done();
+  files.sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
 
   const run: LintRun = { mapping: mapping.value, cwd: io.cwd, files, quiet: request.quiet, fix: request.fix, version };
   const render = request.format === 'json' ? renderJson : request.format === 'sarif' ? renderSarif : renderText;
   io.stdout(render(run));
 
-  const problems = [...selection.errors];
+  const problems: string[] = [];
   for (const file of files) if (file.error !== undefined) problems.push(`${displayPath(file.path, io.cwd)}: ${file.error}`);
   for (const folder of selection.empty) notes.push(`${folder}: the mapping file includes no definition files in this folder`);
   const summary = summarize(run);

@@ -226,7 +226,11 @@ describe('diskwise lint: which files', () => {
     const run = await lintIn(WORKSPACE, ['--format', 'json', 'hosts/missing.yaml', 'hosts/undersized.yaml']);
     assert.equal(run.code, 2);
     assert.match(run.stderr, /^hosts\/missing\.yaml: no such file or directory$/m);
-    assert.deepEqual(json(run).files.map((f) => f.path), ['hosts/undersized.yaml']);
+    // JSON readers see it too: an entry with `error` and nothing linted
+    assert.deepEqual(json(run).files.map((f) => [f.path, f.error, f.findings.length > 0]), [
+      ['hosts/missing.yaml', 'no such file or directory', false],
+      ['hosts/undersized.yaml', undefined, true],
+    ]);
     assertNoStack(run);
   });
 
