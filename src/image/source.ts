@@ -14,6 +14,8 @@ export interface ByteSource {
    * can reuse a few buffers instead of allocating one per L2 table.
    */
   readInto?(offset: number, target: Uint8Array): Promise<number>;
+  /** Optional blocking form of readInto, for sources whose reads are cheap and local. */
+  readIntoSync?(offset: number, target: Uint8Array): number;
   close?(): Promise<void>;
 }
 
@@ -33,7 +35,9 @@ export class FileByteSource implements ByteSource {
     private readonly handle: FileHandle,
     private readonly bytes: number,
     private readonly blocking: boolean,
-  ) {}
+  ) {
+    if (blocking) this.readIntoSync = (offset, target) => this.fill(offset, target);
+  }
 
   static async open(path: string, options: FileSourceOptions = {}): Promise<FileByteSource> {
     const handle = await open(path, 'r');
@@ -59,16 +63,28 @@ export class FileByteSource implements ByteSource {
   }
 
   async readInto(offset: number, target: Uint8Array): Promise<number> {
+    if (this.blocking) return this.fill(offset, target);
     let done = 0;
     while (done < target.length) {
-      const bytesRead = this.blocking
-        ? readSync(this.handle.fd, target, done, target.length - done, offset + done)
-        : (await this.handle.read(target, done, target.length - done, offset + done)).bytesRead;
+      const { bytesRead } = await this.handle.read(target, done, target.length - done, offset + done);
       if (bytesRead === 0) break;
       done += bytesRead;
     }
     return done;
   }
+
+  private fill(offset: number, target: Uint8Array): number {
+    let done = 0;
+    while (done < target.length) {
+      const bytesRead = readSync(this.handle.fd, target, done, target.length - done, offset + done);
+      if (bytesRead === 0) break;
+      done += bytesRead;
+    }
+    return done;
+  }
+
+  /** Present only in blocking mode, so the walk takes its synchronous path only then. */
+  readonly readIntoSync?: (offset: number, target: Uint8Array) => number;
 
   async close(): Promise<void> {
     await this.handle.close();

@@ -4,6 +4,7 @@
 import { ImageError, throwIfAborted } from './errors';
 import type { Qcow2Header } from './header';
 import type { ByteSource } from './source';
+import { createBlockScanner } from './zero-scan';
 
 export interface WalkProgress {
   /** L1 entries looked at so far, of `l1Total` (the entries that map the virtual size). */
@@ -80,6 +81,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
   const regions = totalClusters === 0 ? 0 : Math.ceil(totalClusters / clustersPerRegion);
   const dataPerRegion = new Float64Array(regions);
   const zeroPerRegion = new Float64Array(regions);
+  const lastCluster = totalClusters - 1;
   const lastClusterBytes = Number(virtualSize - (totalClustersBig - 1n) * header.clusterSize);
 
   const summary: MetadataSummary = {
@@ -102,8 +104,6 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
     if (seen) seen.count++;
     else oddities.set(what, { count: 1, first: where });
   };
-  let allocatedBytes = 0;
-  let zeroBytes = 0;
 
   // Where each L2 table sits, so a table referenced twice is an error rather than a loop of rereads:
   // this bounds the work by the file's size whatever the L1 table says.
@@ -113,69 +113,77 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
 
   const guestOffsetText = (clusterIndex: number): string => hex(clusterIndex * cluster);
 
-  const countTable = (table: Uint8Array, l1Index: number): void => {
-    const view = new DataView(table.buffer, table.byteOffset, cluster);
-    const words = new Int32Array(table.buffer, table.byteOffset, cluster / 4);
+  // Tables are read into the scanner's buffers; it finds the non-zero 16-byte blocks, and only the
+  // entries in those are decoded.
+  const scanner = createBlockScanner(cluster, READS_IN_FLIGHT);
+  const views = scanner.buffers.map((b) => new DataView(b.buffer, b.byteOffset, cluster));
+  const wordViews = scanner.buffers.map((b) => new Int32Array(b.buffer, b.byteOffset, cluster / 4));
+  const countTable = (slot: number, l1Index: number): void => {
+    const view = views[slot]!;
+    const words = wordViews[slot]!;
     const firstCluster = l1Index * entriesPerTable;
     const entries = Math.min(entriesPerTable, totalClusters - firstCluster);
-    const stride = entryBytes / 4;
-    const limit = entries * stride;
-    // Most of a sparse table is zero: OR 16 raw words (8 standard or 4 extended entries) at a time
-    // and decode only the blocks that hold something.
-    let w = 0;
-    for (; w + 16 <= limit; w += 16) {
-      if ((words[w]! | words[w + 1]! | words[w + 2]! | words[w + 3]! | words[w + 4]! | words[w + 5]! | words[w + 6]! | words[w + 7]! |
-        words[w + 8]! | words[w + 9]! | words[w + 10]! | words[w + 11]! | words[w + 12]! | words[w + 13]! | words[w + 14]! | words[w + 15]!) === 0) continue;
-      for (let e = w; e < w + 16; e += stride) countEntry(view, words, e / stride, firstCluster);
+    const { offsets, count } = scanner.scan(slot);
+    for (let k = 0; k < count; k++) {
+      const first = offsets[k]! / entryBytes;
+      const last = extended ? first : first + 1;
+      for (let i = first; i <= last && i < entries; i++) countEntry(view, words, i, firstCluster);
     }
-    for (; w < limit; w += stride) countEntry(view, words, w / stride, firstCluster);
   };
+
+  // The hot path keeps to 32-bit integers (host offsets as high and low words, unsigned order by
+  // flipping the sign bit), so the JIT never has to fall back to doubles part way through a walk.
+  const fileHigh = Math.floor(fileSize / TWO_32);
+  const fileLowFlipped = (fileSize % TWO_32 ^ 0x80000000) | 0;
+  const alignMask = (cluster - 1) & ~0x1ff;
+  const beyondFile = (hostHigh: number, hostLow: number): boolean =>
+    hostHigh > fileHigh || (hostHigh === fileHigh && ((hostLow ^ 0x80000000) | 0) >= fileLowFlipped);
+  const offsetText = (hostHigh: number, hostLow: number): string => hex(hostHigh * TWO_32 + (hostLow >>> 0));
 
   const countEntry = (view: DataView, words: Int32Array, i: number, firstCluster: number): void => {
     const w = i * (entryBytes / 4);
     if (words[w] === 0 && words[w + 1] === 0 && (!extended || (words[w + 2] === 0 && words[w + 3] === 0))) return;
     const at = i * entryBytes;
-    const high = view.getUint32(at);
-    const low = view.getUint32(at + 4);
+    const high = view.getInt32(at);
+    const low = view.getInt32(at + 4);
     const clusterIndex = firstCluster + i;
     const region = Math.floor(clusterIndex / clustersPerRegion);
-    const guestBytes = clusterIndex === totalClusters - 1 ? lastClusterBytes : cluster;
+    const guestBytes = clusterIndex === lastCluster ? lastClusterBytes : cluster;
 
-    if (high & 0x40000000) {
+    if ((high & 0x40000000) !== 0) {
       // [SPEC] compressed cluster descriptor, x = 62 - (cluster_bits - 8)
       if (header.externalData) throw new ImageError('malformed', `compressed cluster at guest offset ${guestOffsetText(clusterIndex)} in an image with an external data file`);
-      const hostOffset = (high & compressedOffsetHighMask) * TWO_32 + low;
-      if (hostOffset === 0 || hostOffset >= fileSize) {
-        throw new ImageError('malformed', `compressed data for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, outside the file (${fileSize} bytes)`);
+      const hostHigh = high & compressedOffsetHighMask;
+      if ((hostHigh === 0 && low === 0) || beyondFile(hostHigh, low)) {
+        throw new ImageError('malformed', `compressed data for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${offsetText(hostHigh, low)}, outside the file (${fileSize} bytes)`);
       }
-      if (extended && (view.getUint32(at + 8) !== 0 || view.getUint32(at + 12) !== 0)) {
+      if (extended && (view.getInt32(at + 8) !== 0 || view.getInt32(at + 12) !== 0)) {
         warn('compressed clusters with a non-zero subcluster bitmap (reserved)', `guest offset ${guestOffsetText(clusterIndex)}`);
       }
       summary.compressedClusters++;
       summary.dataClustersAllocated++;
       dataPerRegion[region] = (dataPerRegion[region] ?? 0) + guestBytes;
-      allocatedBytes += guestBytes;
       return;
     }
 
-    const hostOffset = (high & 0x00ffffff) * TWO_32 + ((low & 0xfffffe00) >>> 0);
-    const copied = (high & 0x80000000) !== 0;
-    const hasHost = hostOffset !== 0 || (header.externalData && copied);
+    const hostHigh = high & 0x00ffffff;
+    const hostLow = low & 0xfffffe00;
+    const hasHost = hostHigh !== 0 || hostLow !== 0 || (header.externalData && high < 0); // bit 63: copied
     if ((low & 0x1fe) !== 0 || (high & 0x3f000000) !== 0 || (!zeroFlagAllowed && (low & 1) !== 0)) {
       warn('L2 entries with reserved bits set', `guest offset ${guestOffsetText(clusterIndex)}`);
     }
     if (hasHost && !header.externalData) {
-      if (hostOffset % cluster !== 0) {
-        throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, not aligned to the ${cluster}-byte cluster size`);
+      if ((low & alignMask) !== 0) {
+        throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${offsetText(hostHigh, hostLow)}, not aligned to the ${cluster}-byte cluster size`);
       }
-      if (hostOffset >= fileSize) {
-        throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${hex(hostOffset)}, past the end of the file (${fileSize} bytes)`);
+      if (beyondFile(hostHigh, hostLow)) {
+        throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${offsetText(hostHigh, hostLow)}, past the end of the file (${fileSize} bytes)`);
       }
     }
 
     if (extended) {
-      const zeroMask = view.getUint32(at + 8); // bits 32..63: subcluster reads as zeros
-      const allocMask = view.getUint32(at + 12); // bits 0..31: subcluster allocated
+      const zeroMask = view.getInt32(at + 8); // bits 32..63: subcluster reads as zeros
+      const allocMask = view.getInt32(at + 12); // bits 0..31: subcluster allocated
       if ((allocMask & zeroMask) !== 0) warn('L2 entries marking subclusters both allocated and zero', `guest offset ${guestOffsetText(clusterIndex)}`);
       if (allocMask !== 0 && !hasHost) {
         throw new ImageError('malformed', `the L2 entry for guest offset ${guestOffsetText(clusterIndex)} marks subclusters allocated but has no host cluster`);
@@ -187,27 +195,19 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
       if (allocated > 0) {
         summary.standardClusters++;
         summary.dataClustersAllocated++;
-        const bytes = Math.min(allocated * subclusterBytes, guestBytes);
-        dataPerRegion[region] = (dataPerRegion[region] ?? 0) + bytes;
-        allocatedBytes += bytes;
+        dataPerRegion[region] = (dataPerRegion[region] ?? 0) + Math.min(allocated * subclusterBytes, guestBytes);
       }
-      if (zeros > 0) {
-        const bytes = Math.min(zeros * subclusterBytes, guestBytes);
-        zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + bytes;
-        zeroBytes += bytes;
-      }
+      if (zeros > 0) zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + Math.min(zeros * subclusterBytes, guestBytes);
       return;
     }
 
     if (zeroFlagAllowed && (low & 1) !== 0) {
       summary.zeroClusters++;
       zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + guestBytes;
-      zeroBytes += guestBytes;
     } else if (hasHost) {
       summary.standardClusters++;
       summary.dataClustersAllocated++;
       dataPerRegion[region] = (dataPerRegion[region] ?? 0) + guestBytes;
-      allocatedBytes += guestBytes;
     }
   };
 
@@ -221,11 +221,11 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
     tableOwners.set(offset, l1Index);
   };
 
-  const buffers = Array.from({ length: READS_IN_FLIGHT }, () => new Uint8Array(new ArrayBuffer(cluster)));
-  const readTable = async (offset: number, buffer: Uint8Array): Promise<Uint8Array> => {
+  const readTable = async (offset: number, slot: number): Promise<number> => {
+    const buffer = scanner.buffers[slot]!;
     const got = source.readInto ? await source.readInto(offset, buffer) : await copyRead(source, offset, buffer);
     if (got < cluster) throw new ImageError('malformed', `the file ends inside the L2 table at ${hex(offset)}`);
-    return buffer;
+    return slot;
   };
 
   // Blocking reads never give the event loop a turn on their own: hand it one every few
@@ -237,6 +237,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
     lastYield = performance.now();
   };
 
+  const readSync = source.readIntoSync?.bind(source);
   let lastReport = 0;
   const report = (l1Done: number): void => {
     onProgress?.({ l1Done, l1Total, l2TablesRead: summary.l2TablesAllocated });
@@ -260,22 +261,39 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
       checkTableOffset(offset, l1Index);
       tables.push({ l1Index, offset });
     }
-    const pending: Array<Promise<Uint8Array>> = [];
-    for (let t = 0; t < tables.length && t < READS_IN_FLIGHT; t++) pending.push(readTable(tables[t]!.offset, buffers[t]!));
-    for (let t = 0; t < tables.length; t++) {
-      const table = await pending[t]!;
-      await breathe();
-      if (signal?.aborted) {
-        await Promise.allSettled(pending.slice(t + 1));
-        throw new ImageError('cancelled', 'cancelled');
-      }
-      countTable(table, tables[t]!.l1Index);
+    const afterTable = (l1Index: number): void => {
       summary.l2TablesAllocated++;
-      const next = t + READS_IN_FLIGHT;
-      if (next < tables.length) pending.push(readTable(tables[next]!.offset, table));
       if (onProgress && summary.l2TablesAllocated - lastReport >= 64) {
         lastReport = summary.l2TablesAllocated;
-        report(tables[t]!.l1Index);
+        report(l1Index);
+      }
+    };
+    if (readSync) {
+      // Blocking reads: one buffer, no promise per table; a turn for the event loop now and then.
+      for (let t = 0; t < tables.length; t++) {
+        const { offset, l1Index } = tables[t]!;
+        if (readSync(offset, scanner.buffers[0]!) < cluster) throw new ImageError('malformed', `the file ends inside the L2 table at ${hex(offset)}`);
+        countTable(0, l1Index);
+        afterTable(l1Index);
+        if ((t & 15) === 15) {
+          await breathe();
+          throwIfAborted(signal);
+        }
+      }
+    } else {
+      const pending: Array<Promise<number>> = [];
+      for (let t = 0; t < tables.length && t < READS_IN_FLIGHT; t++) pending.push(readTable(tables[t]!.offset, t));
+      for (let t = 0; t < tables.length; t++) {
+        const slot = await pending[t]!;
+        await breathe();
+        if (signal?.aborted) {
+          await Promise.allSettled(pending.slice(t + 1));
+          throw new ImageError('cancelled', 'cancelled');
+        }
+        countTable(slot, tables[t]!.l1Index);
+        afterTable(tables[t]!.l1Index);
+        const next = t + READS_IN_FLIGHT;
+        if (next < tables.length) pending.push(readTable(tables[next]!.offset, slot));
       }
     }
     report(chunkStart + count);
@@ -283,8 +301,9 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
   if (l1Total === 0) report(0);
 
   for (const [what, { count, first }] of oddities) summary.warnings.push(`${count} ${what}, the first at ${first}`);
-  summary.allocatedBytes = BigInt(allocatedBytes);
-  summary.zeroBytes = BigInt(zeroBytes);
+  // Region totals are whole bytes well inside a double's exact range for any file that exists.
+  summary.allocatedBytes = BigInt(dataPerRegion.reduce((sum, bytes) => sum + bytes, 0));
+  summary.zeroBytes = BigInt(zeroPerRegion.reduce((sum, bytes) => sum + bytes, 0));
   const regionLength = (r: number): number =>
     r === regions - 1 ? (totalClusters - r * clustersPerRegion - 1) * cluster + lastClusterBytes : clustersPerRegion * cluster;
   for (let r = 0; r < regions; r++) {

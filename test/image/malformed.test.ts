@@ -129,9 +129,15 @@ describe('malformed images', function () {
     const LIMIT_KIB = 300 * 1024; // "a few hundred MB"
     const run = (path: string): { maxRssKiB: number; errorKind: string | null; l2: number | null } => {
       const script = `
+        // Peak resident memory of this process alone: /proc's VmHWM is per address space, while getrusage's
+        // maxRSS on Linux carries over the parent's peak across fork and exec.
+        function peakKiB() {
+          try { return Number(/VmHWM:\\s+(\\d+)/.exec(require('node:fs').readFileSync('/proc/self/status', 'utf8'))[1]); }
+          catch { return process.resourceUsage().maxRSS; }
+        }
         const { inspectImage } = require(${JSON.stringify(join(__dirname, '../../src/image'))});
         inspectImage(process.argv[1]).then((r) => {
-          console.log(JSON.stringify({ maxRssKiB: process.resourceUsage().maxRSS, errorKind: r.errorKind ?? null, l2: r.l2TablesAllocated }));
+          console.log(JSON.stringify({ maxRssKiB: peakKiB(), errorKind: r.errorKind ?? null, l2: r.l2TablesAllocated }));
         });`;
       const child = spawnSync(process.execPath, ['-r', 'tsx/cjs', '-e', script, path], { encoding: 'utf8', timeout: 50000, cwd: join(__dirname, '../..') });
       assert.equal(child.status, 0, child.stderr);
