@@ -59,7 +59,7 @@ ruleTable(RULE, {
     {
       name: `${RFC8259} a misspelt literal in JSON: at the bad token`,
       text: '{"machines": tru}',
-      findings: [{ rule: RULE, line: 1, column: 17 }],
+      findings: [{ rule: RULE, line: 1, column: 14, messageIncludes: 'expected a value' }],
     },
   ],
 });
