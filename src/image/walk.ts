@@ -17,7 +17,7 @@ export interface WalkOptions {
   signal?: AbortSignal;
   /** Called now and then during the walk and once at its end. */
   onProgress?: (progress: WalkProgress) => void;
-  /** Regions of the allocation map (default 64). A region is never smaller than one cluster. */
+  /** Regions of the allocation map (default 64, at most 4096). A region is never smaller than one cluster. */
   buckets?: number;
 }
 
@@ -54,6 +54,7 @@ const L1_CHUNK_ENTRIES = 8192; // 64 KiB of L1 per read
 const READS_IN_FLIGHT = 4;
 const TWO_32 = 4294967296;
 const DEFAULT_BUCKETS = 64;
+const MAX_BUCKETS = 4096;
 const YIELD_EVERY_MS = 8;
 
 const hex = (n: number): string => `0x${n.toString(16)}`;
@@ -76,7 +77,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
   const l1End = l1Start + header.l1Entries * 8;
 
   // Regions: whole clusters each, at most `buckets` of them.
-  const wanted = Math.max(1, Math.floor(options.buckets ?? DEFAULT_BUCKETS));
+  const wanted = Math.min(MAX_BUCKETS, Math.max(1, Math.floor(options.buckets ?? DEFAULT_BUCKETS)));
   const clustersPerRegion = Math.max(1, Math.ceil(totalClusters / wanted));
   const regions = totalClusters === 0 ? 0 : Math.ceil(totalClusters / clustersPerRegion);
   const dataPerRegion = new Float64Array(regions);
@@ -125,9 +126,17 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
     const entries = Math.min(entriesPerTable, totalClusters - firstCluster);
     const { offsets, count } = scanner.scan(slot);
     for (let k = 0; k < count; k++) {
-      const first = offsets[k]! / entryBytes;
-      const last = extended ? first : first + 1;
-      for (let i = first; i <= last && i < entries; i++) countEntry(view, words, i, firstCluster);
+      const offset = offsets[k]!;
+      if (extended) {
+        const i = offset >> 4;
+        if (i < entries) countEntry(view, words, i, firstCluster);
+        continue;
+      }
+      // A 16-byte block holds two standard entries; usually only one of them is set.
+      const i = offset >> 3;
+      const w = offset >> 2;
+      if ((words[w]! | words[w + 1]!) !== 0 && i < entries) countEntry(view, words, i, firstCluster);
+      if ((words[w + 2]! | words[w + 3]!) !== 0 && i + 1 < entries) countEntry(view, words, i + 1, firstCluster);
     }
   };
 

@@ -83,6 +83,13 @@ describe('test writer images read by python3-libqcow (independent reference read
     });
   });
 
+  it('refuses images with extended L2 entries (why those are checked against the specification instead)', function () {
+    requireLibqcow(this);
+    const image = writeImage(folder.file('extended.qcow2'), { version: 3, clusterBits: 16, virtualSize: 1n << 30n, extendedL2: true, clusters: [{ guest: 0, kind: 'data', allocatedMask: 1 }] });
+    const [result] = libqcowRead([{ chain: [image.path], reads: [[0, 16]] }]);
+    assert.match(result!.error ?? '', /unsupported incompatible features flags: 0x00000010/);
+  });
+
   it('reads through a backing chain: unallocated clusters fall through, zero flags hide the backing', function () {
     requireLibqcow(this);
     const cluster = 65536;
