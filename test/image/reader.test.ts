@@ -186,6 +186,18 @@ describe('image reader against the writer ground truth', function () {
     });
   });
 
+  describe('read modes', () => {
+    it('blocking and thread-pool reads give the same report', async () => {
+      const clusters: ClusterSpec[] = [];
+      for (let t = 0; t < 40; t++) clusters.push({ guest: t * 8192 + t, kind: t % 5 === 0 ? 'compressed' : t % 7 === 0 ? 'zero' : 'data' });
+      const image = write({ version: 3, clusterBits: 16, virtualSize: 40n * 512n * MiB, clusters });
+      const blocking = await inspectImage(image.path);
+      const pooled = await inspectImage(image.path, { blockingReads: false });
+      assert.deepEqual(pooled, blocking);
+      assert.equal(blocking.l2TablesAllocated, 40);
+    });
+  });
+
   describe('progress and cancellation', () => {
     it('reports progress up to the end of the L1 table', async () => {
       const clusters: ClusterSpec[] = [];
@@ -199,12 +211,13 @@ describe('image reader against the writer ground truth', function () {
       assert.deepEqual([...seen].sort((a, b) => a - b), seen, 'progress never goes back');
     });
 
-    it('stops when the signal fires and says so', async () => {
+    for (const blockingReads of [true, false]) it(`stops when the signal fires and says so (${blockingReads ? 'blocking' : 'thread-pool'} reads)`, async () => {
       const clusters: ClusterSpec[] = [];
       for (let t = 0; t < 300; t++) clusters.push({ guest: t * 8192, kind: 'data' });
       const image = write({ version: 3, clusterBits: 16, virtualSize: 300n * 512n * MiB, clusters, writeData: false });
       const controller = new AbortController();
       const report = await inspectImage(image.path, {
+        blockingReads,
         signal: controller.signal,
         onProgress: (p) => { if (p.l2TablesRead >= 64) controller.abort(); },
       });
