@@ -123,7 +123,7 @@ export function insertFieldEdit(document: DefinitionDocument, base: Node, keys: 
   const last = items.at(-1);
 
   if (flow) {
-    const close = text.lastIndexOf('}', end);
+    const close = text.lastIndexOf('}', end - 1);
     if (close < start) return undefined;
     if (!last) return { offset: close, length: 0, text: inlineNested(remaining, leaf, json) };
     const lastEnd = (last.value as Node | null)?.range?.[1] ?? (last.key as Node | null)?.range?.[1];
@@ -134,14 +134,14 @@ export function insertFieldEdit(document: DefinitionDocument, base: Node, keys: 
     const lineStart = lineStartOf(text, keyStart);
     const indent = text.slice(lineStart, keyStart);
     if (!/^[ \t]*$/.test(indent)) return { offset: lastEnd, length: 0, text: `, ${inlineNested(remaining, leaf, json)}` };
-    return { offset: lastEnd, length: 0, text: `,${eol}${indent}${nestedBlock(remaining, leaf, indent, indentUnit(document), eol, json)}` };
+    return { offset: lastEnd, length: 0, text: `,${eol}${indent}${json ? nestedBlock(remaining, leaf, indent, indentUnit(document), eol, json) : inlineNested(remaining, leaf, false)}` };
   }
 
   if (!last) return undefined;
   const keyStart = (last.key as Node | null)?.range?.[0];
   if (keyStart === undefined) return undefined;
   const lineStart = lineStartOf(text, keyStart);
-  let indent = text.slice(lineStart, keyStart);
+  let indent = text.slice(lineStart, keyStart).replace(/^\uFEFF/, '');
   // A map that is a sequence item begins after "- ": its keys line up one column past the dash.
   if (!/^[ \t]*$/.test(indent)) indent = indent.replace(/[^\t]/g, ' ');
   const contentEnd = backOverSpace(text, end);
