@@ -4,7 +4,7 @@
 import * as fs from 'node:fs';
 import * as nodePath from 'node:path';
 import { randomBytes } from 'node:crypto';
-import { lintDocument, type FileReport, type Finding, type Mapping } from '../lint';
+import { lintDocument, type FileReport, type Finding, type LintOptions, type Mapping } from '../lint';
 import { applyEdits, nonOverlapping } from '../model/edits';
 
 /** Fixes that touch the same map need a fresh lint in between; a handful of passes is plenty. */
@@ -29,8 +29,8 @@ const wantsFix = (finding: Finding): boolean => finding.fix !== undefined && fin
  * left (or the passes run out, or a pass would produce the same text again). A file that does not
  * parse is left alone; a pass whose result would not parse is dropped.
  */
-export function fixText(path: string, text: string, mapping: Mapping, first?: FileReport): FixOutcome {
-  let report = first ?? lintDocument({ path, text }, mapping);
+export function fixText(path: string, text: string, mapping: Mapping, first?: FileReport, options: LintOptions = {}): FixOutcome {
+  let report = first ?? lintDocument({ path, text }, mapping, options);
   let current = text;
   let applied = 0;
   if (!report.parsed) return { text, report, applied };
@@ -40,7 +40,7 @@ export function fixText(path: string, text: string, mapping: Mapping, first?: Fi
     if (chosen.length === 0) break;
     const next = applyEdits(current, chosen.flatMap((fix) => fix.edits));
     if (seen.has(next)) break;
-    const nextReport = lintDocument({ path, text: next }, mapping);
+    const nextReport = lintDocument({ path, text: next }, mapping, options);
     if (!nextReport.parsed) {
       return { text: current, report, applied, withheld: `${chosen.length} fix${chosen.length === 1 ? '' : 'es'} left out: applying them would make the file unreadable` };
     }

@@ -1,11 +1,12 @@
 // `diskwise lint` (CONTRACTS.md §2): find the mapping file, pick the definition files, lint each
 // one (and fix it with --fix), print text, JSON or SARIF, and exit 0, 1 or 2 as the contract says.
 import * as fs from 'node:fs';
-import { lintDocument, type FileReport, type Mapping } from '../lint';
+import { lintPrepared, prepareDocument, type FileReport, type LintOptions, type Mapping } from '../lint';
 import { lastOption, parseArgs, type OptionSpec } from './args';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { displayPath, ioMessage, resolveMapping, selectFiles, stripBom } from './lint-discovery';
 import { encodeLike, fixText, writeFileAtomic } from './lint-fix';
+import { ImageFacts } from './lint-images';
 import { renderJson } from './lint-json';
 import { startProgress } from './lint-progress';
 import { summarize, type LintedFile, type LintRun } from './lint-results';
@@ -18,6 +19,7 @@ const OPTIONS: Record<string, OptionSpec> = {
   fix: { value: false },
   'max-warnings': { value: true },
   quiet: { value: false },
+  'no-images': { value: false },
   help: { value: false },
 };
 
@@ -35,6 +37,7 @@ export const LINT_USAGE = `usage: diskwise lint [PATH...] [--config FILE] [--for
   --fix           apply every fix in place, changing nothing else in the files
   --max-warnings  fail (exit 1) when more than N warnings remain
   --quiet         show errors only (warnings still count toward --max-warnings)
+  --no-images     do not read the image files definitions name (where the images live elsewhere)
 
 exit status: 0 no errors and warnings within --max-warnings; 1 errors, or too many warnings;
              2 usage, mapping file or file read/write problems
@@ -47,6 +50,7 @@ interface LintRequest {
   fix: boolean;
   maxWarnings?: number;
   quiet: boolean;
+  images: boolean;
 }
 
 function usageError(io: CommandIO, message: string): number {
@@ -55,7 +59,7 @@ function usageError(io: CommandIO, message: string): number {
 }
 
 /** Reads one file, lints it and (with --fix) fixes it; never throws. */
-function lintFile(path: string, mapping: Mapping, request: LintRequest, notes: string[], cwd: string): LintedFile {
+async function lintFile(path: string, mapping: Mapping, request: LintRequest, images: ImageFacts, notes: string[], cwd: string): Promise<LintedFile> {
   let bytes: Buffer;
   try {
     bytes = fs.readFileSync(path);
@@ -67,8 +71,11 @@ function lintFile(path: string, mapping: Mapping, request: LintRequest, notes: s
   // Offsets are counted without the byte order mark, as editors count them; --fix puts it back.
   const text = stripBom(decoded);
   let report: FileReport;
+  const options: LintOptions = request.images ? { images: images.lookup } : {};
   try {
-    report = lintDocument({ path, text }, mapping);
+    const prepared = prepareDocument({ path, text }, mapping);
+    if (request.images && prepared.imagePaths.length > 0) await images.load(prepared.imagePaths);
+    report = lintPrepared(prepared, options);
   } catch (error) {
     return { path, error: `internal error while linting: ${error instanceof Error ? error.message : String(error)}`, fixed: 0 };
   }
@@ -77,7 +84,7 @@ function lintFile(path: string, mapping: Mapping, request: LintRequest, notes: s
     notes.push(`${displayPath(path, cwd)}: left unchanged by --fix: the file is not valid UTF-8, so writing it back would change bytes the fixes do not touch`);
     return { path, report, fixed: 0 };
   }
-  const outcome = fixText(path, text, mapping, report);
+  const outcome = fixText(path, text, mapping, report, options);
   if (outcome.withheld) notes.push(`${displayPath(path, cwd)}: ${outcome.withheld}`);
   if (outcome.applied === 0) return { path, report: outcome.report, fixed: 0 };
   try {
@@ -111,6 +118,7 @@ function readRequest(argv: readonly string[], io: CommandIO): LintRequest | numb
     fix: args.flags.has('fix'),
     maxWarnings,
     quiet: args.flags.has('quiet'),
+    images: !args.flags.has('no-images'),
   };
 }
 
@@ -126,9 +134,10 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   const selection = selectFiles(mapping.value, io.cwd, request.paths);
   const notes: string[] = [];
   const progress = startProgress(io, selection.files.length, request.fix ? 'fixing' : 'linting');
+  const images = new ImageFacts();
   const files: LintedFile[] = selection.errors.map((e) => ({ path: e.path, error: e.message, fixed: 0 }));
   for (const path of selection.files) {
-    files.push(lintFile(path, mapping.value, request, notes, io.cwd));
+    files.push(await lintFile(path, mapping.value, request, images, notes, io.cwd));
     progress.tick(files.length);
   }
   progress.done();

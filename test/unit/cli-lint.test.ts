@@ -384,3 +384,26 @@ describe('diskwise lint: progress line', () => {
     }
   });
 });
+
+describe('diskwise lint: image files', () => {
+  const files = {
+    'diskwise.yaml': 'version: 1\ninclude: ["*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size", image: "$.file" } }\n',
+    'vm.yaml': 'drives:\n  - { size: 20G, file: images/absent.qcow2 }\n',
+  };
+
+  it(`${CONTRACT} a named image that is not there is an image-unreadable error; --no-images skips reading images`, async () => {
+    const dir = makeWorkspace(files);
+    try {
+      const run = await lintIn(dir, ['--format', 'json']);
+      assert.equal(run.code, 1);
+      const finding = json(run).files[0]?.findings.find((f) => f.rule === 'image-unreadable');
+      assert.equal(finding?.severity, 'error');
+      assert.equal(finding?.pointer, '/drives/0/file');
+      const skipped = await lintIn(dir, ['--format', 'json', '--no-images']);
+      assert.equal(skipped.code, 0);
+      assert.ok(!json(skipped).files[0]?.findings.some((f) => f.rule.startsWith('image-')));
+    } finally {
+      removeWorkspace(dir);
+    }
+  });
+});
