@@ -246,8 +246,8 @@ export async function readHeader(source: ByteSource): Promise<Qcow2Header> {
     const name = backingOffset + BigInt(length) <= BigInt(first.length)
       ? first.subarray(Number(backingOffset), Number(backingOffset) + length)
       : await readExact(source, backingOffset, length, 'backing file name');
-    backingFile = decode(name);
-    if (backingFile === '') throw new ImageError('malformed', 'the backing file name is empty');
+    // An empty name names nothing: the image reads as if it had no backing file.
+    backingFile = length === 0 ? null : decode(name);
   }
 
   return {

@@ -102,6 +102,13 @@ describe('malformed images', function () {
     await expectError(damaged((b) => { b.writeBigUInt64BE(512n, 8); b.writeUInt32BE(1024, 16); }), 'malformed', /backing file name is 1024 bytes long; the format allows at most 1023/);
   });
 
+  it('an empty backing file name names nothing [SPEC: backing_file_size]', async () => {
+    const path = damaged((b) => { b.writeBigUInt64BE(512n, 8); b.writeUInt32BE(0, 16); });
+    const report = await inspectImage(path);
+    assert.equal(report.error, undefined);
+    assert.equal(report.backing, null);
+  });
+
   it('two L1 entries sharing one L2 table (bounded work, not a loop of rereads)', async () => {
     await expectError(damaged((b, i) => { b.writeBigUInt64BE(BigInt(i.l2Tables.get(0)!), i.l1Offset + 8); }), 'malformed', /L2 table of L1 entry 1 .* same place as the L2 table of L1 entry 0/);
   });
