@@ -3,7 +3,7 @@
 // which that reader does not support: those images are checked here against the bit layout the
 // specification gives for extended L2 entries).
 import { strict as assert } from 'node:assert';
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { FileByteSource, inspectImage, readHeader } from '../../src/image';
 import { tempFolder } from './helpers';
 import { writeImage, type ClusterSpec, type ImageSpec } from './qcow2-writer';
@@ -79,6 +79,41 @@ describe('image reader against the writer ground truth', function () {
       assert.equal(report.dirty, true);
       assert.equal(report.chain.length, 1);
       assert.equal(report.chain[0]!.error, undefined);
+    });
+  });
+
+  describe('feature bits [SPEC "incompatible_features"]', () => {
+    const patched = (spec: ImageSpec, patch: (b: Buffer, image: ReturnType<typeof writeImage>) => void): string => {
+      const image = write(spec);
+      const bytes = readFileSync(image.path);
+      patch(bytes, image);
+      writeFileSync(image.path, bytes);
+      return image.path;
+    };
+
+    it('bit 1 corrupt, bit 3 compression type with compression_type 1 (zstd)', async () => {
+      const path = patched({ version: 3, clusterBits: 16, virtualSize: GiB, clusters: [], extraIncompatible: (1n << 1n) | (1n << 3n) }, (b) => { b[104] = 1; });
+      const report = await inspectImage(path);
+      assert.equal(report.error, undefined, report.error);
+      assert.equal(report.corrupt, true);
+      assert.equal(report.compressionType, 'zstd');
+    });
+
+    it('bit 3 without a compression type is malformed', async () => {
+      const path = write({ version: 3, clusterBits: 16, virtualSize: GiB, clusters: [], extraIncompatible: 1n << 3n }).path;
+      assert.match((await inspectImage(path)).error!, /compression type feature bit is set but the compression_type field is missing or zero/);
+    });
+
+    it('bit 2 external data file: the name from its extension, data offsets not held to this file', async () => {
+      const path = patched(
+        { version: 3, clusterBits: 16, virtualSize: GiB, clusters: [{ guest: 0, kind: 'data' }], extraIncompatible: 1n << 2n, unknownExtensions: [{ type: 0x44415441, data: new TextEncoder().encode('root.data') }] },
+        // [SPEC] with an external data file the host offset is the guest offset, anywhere in that file
+        (b, image) => { b.writeBigUInt64BE((1n << 63n) | (1n << 40n), image.l2Tables.get(0)!); },
+      );
+      const report = await inspectImage(path);
+      assert.equal(report.error, undefined, report.error);
+      assert.equal(report.externalDataFile, 'root.data');
+      assert.equal(report.dataClustersAllocated, 1);
     });
   });
 
