@@ -19,6 +19,10 @@ if (existsSync('webview/main.ts')) {
   targets.push({ ...common, entryPoints: ['webview/main.ts'], outfile: 'dist/webview.js',
     platform: 'browser', format: 'iife' });
 }
+if (existsSync('webview/imageViewer/main.ts')) {
+  targets.push({ ...common, entryPoints: ['webview/imageViewer/main.ts'], outfile: 'dist/imageViewer.js',
+    platform: 'browser', format: 'iife' });
+}
 if (watch) {
   for (const t of targets) await (await esbuild.context(t)).watch();
 } else {

@@ -13,6 +13,7 @@ import { panelView } from './panelView';
 import { CacheStatus } from './statusBar';
 import { proposeMapping } from './starterProposal';
 import { whatIfEdit } from './whatIfEdits';
+import { registerImageViewer } from './imageViewer';
 import type { WhatIfValues } from '../../webview/protocol';
 
 /** What the extension exports: read by the integration tests, useful to other extensions. */
@@ -155,6 +156,8 @@ export function activate(context: vscode.ExtensionContext): DiskwiseApi {
     vscode.commands.registerCommand('diskwise.createStarterMapping', (options?: { confirm?: boolean }) =>
       createStarterMapping(linting, activeDocument(), options?.confirm !== false)),
   );
+
+  registerImageViewer(context);
 
   const ready = linting.start().then(() => followEditor(vscode.window.activeTextEditor));
 

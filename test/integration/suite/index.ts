@@ -8,6 +8,7 @@ const testFiles: Array<() => unknown> = [
   () => require('./activation.test'),
   () => require('./diagnostics.test'),
   () => require('./mapping-and-commands.test'),
+  () => require('./imageViewer.test'),
 ];
 
 export function run(): Promise<void> {

@@ -1,0 +1,183 @@
+// The one message protocol between the image viewer's host and its webview. Both sides import this
+// module, so a message's shape cannot drift between them. Pure: no DOM, no vscode, no fs.
+// Byte counts are bigint and travel as tagged strings (the panel's codec), so no size is ever
+// rounded through a float on the way.
+import { fromWire, toWire } from '../../../webview/protocol';
+import type { ImageErrorKind } from '../../image/errors';
+
+/** Where the viewer is with one image. */
+export type ViewState =
+  /** Headers read, the table walk is running. */
+  | 'reading'
+  /** Every layer read and walked. */
+  | 'done'
+  /** The walk was stopped; header facts stay, walk counts are missing from the stopped layer on. */
+  | 'cancelled'
+  /** The image or a backing layer could not be read (the layer says why). */
+  | 'failed'
+  /** The workspace is not trusted: no image is read until it is. */
+  | 'untrusted';
+
+export interface WalkProgressView {
+  /** 0 for the image opened, 1.. for backing layers, nearest first. */
+  layer: number;
+  path: string;
+  l1Done: number;
+  l1Total: number;
+  l2TablesRead: number;
+}
+
+/** One cache choice for one layer, as the engine's layerCache sizes it. */
+export interface CacheChoiceView {
+  /** The L2 cache to set (whole cache entries, at least the driver's minimum, at most full coverage). */
+  l2: bigint;
+  /** Guest bytes that L2 cache maps. */
+  l2Covered: bigint;
+  refcount: bigint;
+  /** Host bytes that refcount cache covers at this image's refcount width. */
+  refcountCovered: bigint;
+}
+
+export interface LayerCachesView {
+  /** Holds every L2 table allocated now (l2AllocatedCoverage); absent until the walk has counted them. */
+  now?: CacheChoiceView;
+  /** Maps the whole virtual disk (l2FullCoverage): what the image needs once fully allocated. */
+  full: CacheChoiceView;
+  /** What the driver picks when nothing is set, under the profile named in the view. */
+  driverDefault: CacheChoiceView;
+}
+
+export interface LayerFactsView {
+  version: 2 | 3;
+  virtualSize: bigint;
+  clusterSize: bigint;
+  extendedL2: boolean;
+  /** Extended L2 only: cluster size / 32. */
+  subclusterSize: bigint | null;
+  refcountBits: number;
+  dirty: boolean;
+  corrupt: boolean;
+  externalDataFile: string | null;
+  encryption: string;
+  compressionType: string;
+  l1Entries: number;
+  backing: string | null;
+  backingFormat: string | null;
+}
+
+export interface LayerWalkView {
+  l2TablesAllocated: number;
+  dataClusters: number;
+  standardClusters: number;
+  compressedClusters: number;
+  zeroClusters: number;
+  /** Extended L2 only. */
+  subclustersAllocated: number | null;
+  subclustersZero: number | null;
+  /** Guest bytes stored in this layer. */
+  allocatedBytes: bigint;
+  l2AllocatedCoverage: bigint;
+  /** Per region of the virtual disk, 0..1 (from the walk). */
+  allocation: { regionBytes: bigint; data: number[]; zero: number[] };
+  warnings: string[];
+}
+
+export interface LayerView {
+  index: number;
+  path: string;
+  /** The backing name as the layer above writes it; null for the image opened. */
+  name: string | null;
+  format: string;
+  /** qcow2 layers whose header could be read. */
+  facts: LayerFactsView | null;
+  /** qcow2 layers whose tables were walked. */
+  walk: LayerWalkView | null;
+  l2FullCoverage: bigint | null;
+  caches: LayerCachesView | null;
+  error?: { kind: ImageErrorKind; message: string };
+}
+
+export interface ChainMemoryView {
+  /** Sum over the sized layers of L2 + refcount cache, per choice. */
+  now: bigint | null;
+  full: bigint;
+  driverDefault: bigint;
+  /** qcow2 layers with numbers, of all layers in the chain. */
+  layersSized: number;
+  layersTotal: number;
+}
+
+export interface ImageView {
+  /** Grows by one with every view of one document; the webview echoes it when drawn. */
+  seq: number;
+  uri: string;
+  path: string;
+  fileName: string;
+  state: ViewState;
+  /** A sentence for the state line (why it stopped, what failed, what to do). */
+  status: string;
+  progress: WalkProgressView | null;
+  /** The image first, then its backing files, nearest first. */
+  layers: LayerView[];
+  memory: ChainMemoryView | null;
+  /** The driver-default profile the numbers assume. */
+  profile: string;
+  cautions: string[];
+}
+
+/** What the webview drew, echoed so a test can check the picture matches the model. */
+export interface DrawnSummary {
+  state: ViewState;
+  layers: number;
+  /** Regions drawn in the allocation pictures, summed over layers. */
+  mapRegions: number;
+  /** Rows in the recommended-caches table. */
+  cacheRows: number;
+  progressShown: boolean;
+}
+
+export type ViewerHostMessage =
+  | { type: 'view'; view: ImageView }
+  | { type: 'progress'; seq: number; progress: WalkProgressView };
+
+export type ViewerWebviewMessage =
+  | { type: 'ready' }
+  | { type: 'rendered'; seq: number; drawn: DrawnSummary }
+  | { type: 'stop' }
+  | { type: 'reread' };
+
+const HOST_TYPES = new Set<ViewerHostMessage['type']>(['view', 'progress']);
+const WEBVIEW_TYPES = new Set<ViewerWebviewMessage['type']>(['ready', 'rendered', 'stop', 'reread']);
+
+function typeOf(value: unknown): unknown {
+  return value !== null && typeof value === 'object' ? (value as { type?: unknown }).type : undefined;
+}
+
+export function decodeViewerHostMessage(raw: unknown): ViewerHostMessage | undefined {
+  const value = fromWire(raw);
+  return HOST_TYPES.has(typeOf(value) as ViewerHostMessage['type']) ? (value as ViewerHostMessage) : undefined;
+}
+
+export function decodeViewerWebviewMessage(raw: unknown): ViewerWebviewMessage | undefined {
+  const value = fromWire(raw);
+  return WEBVIEW_TYPES.has(typeOf(value) as ViewerWebviewMessage['type']) ? (value as ViewerWebviewMessage) : undefined;
+}
+
+export const encodeViewerMessage = (message: ViewerHostMessage | ViewerWebviewMessage): unknown => toWire(message);
+
+/** The test hook's answer travels the same way (commands may serialise their results). */
+export const encodeSnapshot = (snapshot: ViewerSnapshot): unknown => toWire(snapshot);
+export const decodeSnapshot = (raw: unknown): ViewerSnapshot | undefined => {
+  const value = fromWire(raw);
+  return value !== null && typeof value === 'object' && 'view' in value ? (value as ViewerSnapshot) : undefined;
+};
+
+/** The last view a webview drew for one image, with what it drew. */
+export interface ViewerSnapshot {
+  view: ImageView;
+  drawn: DrawnSummary;
+  /** Views the host posted for this document, including superseded ones. */
+  viewsPosted: number;
+  /** Progress reports the host received from the walk. */
+  progressReports: number;
+}

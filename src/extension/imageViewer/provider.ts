@@ -1,0 +1,137 @@
+// The read-only custom editor for qcow2 images: one ImageDocument per file, any number of webviews
+// on it. The webview gets a strict content security policy (the extension's own resources only,
+// its script by nonce) and talks to the host only through ./protocol.
+import { randomBytes } from 'node:crypto';
+import * as vscode from 'vscode';
+import { ImageDocument } from './document';
+import {
+  decodeViewerWebviewMessage, encodeViewerMessage, type ViewerHostMessage, type ViewerSnapshot,
+} from './protocol';
+
+export const IMAGE_VIEW_TYPE = 'diskwise.qcow2Image';
+
+export class ImageViewerProvider implements vscode.CustomReadonlyEditorProvider<ImageDocument> {
+  private readonly documents = new Set<ImageDocument>();
+  /** The document of the webview that was active last, for the stop/reread commands. */
+  private active: ImageDocument | undefined;
+  /** Documents whose next walk stops at its first progress report (tests), by URI. */
+  private readonly stopArmed = new Set<string>();
+
+  constructor(private readonly extensionUri: vscode.Uri) {}
+
+  openCustomDocument(uri: vscode.Uri, _context: vscode.CustomDocumentOpenContext, token: vscode.CancellationToken): ImageDocument {
+    const document = new ImageDocument(uri);
+    // The editor gave up opening it (closed at once, another editor chosen): stop the walk too.
+    token.onCancellationRequested(() => document.stop());
+    this.documents.add(document);
+    document.onDidDispose(() => {
+      this.documents.delete(document);
+      if (this.active === document) this.active = undefined;
+    });
+    if (this.stopArmed.delete(uri.toString())) document.armStopAtFirstProgress();
+    // Reading starts at once and never holds up the editor: the webview shows the walk as it runs.
+    void document.read();
+    return document;
+  }
+
+  resolveCustomEditor(document: ImageDocument, panel: vscode.WebviewPanel): void {
+    const roots = [vscode.Uri.joinPath(this.extensionUri, 'dist'), vscode.Uri.joinPath(this.extensionUri, 'media')];
+    panel.webview.options = { enableScripts: true, localResourceRoots: roots };
+    panel.webview.html = this.html(panel.webview);
+    const post = (message: ViewerHostMessage): void => void panel.webview.postMessage(encodeViewerMessage(message));
+    const subscriptions: vscode.Disposable[] = [
+      document.listen({
+        view: (view) => post({ type: 'view', view }),
+        progress: (seq, progress) => post({ type: 'progress', seq, progress }),
+      }),
+      panel.webview.onDidReceiveMessage((raw: unknown) => {
+        const message = decodeViewerWebviewMessage(raw);
+        if (!message) return;
+        switch (message.type) {
+          case 'ready':
+            post({ type: 'view', view: document.current });
+            break;
+          case 'rendered':
+            // Only the newest view counts: an older one drawn late says nothing about the current one.
+            if (message.seq === document.current.seq) document.lastDrawn = { view: document.current, drawn: message.drawn };
+            break;
+          case 'stop':
+            document.stop();
+            break;
+          case 'reread':
+            void document.reread();
+            break;
+        }
+      }),
+      panel.onDidChangeViewState(() => {
+        if (panel.active) this.active = document;
+      }),
+    ];
+    if (panel.active) this.active = document;
+    this.active ??= document;
+    panel.onDidDispose(() => {
+      for (const s of subscriptions) s.dispose();
+    });
+  }
+
+  private find(uri?: string): ImageDocument | undefined {
+    if (uri === undefined) return this.active;
+    return [...this.documents].find((d) => d.uri.toString() === uri);
+  }
+
+  /** Test hook: what the webview drew last for an image (the active one when no URI is given). */
+  snapshot(uri?: string): ViewerSnapshot | undefined {
+    const document = this.find(uri);
+    if (!document || !document.lastDrawn) return undefined;
+    return { ...document.lastDrawn, viewsPosted: document.viewsPosted, progressReports: document.progressReports };
+  }
+
+  stop(uri?: string): boolean {
+    const document = this.find(uri);
+    if (!document || !document.reading) return false;
+    document.stop();
+    return true;
+  }
+
+  reread(uri?: string): Promise<void> | undefined {
+    return this.find(uri)?.reread();
+  }
+
+  armStop(uri: string): void {
+    const open = this.find(uri);
+    if (open) open.armStopAtFirstProgress();
+    else this.stopArmed.add(uri);
+  }
+
+  /** The workspace was trusted after images were opened: read them now. */
+  readUntrusted(): void {
+    for (const document of this.documents) if (document.current.state === 'untrusted') void document.read();
+  }
+
+  private html(webview: vscode.Webview): string {
+    const nonce = randomBytes(16).toString('base64');
+    const script = webview.asWebviewUri(vscode.Uri.joinPath(this.extensionUri, 'dist', 'imageViewer.js'));
+    const style = webview.asWebviewUri(vscode.Uri.joinPath(this.extensionUri, 'media', 'imageViewer.css'));
+    const csp = [
+      "default-src 'none'",
+      `img-src ${webview.cspSource}`,
+      `font-src ${webview.cspSource}`,
+      `style-src ${webview.cspSource}`,
+      `script-src 'nonce-${nonce}'`,
+    ].join('; ');
+    return `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="UTF-8">
+<meta http-equiv="Content-Security-Policy" content="${csp}">
+<meta name="viewport" content="width=device-width, initial-scale=1.0">
+<link rel="stylesheet" href="${style.toString()}">
+<title>qcow2 image</title>
+</head>
+<body>
+<main id="root" aria-live="polite"><p class="muted">Reading the image header…</p></main>
+<script nonce="${nonce}" src="${script.toString()}"></script>
+</body>
+</html>`;
+  }
+}

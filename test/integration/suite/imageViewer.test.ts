@@ -1,0 +1,234 @@
+// The qcow2 image viewer inside the real extension host: it opens images as a read-only custom
+// editor, its webview draws the model the host computed, and the files are never written.
+// Images come from the test writer (test/image/qcow2-writer.ts, built from the qcow2 specification
+// and checked against an independent reader in test/image/libqcow.test.ts), so every expected count
+// is the writer's own ground truth; expected cache sizes are worked from FACTS.md's formulas and
+// named sources beside each check.
+import * as assert from 'node:assert/strict';
+import { createHash } from 'node:crypto';
+import { mkdtempSync, readFileSync, statSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import * as path from 'node:path';
+import * as vscode from 'vscode';
+import { writeImage, type ClusterSpec, type WrittenImage } from '../../image/qcow2-writer';
+import { decodeSnapshot, type ImageView, type ViewerSnapshot } from '../../../src/extension/imageViewer/protocol';
+import { api, demoFile, waitFor } from './helpers';
+
+const VIEW_TYPE = 'diskwise.qcow2Image';
+const KiB = 1024n;
+const MiB = 1024n * KiB;
+const GiB = 1024n * MiB;
+
+const sha256 = (file: string): string => createHash('sha256').update(readFileSync(file)).digest('hex');
+
+async function snapshot(uri: vscode.Uri): Promise<ViewerSnapshot | undefined> {
+  return decodeSnapshot(await vscode.commands.executeCommand('diskwise.imageViewer.lastView', uri.toString()));
+}
+
+/** Opens the image in the viewer and waits until the webview has drawn a finished view of it. */
+async function openImage(file: string, until: (view: ImageView) => boolean = (v) => v.state !== 'reading'): Promise<ViewerSnapshot> {
+  const uri = vscode.Uri.file(file);
+  await vscode.commands.executeCommand('vscode.openWith', uri, VIEW_TYPE);
+  return waitFor(`the viewer to draw ${path.basename(file)}`, async () => {
+    const shot = await snapshot(uri);
+    return shot && until(shot.view) ? shot : undefined;
+  }, 20_000);
+}
+
+describe('qcow2 image viewer', () => {
+  let dir: string;
+  let plain: WrittenImage;
+  const plainClusters: ClusterSpec[] = [
+    // 64 KiB clusters with 8-byte entries: 8192 entries per L2 table [SPEC], so these fall into the
+    // tables of L1 entries 0, 2 and 5.
+    { guest: 0, kind: 'data' },
+    { guest: 1, kind: 'data' },
+    { guest: 3, kind: 'compressed' },
+    { guest: 4, kind: 'zero' },
+    { guest: 2 * 8192 + 10, kind: 'data' },
+    { guest: 5 * 8192 + 1, kind: 'zero' },
+    { guest: 5 * 8192 + 2, kind: 'data' },
+  ];
+
+  before(async () => {
+    await api();
+    dir = mkdtempSync(path.join(tmpdir(), 'diskwise-viewer-'));
+    plain = writeImage(path.join(dir, 'plain.qcow2'), { version: 3, clusterBits: 16, virtualSize: 8n * GiB, clusters: plainClusters });
+  });
+
+  afterEach(async () => {
+    await vscode.commands.executeCommand('workbench.action.closeAllEditors');
+  });
+
+  it('opens a qcow2 image read-only in its own editor and leaves its bytes unchanged', async () => {
+    const before = sha256(plain.path);
+    const mtime = statSync(plain.path).mtimeMs;
+    await openImage(plain.path);
+    const tab = vscode.window.tabGroups.activeTabGroup.activeTab;
+    assert.ok(tab?.input instanceof vscode.TabInputCustom, 'the active tab is a custom editor');
+    assert.equal(tab.input.viewType, VIEW_TYPE);
+    assert.equal(tab.isDirty, false);
+    // Saving a read-only custom editor has nothing to write.
+    await vscode.commands.executeCommand('workbench.action.files.save');
+    assert.ok(!vscode.workspace.textDocuments.some((d) => d.uri.fsPath === plain.path), 'the image is not opened as a text document');
+    await vscode.commands.executeCommand('workbench.action.closeAllEditors');
+    assert.equal(sha256(plain.path), before, 'the file\'s bytes are unchanged');
+    assert.equal(statSync(plain.path).mtimeMs, mtime, 'the file was not touched');
+  });
+
+  it('shows the header facts, the walk counts and the allocation picture', async () => {
+    const { view, drawn } = await openImage(plain.path);
+    assert.equal(view.state, 'done');
+    const [top] = view.layers;
+    assert.ok(top?.facts && top.walk);
+    assert.equal(top.facts.version, 3);
+    assert.equal(top.facts.virtualSize, 8n * GiB);
+    assert.equal(top.facts.clusterSize, 64n * KiB); // cluster_bits 16 [SPEC]
+    assert.equal(top.facts.extendedL2, false);
+    assert.equal(top.facts.refcountBits, 16); // refcount_order 4 [SPEC]
+    assert.equal(top.facts.dirty, false);
+    assert.equal(top.facts.corrupt, false);
+    assert.equal(top.facts.l1Entries, plain.l1Entries);
+    assert.equal(top.walk.l2TablesAllocated, plain.truth.l2TablesAllocated);
+    assert.equal(top.walk.l2TablesAllocated, 3);
+    assert.equal(top.walk.dataClusters, plain.truth.dataClustersAllocated);
+    assert.equal(top.walk.compressedClusters, plain.truth.compressedClusters);
+    assert.equal(top.walk.zeroClusters, plain.truth.zeroClusters);
+    assert.equal(top.walk.standardClusters, plain.truth.dataClustersAllocated - plain.truth.compressedClusters);
+    // The picture: every region the model has was drawn, and the first region holds data.
+    assert.equal(drawn.state, 'done');
+    assert.equal(drawn.mapRegions, top.walk.allocation.data.length);
+    assert.ok(drawn.mapRegions > 1);
+    assert.ok((top.walk.allocation.data[0] ?? 0) > 0);
+    assert.ok(top.walk.allocation.zero.some((share) => share > 0), 'zero clusters show in the map');
+    assert.equal(drawn.progressShown, false);
+  });
+
+  it('recommends the L2 cache for the allocated tables now and full coverage once fully allocated', async () => {
+    const { view, drawn } = await openImage(plain.path);
+    const caches = view.layers[0]?.caches;
+    assert.ok(caches?.now);
+    // One L2 table is one cluster [SPEC]: 3 allocated tables take 3 x 64 KiB.
+    assert.equal(caches.now.l2, 192n * KiB);
+    // FACTS.md check values (common practice): 8 GiB with 64 KiB clusters needs a 1 MiB L2 cache.
+    assert.equal(caches.full.l2, 1n * MiB);
+    assert.equal(caches.full.l2Covered, 8n * GiB);
+    // [CACHE] the refcount cache defaults to 4 clusters; 256 KiB with 16-bit refcounts covers 8 GiB.
+    assert.equal(caches.full.refcount, 256n * KiB);
+    assert.equal(caches.full.refcountCovered, 8n * GiB);
+    // [CACHE] the current driver on Linux: up to 32 MiB, never above full coverage.
+    assert.equal(caches.driverDefault.l2, 1n * MiB);
+    assert.ok(view.memory);
+    assert.equal(view.memory.now, 192n * KiB + 256n * KiB);
+    assert.equal(view.memory.full, 1n * MiB + 256n * KiB);
+    assert.equal(view.memory.layersSized, 1);
+    assert.equal(drawn.cacheRows, 2, 'one row for the layer and one for the chain\'s total');
+    // FACTS.md cautions: reopen, host memory per layer, fixed at creation, for review.
+    assert.equal(view.cautions.length, 4);
+    assert.ok(view.cautions.some((c) => /opened/.test(c)));
+    assert.ok(view.cautions.some((c) => /per backing layer/.test(c)));
+  });
+
+  it('sizes every layer of a backing chain with its own cluster size and sums the memory', async () => {
+    const base = writeImage(path.join(dir, 'chain-base.qcow2'), { version: 3, clusterBits: 20, virtualSize: 4n * GiB, clusters: [{ guest: 0, kind: 'data' }], seed: 2 });
+    const overlay = writeImage(path.join(dir, 'chain-top.qcow2'), {
+      version: 3, clusterBits: 16, virtualSize: 4n * GiB, backing: { name: 'chain-base.qcow2', format: 'qcow2' },
+      clusters: [{ guest: 7, kind: 'data' }],
+    });
+    const { view, drawn } = await openImage(overlay.path);
+    assert.equal(view.state, 'done');
+    assert.equal(view.layers.length, 2);
+    const [top, back] = view.layers;
+    assert.equal(top?.facts?.clusterSize, 64n * KiB);
+    assert.equal(top?.facts?.backing, 'chain-base.qcow2');
+    assert.equal(top?.facts?.backingFormat, 'qcow2');
+    assert.equal(back?.path, base.path, 'the backing name resolves relative to the image\'s folder');
+    assert.equal(back?.name, 'chain-base.qcow2');
+    assert.equal(back?.facts?.clusterSize, 1n * MiB);
+    assert.equal(back?.walk?.l2TablesAllocated, base.truth.l2TablesAllocated);
+    // Overlay [CACHE]: 4 GiB / 64 KiB x 8 B = 512 KiB full coverage; refcount 4 x 64 KiB.
+    assert.equal(top?.caches?.full.l2, 512n * KiB);
+    // Base [CACHE]: 4 GiB / 1 MiB x 8 B = 32 KiB of entries, one whole 1 MiB table, but the L2 cache
+    // holds at least 2 entries (2 MiB); the refcount cache at least 4 clusters (4 MiB).
+    assert.equal(back?.caches?.full.l2, 2n * MiB);
+    assert.equal(back?.caches?.full.refcount, 4n * MiB);
+    // Each layer has its own caches; the chain costs their sum [CACHE].
+    assert.equal(view.memory?.full, 512n * KiB + 256n * KiB + 2n * MiB + 4n * MiB);
+    assert.equal(view.memory?.layersSized, 2);
+    assert.equal(drawn.layers, 2);
+    assert.equal(drawn.cacheRows, 3);
+  });
+
+  it('shows a missing backing file plainly', async () => {
+    const lost = writeImage(path.join(dir, 'lost-backing.qcow2'), {
+      version: 3, clusterBits: 16, virtualSize: 1n * GiB, backing: { name: 'no-such-base.qcow2', format: 'qcow2' },
+      clusters: [{ guest: 0, kind: 'data' }],
+    });
+    const { view, drawn } = await openImage(lost.path);
+    assert.equal(view.state, 'failed');
+    assert.equal(drawn.state, 'failed');
+    const missing = view.layers[1];
+    assert.equal(missing?.error?.kind, 'missing');
+    assert.match(missing?.error?.message ?? '', /no-such-base\.qcow2/);
+    assert.match(view.status, /Backing layer 1 could not be read \(missing\)/);
+    // The image itself was still read and sized.
+    assert.equal(view.layers[0]?.walk?.l2TablesAllocated, lost.truth.l2TablesAllocated);
+    assert.equal(view.memory?.layersSized, 1);
+    assert.equal(view.memory?.layersTotal, 2);
+  });
+
+  it('counts subclusters of an extended L2 image', async () => {
+    const ext = writeImage(path.join(dir, 'extended.qcow2'), {
+      version: 3, clusterBits: 16, virtualSize: 1n * GiB, extendedL2: true,
+      clusters: [{ guest: 3, kind: 'data', allocatedMask: 0x0000ffff, zeroMask: 0xffff0000 }],
+    });
+    const { view } = await openImage(ext.path);
+    const top = view.layers[0];
+    assert.equal(top?.facts?.extendedL2, true);
+    // [SPEC] extended L2: 32 subclusters per cluster.
+    assert.equal(top?.facts?.subclusterSize, 2n * KiB);
+    assert.equal(top?.walk?.subclustersAllocated, ext.truth.subclustersAllocated);
+    assert.equal(top?.walk?.subclustersZero, ext.truth.subclustersZero);
+    // FACTS.md: 16-byte entries; 1 GiB / 64 KiB x 16 B = 256 KiB.
+    assert.equal(top?.caches?.full.l2, 256n * KiB);
+  });
+
+  it('reports progress, stops mid-walk and reads again on request', async () => {
+    // 512-byte clusters: 64 entries per L2 table [SPEC], so 64 MiB takes 2,048 tables, one data
+    // cluster each: a walk long enough to report progress before it ends.
+    const many = writeImage(path.join(dir, 'many-tables.qcow2'), {
+      version: 3, clusterBits: 9, virtualSize: 64n * MiB, writeData: false,
+      clusters: Array.from({ length: 2048 }, (_, t) => ({ guest: t * 64, kind: 'data' as const })),
+    });
+    const uri = vscode.Uri.file(many.path);
+    await vscode.commands.executeCommand('diskwise.imageViewer.stopAtFirstProgress', uri.toString());
+    const stopped = await openImage(many.path);
+    assert.equal(stopped.view.state, 'cancelled');
+    assert.equal(stopped.drawn.state, 'cancelled');
+    assert.ok(stopped.progressReports >= 1, 'the walk reported progress');
+    assert.ok(stopped.view.progress && stopped.view.progress.l1Done < stopped.view.progress.l1Total, 'it stopped before the end of the L1 table');
+    assert.equal(stopped.view.layers[0]?.facts?.clusterSize, 512n, 'header facts stay after a stop');
+    assert.equal(stopped.view.layers[0]?.walk, null, 'the stopped layer has no walk counts');
+
+    await vscode.commands.executeCommand('diskwise.imageViewer.reread', uri.toString());
+    const done = await waitFor('the second read', async () => {
+      const shot = await snapshot(uri);
+      return shot?.view.state === 'done' ? shot : undefined;
+    }, 20_000);
+    assert.equal(done.view.layers[0]?.walk?.l2TablesAllocated, many.truth.l2TablesAllocated);
+    assert.equal(done.view.layers[0]?.walk?.l2TablesAllocated, 2048);
+    // 2,048 tables of one cluster each [SPEC].
+    assert.equal(done.view.layers[0]?.caches?.now?.l2, 2048n * 512n);
+  });
+
+  it('follows the demo fleet\'s overlay to its golden image', async () => {
+    const overlay = demoFile('images/tern-db-root.qcow2');
+    const before = sha256(overlay.fsPath);
+    const { view } = await openImage(overlay.fsPath);
+    assert.equal(view.state, 'done');
+    assert.equal(view.layers.length, 2);
+    assert.equal(path.basename(view.layers[1]?.path ?? ''), 'tern-golden.qcow2');
+    assert.ok(view.memory && view.memory.layersSized === 2);
+    assert.equal(sha256(overlay.fsPath), before);
+  });
+});
