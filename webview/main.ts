@@ -14,8 +14,8 @@ declare function acquireVsCodeApi(): VsCodeApi;
 // inlined by the bundler. Views that arrive before it is ready still render and upgrade in place.
 void import('@vscode/webview-ui-toolkit').then((toolkit) => {
   toolkit.provideVSCodeDesignSystem().register(
-    toolkit.vsCodeBadge(), toolkit.vsCodeButton(), toolkit.vsCodeDivider(), toolkit.vsCodeDropdown(),
-    toolkit.vsCodeLink(), toolkit.vsCodeOption(), toolkit.vsCodeTag(), toolkit.vsCodeTextField(),
+    toolkit.vsCodeButton(), toolkit.vsCodeDivider(), toolkit.vsCodeDropdown(), toolkit.vsCodeLink(),
+    toolkit.vsCodeOption(), toolkit.vsCodeTextField(),
   );
 });
 

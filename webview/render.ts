@@ -106,7 +106,9 @@ function findingList(findings: FindingView[], actions: PanelActions): HTMLElemen
   for (const finding of findings) {
     const item = el('li', `finding severity-${finding.severity}${finding.suppressed ? ' suppressed' : ''}`);
     item.dataset.rule = finding.rule;
-    const tag = custom('vscode-tag', { class: 'rule' }, finding.rule);
+    // Plain elements rather than the toolkit's tag/badge, whose templates write style attributes
+    // that the panel's content security policy refuses.
+    const tag = el('span', 'rule', finding.rule);
     const message = el('button', 'finding-message', finding.message);
     message.type = 'button';
     message.title = `${finding.severity} at line ${finding.range.line}, column ${finding.range.column}${finding.fixTitle ? ` — fix: ${finding.fixTitle}` : ''}`;
@@ -128,7 +130,7 @@ function diskRows(disk: DiskView, sizing: SizingReport, entrySize: bigint, was?:
     { field: 'virtualSize', label: 'Virtual size', value: sizing.virtualSize, kind: 'size' },
     { field: 'clusterSize', label: 'Cluster size', value: sizing.clusterSize, was: was?.sizing.clusterSize, kind: 'size' },
     { field: 'l2EntryBytes', label: 'L2 entry', value: `${sizing.l2EntryBytes} B${disk.extendedL2 ? ' (extended L2)' : ''}`, kind: 'text' },
-    { field: 'entrySize', label: 'Cache entry', value: `${formatSize(entrySize)}${wholeTable ? ' (whole L2 table)' : ' (slice)'}`, was: was ? `${formatSize(was.entrySize)}` : undefined, kind: 'text' },
+    { field: 'entrySize', label: 'Cache entry', value: `${formatSize(entrySize)}${wholeTable ? ' (whole L2 table)' : ' (slice)'}`, was: was && was.entrySize !== entrySize ? `${formatSize(was.entrySize)}` : undefined, kind: 'text' },
     { field: 'l2FullCoverage', label: 'L2 cache for full coverage', value: sizing.l2FullCoverage, was: was?.sizing.l2FullCoverage, kind: 'size', hint: 'One 8-byte (16 with extended L2) entry per cluster of the virtual disk, in whole cache entries' },
     { field: 'l2Configured', label: 'Configured L2 cache', value: l2Text(configuredL2), was: wasConfiguredL2 !== configuredL2 ? l2Text(wasConfiguredL2) : undefined, kind: configuredL2 === undefined ? 'text' : 'size' },
     { field: 'l2Effective', label: 'Effective L2 cache', value: sizing.l2Effective, was: was?.sizing.l2Effective, kind: 'size', hint: 'What the driver really uses: configured, else its default, never above full coverage' },
@@ -231,7 +233,11 @@ function diskCard(view: PanelView, disk: DiskView, state: WhatIfState, actions: 
   title.addEventListener('click', (event) => { event.preventDefault(); actions.reveal(disk); });
   head.append(title);
   const active = disk.findings.filter((f) => !f.suppressed);
-  if (active.length > 0) head.append(custom('vscode-badge', { class: 'finding-count', title: `${active.length} finding(s)` }, String(active.length)));
+  if (active.length > 0) {
+    const count = el('span', 'finding-count', String(active.length));
+    count.title = `${active.length} finding${active.length > 1 ? 's' : ''}`;
+    head.append(count);
+  }
   const toggle = custom('vscode-button', { appearance: 'icon', class: 'whatif-toggle', 'data-action': 'whatif', title: 'Try other values' }, 'What if…');
   const open = state.has(disk.pointer);
   toggle.addEventListener('click', () => {

@@ -45,7 +45,8 @@ export function activate(context: vscode.ExtensionContext): DiskwiseApi {
     const visible = vscode.window.visibleTextEditors.find((e) => e.document.uri.toString() === uri.toString());
     const editor = await vscode.window.showTextDocument(document, { viewColumn: visible?.viewColumn ?? vscode.ViewColumn.One, preserveFocus: false });
     const at = toRange(range);
-    editor.selection = new vscode.Selection(at.start, at.end);
+    // The cursor goes to the first line of the disk; the whole disk is scrolled into view.
+    editor.selection = new vscode.Selection(at.start, at.start);
     editor.revealRange(at, vscode.TextEditorRevealType.InCenterIfOutsideViewport);
   };
 

@@ -115,7 +115,8 @@ export class SizingPanel implements vscode.Disposable {
       "default-src 'none'",
       `img-src ${webview.cspSource}`,
       `font-src ${webview.cspSource}`,
-      `style-src ${webview.cspSource}`,
+      // The toolkit probes the browser with a <style> element it tags with the page's nonce.
+      `style-src ${webview.cspSource} 'nonce-${nonce}'`,
       `script-src 'nonce-${nonce}'`,
     ].join('; ');
     return `<!DOCTYPE html>
@@ -123,6 +124,7 @@ export class SizingPanel implements vscode.Disposable {
 <head>
 <meta charset="UTF-8">
 <meta http-equiv="Content-Security-Policy" content="${csp}">
+<meta property="csp-nonce" content="${nonce}">
 <meta name="viewport" content="width=device-width, initial-scale=1.0">
 <link rel="stylesheet" href="${style.toString()}">
 <title>diskwise: cache sizing</title>

@@ -4,7 +4,7 @@
 // Prints mocha's report and exits with the runner's code. With no host installed it says what is
 // missing and how to install it, and skips (exit 0) unless CI=true, where that is a failure.
 import * as path from 'node:path';
-import { createWriteStream, existsSync } from 'node:fs';
+import { createWriteStream, existsSync, readFileSync, statSync } from 'node:fs';
 import { format } from 'node:util';
 import {
   ROOT, launchBrowser, makeRunDirs, missingHost, reportMissingHost, seedWorkspace, startCodeServer,
@@ -49,8 +49,17 @@ async function main(): Promise<number> {
   try {
     server = await startCodeServer(dirs);
     browser = await launchBrowser(dirs);
-    const work = ui ? runUiTest(server, browser, dirs) : runSuite(server, browser, dirs);
+    const started = browser;
+    const work = ui
+      ? runUiTest(server, browser, dirs).catch(async (err: unknown) => {
+        const shot = path.join(dirs.base, 'failure.png');
+        await started.page.screenshot({ path: shot }).catch(() => undefined);
+        console.error(`${what}: ${err instanceof Error ? err.message : String(err)} (screenshot ${path.relative(ROOT, shot)})`);
+        return 1;
+      })
+      : runSuite(server, browser, dirs);
     const code = await Promise.race([work, timeout]);
+    if (!ui) printPackageSize();
     if (browser.blocked.length > 0) {
       console.log(`${what}: refused ${browser.blocked.length} request(s) not addressed to 127.0.0.1:`);
       for (const url of [...new Set(browser.blocked)].slice(0, 10)) console.log(`  ${url}`);
@@ -85,6 +94,18 @@ async function runSuite(server: CodeServer, browser: Browser, dirs: ReturnType<t
   });
   await page.goto(workbenchUrl(server, dirs, { extensionPath: ROOT, testsPath: SUITE_BUNDLE }));
   return exited;
+}
+
+/** The packaged extension's size, for the performance summary (built by npm run package). */
+function printPackageSize(): void {
+  const manifest = JSON.parse(readFileSync(path.join(ROOT, 'package.json'), 'utf8')) as { name: string; version: string };
+  const vsix = path.join(ROOT, `${manifest.name}-${manifest.version}.vsix`);
+  if (existsSync(vsix)) {
+    const bytes = statSync(vsix).size;
+    console.log(`perf: .vsix size: ${(bytes / 1024).toFixed(1)} KiB (${bytes} bytes, ${path.basename(vsix)})`);
+  } else {
+    console.log('perf: .vsix size: not built (npm run package)');
+  }
 }
 
 main().then(

@@ -1,14 +1,267 @@
-// The UI test: drives the workbench's DOM in chromium like a person would.
+// The UI test: drives the real workbench in chromium the way a person would (keyboard, clicks) and
+// reads what it shows: squiggles, Problems rows with rule ids, a quick fix through the keyboard, and
+// the sizing panel's numbers from its DOM. Saves screenshots of editor plus panel under the run's
+// folder in .test-output/.
+//
+// Expected numbers come from the qcow2 specification's L2 geometry, not from the engine: one 8-byte
+// L2 entry per cluster, a cache holds whole entries (one cluster each when no slice is set), so
+// full coverage = roundUp(virtual size / cluster * 8, cluster) [qcow2 specification, "L2 tables";
+// rounding to whole entries per CONTRACTS.md §3].
+import { readFileSync } from 'node:fs';
 import * as path from 'node:path';
-import { ROOT, workbenchUrl, type Browser, type CodeServer, type RunDirs } from './host';
+import type { Frame, Page } from 'playwright-core';
+import { ROOT, sleep, workbenchUrl, type Browser, type CodeServer, type RunDirs } from './host';
+
+const KiB = 1024n;
+const MiB = 1024n * KiB;
+const GiB = 1024n * MiB;
+const TiB = 1024n * GiB;
+const roundUp = (value: bigint, unit: bigint): bigint => ((value + unit - 1n) / unit) * unit;
+const fullCoverage = (size: bigint, cluster: bigint): bigint => roundUp((size / cluster) * 8n, cluster);
+
+interface Check { name: string; ok: boolean; detail: string }
+
+class Checks {
+  readonly list: Check[] = [];
+  check(name: string, ok: boolean, detail = ''): void {
+    this.list.push({ name, ok, detail });
+    console.log(`  ${ok ? '✔' : '✘'} ${name}${detail ? ` — ${detail}` : ''}`);
+  }
+  get failed(): number {
+    return this.list.filter((c) => !c.ok).length;
+  }
+}
+
+async function waitUntil<T>(what: string, probe: () => Promise<T | undefined>, ms = 20_000): Promise<T> {
+  const deadline = Date.now() + ms;
+  for (;;) {
+    const value = await probe().catch(() => undefined);
+    if (value !== undefined) return value;
+    if (Date.now() > deadline) throw new Error(`timed out after ${ms} ms waiting for ${what}`);
+    await sleep(100);
+  }
+}
+
+/** Moves keyboard focus back to the workbench's editor (a webview keeps keys to itself). */
+async function focusEditor(page: Page): Promise<void> {
+  await page.locator('.tabs-container .tab.active').first().click();
+}
+
+async function runCommand(page: Page, title: string): Promise<void> {
+  await focusEditor(page);
+  const input = page.locator('.quick-input-widget input');
+  for (let attempt = 0; attempt < 3; attempt++) {
+    await page.keyboard.press('F1');
+    if (await input.waitFor({ state: 'visible', timeout: 3000 }).then(() => true, () => false)) break;
+  }
+  await input.waitFor({ state: 'visible', timeout: 3000 });
+  await page.keyboard.type(title);
+  // Enter only once the command itself is focused: before the list filters it would run a recent
+  // one, and similar titles may rank above it.
+  await pickRow(page, (text) => text.toLowerCase().startsWith(title.toLowerCase()), title);
+}
+
+async function pickRow(page: Page, wanted: (text: string) => boolean, what: string): Promise<void> {
+  await waitUntil(`the list to offer ${what}`, async () => {
+    const rows = await page.locator('.quick-input-list .monaco-list-row').allTextContents();
+    return rows.some((t) => wanted(t.trim())) ? true : undefined;
+  }, 5000);
+  for (let i = 0; i < 12; i++) {
+    const focused = ((await page.locator('.quick-input-list .monaco-list-row.focused').first().textContent().catch(() => '')) ?? '').trim();
+    if (wanted(focused)) break;
+    await page.keyboard.press('ArrowDown');
+  }
+  await page.keyboard.press('Enter');
+}
+
+async function openFile(page: Page, name: string): Promise<void> {
+  await page.keyboard.press('Control+P');
+  await page.waitForSelector('.quick-input-widget input', { state: 'visible' });
+  await page.keyboard.type(name);
+  await waitUntil(`quick open to list ${name}`, async () => ((await page.locator('.quick-input-list .monaco-list-row').count()) > 0 ? true : undefined));
+  await page.keyboard.press('Enter');
+  await page.waitForSelector(`.tab.active[aria-label*="${name}"], .tab.active:has-text("${name}")`, { timeout: 15_000 });
+}
+
+async function goTo(page: Page, line: number, column: number): Promise<void> {
+  await page.locator('.editor-instance .monaco-editor .view-lines').first().click();
+  await page.keyboard.press('Control+G');
+  await page.waitForSelector('.quick-input-widget input', { state: 'visible' });
+  await page.keyboard.type(`${line}:${column}`);
+  await page.keyboard.press('Enter');
+}
+
+/** The frame of the sizing panel's webview: the one whose document holds the panel's markup. */
+async function panelFrame(page: Page): Promise<Frame> {
+  return waitUntil('the sizing panel webview', async () => {
+    for (const frame of page.frames()) {
+      if ((await frame.locator('main.panel').count().catch(() => 0)) > 0) return frame;
+    }
+    return undefined;
+  }, 30_000);
+}
+
+async function cellValue(frame: Frame, disk: { machine: string; name: string }, field: string): Promise<string | undefined> {
+  const cell = frame.locator(`section.machine[data-machine="${disk.machine}"] article.disk[data-disk="${disk.name}"] td[data-field="${field}"]`).first();
+  if ((await cell.count()) === 0) return undefined;
+  return (await cell.getAttribute('data-value')) ?? (await cell.locator('.num').first().textContent()) ?? undefined;
+}
 
 export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunDirs): Promise<number> {
   const { page } = browser;
+  const checks = new Checks();
+  const cspViolations: string[] = [];
+  page.on('console', (message) => {
+    if (/Content Security Policy|Refused to (load|apply|execute)/i.test(message.text())) cspViolations.push(message.text());
+  });
   await page.goto(workbenchUrl(server, dirs, { extensionPath: ROOT }));
   await page.waitForSelector('.monaco-workbench', { timeout: 60_000 });
-  const shot = path.join(dirs.base, 'workbench.png');
+  // Let the extension host start and the workbench settle.
+  await page.waitForSelector('.statusbar', { timeout: 30_000 });
+  await sleep(1500);
+
+  // --- squiggles and Problems rows on the demo ---
+  await openFile(page, 'ticketing.yaml');
+  await waitUntil('warning squiggles', async () => ((await page.locator('.squiggly-warning').count()) > 0 ? true : undefined));
+  const warnings = await page.locator('.squiggly-warning').count();
+  const errors = await page.locator('.squiggly-error').count();
+  checks.check('warning and error squiggles under the demo\'s findings', warnings > 0 && errors > 0, `${warnings} warning, ${errors} error squiggles`);
+
+  await page.keyboard.press('Control+Shift+M');
+  const rows = await waitUntil('Problems rows', async () => {
+    const texts = await page.locator('.markers-panel .monaco-list-row').allTextContents();
+    return texts.some((t) => t.includes('l2-cache-undersized')) ? texts : undefined;
+  });
+  const problemRules = ['l2-cache-undersized', 'cluster-cow-amplification', 'cache-not-aligned', 'cache-options-conflict'];
+  const missing = problemRules.filter((rule) => !rows.some((t) => t.includes(rule)));
+  checks.check('Problems rows carry the rule ids', missing.length === 0, missing.length ? `missing ${missing.join(', ')}` : `${rows.length} rows`);
+  checks.check('an accepted finding is not listed as a problem', !rows.some((t) => t.includes('l2-cache-oversized')));
+
+  // --- a quick fix through the keyboard: the ledger's L2 cache, "8M" on the line "l2: 8M" ---
+  const demo = readFileSync(path.join(dirs.workspace, 'fleet', 'ticketing.yaml'), 'utf8').split('\n');
+  const ledgerLine = demo.findIndex((line) => /^\s*l2: 8M\b/.test(line));
+  await goTo(page, ledgerLine + 1, (demo[ledgerLine] ?? '').indexOf('8M') + 1);
+  let titles: string[] = [];
+  for (let attempt = 0; attempt < 5 && titles.length === 0; attempt++) {
+    await page.keyboard.press('Control+.');
+    titles = await waitUntil('the code action list', async () => {
+      const rows = await page.locator('.action-widget .monaco-list-row').allTextContents();
+      return rows.length > 0 ? rows : undefined;
+    }, 3000).catch(() => []);
+    if (titles.length === 0) await page.keyboard.press('Escape');
+  }
+  const wanted = titles.findIndex((t) => /L2 cache/i.test(t) && /128 MiB/.test(t));
+  checks.check('Ctrl+. offers the computed fix for the undersized cache', wanted >= 0, titles.join(' | '));
+  if (wanted >= 0) {
+    for (let i = 0; i < 8; i++) {
+      const focused = await page.locator('.action-widget .monaco-list-row.focused').textContent().catch(() => '');
+      if (focused && /128 MiB/.test(focused)) break;
+      await page.keyboard.press('ArrowDown');
+    }
+    await page.keyboard.press('Enter');
+  }
+  const fixed = await waitUntil('the fixed line', async () => {
+    const text = (await page.locator('.editor-instance .view-lines').first().textContent()) ?? '';
+    return text.replace(/\u00a0/g, ' ').includes('l2: 128M') ? true : undefined;
+  }, 10_000).catch(() => false);
+  checks.check('Enter applies it: the editor now reads "l2: 128M"', fixed === true);
+
+  // --- the sizing panel, numbers read from its DOM ---
+  // Close the bottom panel to give editor and sizing panel the room.
+  await focusEditor(page);
+  await page.keyboard.press('Control+J');
+  await runCommand(page, 'diskwise: Show the cache sizing panel');
+  const frame = await panelFrame(page);
+  await waitUntil('the disk cards', async () => ((await frame.locator('article.disk').count()) >= 4 ? true : undefined));
+  const cards = await frame.locator('article.disk').count();
+  checks.check('the panel lists the four qcow2 disks of ticketing.yaml', cards === 4, `${cards} cards`);
+
+  const expectations: Array<{ machine: string; name: string; size: bigint; cluster: bigint }> = [
+    { machine: 'tern-db-01', name: 'root', size: 40n * GiB, cluster: 64n * KiB },
+    { machine: 'tern-db-01', name: 'ledger', size: 1n * TiB, cluster: 64n * KiB },
+    { machine: 'tern-web-02', name: 'root', size: 20n * GiB, cluster: 256n * KiB },
+    { machine: 'tern-cache-03', name: 'archive', size: 100n * GiB, cluster: 1n * MiB },
+  ];
+  for (const disk of expectations) {
+    const full = fullCoverage(disk.size, disk.cluster);
+    const shown = {
+      virtualSize: await cellValue(frame, disk, 'virtualSize'),
+      clusterSize: await cellValue(frame, disk, 'clusterSize'),
+      l2FullCoverage: await cellValue(frame, disk, 'l2FullCoverage'),
+    };
+    checks.check(`${disk.machine}/${disk.name}: virtual size, cluster and full-coverage L2 in the panel`,
+      shown.virtualSize === disk.size.toString() && shown.clusterSize === disk.cluster.toString() && shown.l2FullCoverage === full.toString(),
+      `shown ${JSON.stringify(shown)}, expected full coverage ${full}`);
+  }
+  const ledger = { machine: 'tern-db-01', name: 'ledger' };
+  const ledgerEffective = await cellValue(frame, ledger, 'l2Effective');
+  checks.check('after the quick fix the ledger\'s effective L2 cache is full coverage (128 MiB)', ledgerEffective === (128n * MiB).toString(), `shown ${ledgerEffective}`);
+  const ledgerCoverage = await frame.locator('article.disk[data-disk="ledger"] td[data-field="coverage"] .num').textContent();
+  checks.check('and it maps 100 % of the disk', ledgerCoverage?.trim() === '100 %', `shown ${ledgerCoverage}`);
+  const bars = await frame.locator('article.disk svg.bar-coverage').count();
+  checks.check('each disk\'s coverage is drawn', bars === 4, `${bars} coverage bars`);
+
+  // --- what-if: try 64M of L2 cache on the ledger; every number follows at once ---
+  await frame.locator('article.disk[data-disk="ledger"] [data-action="whatif"]').click();
+  const field = frame.locator('article.disk[data-disk="ledger"] vscode-text-field[data-control="l2Cache"] input');
+  await waitUntil('the what-if controls', async () => ((await field.count()) > 0 ? true : undefined));
+  await field.fill('64M');
+  await field.press('Enter');
+  const trial = await waitUntil('the what-if numbers', async () => {
+    const value = await cellValue(frame, ledger, 'l2Effective');
+    return value === (64n * MiB).toString() ? value : undefined;
+  }, 5_000).catch(() => undefined);
+  const trialCoverage = (await frame.locator('article.disk[data-disk="ledger"] td[data-field="coverage"] .num').textContent())?.trim();
+  // 64 MiB of 8-byte entries maps 8 Mi clusters of 64 KiB = 512 GiB: half of the 1 TiB disk.
+  checks.check('what-if: 64M of L2 cache on the ledger maps 50 % of it, recomputed in the webview', trial !== undefined && trialCoverage === '50 %', `effective ${trial}, coverage ${trialCoverage}`);
+  const shot = path.join(dirs.base, 'editor-and-panel.png');
   await page.screenshot({ path: shot });
-  console.log(`ui: workbench up; screenshot ${path.relative(ROOT, shot)}`);
-  console.log('1 passed, 0 failed');
-  return 0;
+  console.log(`  screenshot: ${path.relative(ROOT, shot)}`);
+
+  // Apply the trial through the same edits: the definition now says 64M.
+  await frame.locator('article.disk[data-disk="ledger"] vscode-button[data-action="apply"]').click();
+  const applied = await waitUntil('the applied value in the editor', async () => {
+    const text = (await page.locator('.editor-instance .view-lines').first().textContent()) ?? '';
+    return text.replace(/\u00a0/g, ' ').includes('l2: 64M') ? true : undefined;
+  }, 10_000).catch(() => false);
+  checks.check('applying the what-if writes "l2: 64M" into the definition', applied === true);
+
+  // Selecting a disk reveals its definition: the cursor moves to the archive disk's first line.
+  const archiveLine = demo.findIndex((line) => /label: archive/.test(line)) + 1;
+  await frame.locator('article.disk[data-disk="archive"] .disk-name').click();
+  let lastLabel = '';
+  const revealed = await waitUntil('the cursor on the archive disk', async () => {
+    lastLabel = (await page.locator('.statusbar-item[id="status.editor.selection"]').textContent().catch(() => '')) ?? '';
+    return new RegExp(`Ln ${archiveLine}\\b`).test(lastLabel) ? lastLabel : undefined;
+  }, 10_000).catch(() => undefined);
+  checks.check('selecting a disk in the panel reveals it in the editor', revealed !== undefined, revealed ?? `cursor at "${lastLabel}"`);
+
+  checks.check('the panel loads under its content security policy with no violation', cspViolations.length === 0, cspViolations.slice(0, 3).join(' | '));
+  const status = await page.locator('.statusbar-item[id="diskwise-dev.diskwise.diskwise.cacheMemory"], .statusbar-item:has-text("cache")').first().textContent().catch(() => null);
+  checks.check('the status bar shows the file\'s cache memory', status !== null && /MiB cache/.test(status), status ?? 'no item');
+
+  // Themes: the panel follows the editor's theme, picked the way a person does.
+  for (const [theme, kind] of [['Dark Modern', 'vscode-dark'], ['Dark High Contrast', 'vscode-high-contrast'], ['Light Modern', 'vscode-light']] as const) {
+    await runCommand(page, 'Preferences: Color Theme');
+    await waitUntil('the theme picker', async () => {
+      const placeholder = await page.locator('.quick-input-widget input').getAttribute('placeholder');
+      return placeholder && /theme/i.test(placeholder) ? true : undefined;
+    }, 5000).catch(() => undefined);
+    await page.keyboard.type(theme);
+    await pickRow(page, (text) => text.includes(theme), theme);
+    const bodyClass = await waitUntil(`the ${theme} theme in the panel`, async () => {
+      const cls = await (await panelFrame(page)).locator('body').getAttribute('class');
+      return cls && cls.split(/\s+/).includes(kind) ? cls : undefined;
+    }, 10_000).catch(() => undefined);
+    checks.check(`the panel follows the ${theme} theme`, bodyClass !== undefined, bodyClass ?? 'body class did not change');
+    await sleep(500);
+    const file = path.join(dirs.base, `editor-and-panel-${kind}.png`);
+    await page.screenshot({ path: file });
+    console.log(`  screenshot: ${path.relative(ROOT, file)}`);
+  }
+
+  checks.check('no request left 127.0.0.1', browser.blocked.length === 0, browser.blocked.length ? `${browser.blocked.length} refused, e.g. ${browser.blocked[0]}` : 'all local');
+  const passed = checks.list.length - checks.failed;
+  console.log(`ui: ${passed} passed, ${checks.failed} failed`);
+  return checks.failed === 0 ? 0 : 1;
 }
