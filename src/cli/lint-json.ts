@@ -4,6 +4,22 @@ import { stringifyJson } from '../core/json';
 import type { Finding, SourceRange } from '../lint';
 import { mappingRelative, shownFindings, summarize, type LintRun } from './lint-results';
 
+/**
+ * A byte-count object with its bigints as plain numbers, so the whole document can go through the
+ * engine's native JSON.stringify; undefined when a value is past 2^53 and only the exact writer
+ * can print it.
+ */
+function plainCounts(counts: object): Record<string, number | string | boolean> | undefined {
+  const out: Record<string, number | string | boolean> = {};
+  for (const [key, value] of Object.entries(counts)) {
+    if (typeof value === 'bigint') {
+      if (value > BigInt(Number.MAX_SAFE_INTEGER) || value < -BigInt(Number.MAX_SAFE_INTEGER)) return undefined;
+      out[key] = Number(value);
+    } else if (value !== undefined) out[key] = value as number | string | boolean;
+  }
+  return out;
+}
+
 const position = (range: SourceRange) => ({ line: range.line, column: range.column, endLine: range.endLine, endColumn: range.endColumn });
 
 function findingJson(finding: Finding) {
@@ -21,6 +37,13 @@ function findingJson(finding: Finding) {
 
 export function renderJson(run: LintRun): string {
   const summary = summarize(run);
+  let exact = true;
+  const counts = (value: object) => {
+    const plain = plainCounts(value);
+    if (plain) return plain;
+    exact = false;
+    return value;
+  };
   const files = run.files.map((file) => ({
     path: mappingRelative(run.mapping, file.path),
     error: file.error,
@@ -29,12 +52,12 @@ export function renderJson(run: LintRun): string {
       machine: disk.machine,
       name: disk.name,
       pointer: disk.pointer,
-      sizing: disk.sizing,
-      recommended: disk.recommended,
+      sizing: counts(disk.sizing),
+      recommended: counts(disk.recommended),
     })),
     findings: file.report ? shownFindings(run, file.report).map(findingJson) : [],
   }));
-  return `${stringifyJson({
+  const document = {
     tool: 'diskwise',
     version: run.version,
     files,
@@ -49,5 +72,7 @@ export function renderJson(run: LintRun): string {
       fixed: run.fix ? summary.fixed : undefined,
       unreadable: summary.failed > 0 ? summary.failed : undefined,
     },
-  })}\n`;
+  };
+  // Past 2^53 bytes (a disk of 8 PiB and more) only the bigint-aware writer keeps counts exact.
+  return `${exact ? JSON.stringify(document, null, 2) : stringifyJson(document)}\n`;
 }

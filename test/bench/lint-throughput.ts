@@ -1,0 +1,150 @@
+// Benchmark (issue 3): `diskwise lint --format json` over 5,000 generated definition files with 4
+// disks each, against the floor: a node process that only reads the same files and parses them with
+// `yaml`. Prints both times and their ratio (target: at most 1.3x); asserts nothing (tests never
+// assert on wall-clock time). Needs the built CLI (npm run build).
+//   npx tsx test/bench/lint-throughput.ts [--files N] [--runs N] [--keep]
+import { spawnSync } from 'node:child_process';
+import * as fs from 'node:fs';
+import * as os from 'node:os';
+import * as path from 'node:path';
+
+const TARGET_RATIO = 1.3;
+const ROOT = path.resolve(__dirname, '..', '..');
+const CLI = path.join(ROOT, 'dist', 'cli.js');
+
+function option(name: string, fallback: number): number {
+  const at = process.argv.indexOf(`--${name}`);
+  const value = at === -1 ? undefined : Number(process.argv[at + 1]);
+  return value !== undefined && Number.isFinite(value) && value > 0 ? value : fallback;
+}
+const FILES = option('files', 5000);
+const RUNS = option('runs', 3);
+
+const MAPPING = `version: 1
+include: ["defs/**/*.yaml"]
+machines: "$.vms[*]"
+disks: "$.volumes[*]"
+fields:
+  machine: { name: "$.hostname", memory: "$.ram" }
+  disk:
+    name: "$.label"
+    size: "$.capacity"
+    clusterSize: "$.block"
+    format: "$.kind"
+    l2Cache: "$.tuning.l2"
+    refcountCache: "$.tuning.refcount"
+    cleanupInterval: "$.tuning.sweep"
+    pattern: "$.io.pattern"
+`;
+
+// Sizes, caches and patterns cycle so the files hold a mix of clean disks and findings.
+const SIZES = ['20G', '40G', '100G', '500G', '1T', '2T'];
+const CACHES = ['2.5M', '5M', '8M', '16M', '3000K', undefined];
+const CLUSTERS = ['64K', '64K', '128K', '1M'];
+const PATTERNS = ['random', 'mixed', 'sequential'];
+
+function definition(index: number): string {
+  const volumes: string[] = [];
+  for (let d = 0; d < 4; d++) {
+    const k = index * 4 + d;
+    const cache = CACHES[k % CACHES.length];
+    volumes.push(
+      [
+        `      - label: vol${d}`,
+        `        kind: qcow2`,
+        `        capacity: ${SIZES[k % SIZES.length]}`,
+        `        block: ${CLUSTERS[(k >> 1) % CLUSTERS.length]}`,
+        ...(cache ? [`        tuning:`, `          l2: ${cache}`, `          sweep: ${k % 5 === 0 ? 0 : 600}`] : []),
+        `        io: { pattern: ${PATTERNS[k % PATTERNS.length]} }`,
+      ].join('\n'),
+    );
+  }
+  return `# generated definition ${index}\nvms:\n  - hostname: bench-${index}\n    ram: ${4 << (index % 4)}G\n    volumes:\n${volumes.join('\n')}\n`;
+}
+
+function generate(): string {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'diskwise-bench-'));
+  fs.writeFileSync(path.join(dir, 'diskwise.yaml'), MAPPING);
+  for (let i = 0; i < FILES; i++) {
+    const sub = path.join(dir, 'defs', `group${Math.floor(i / 500)}`);
+    if (i % 500 === 0) fs.mkdirSync(sub, { recursive: true });
+    fs.writeFileSync(path.join(sub, `vm${i}.yaml`), definition(i));
+  }
+  return dir;
+}
+
+// The floor: list the same files, read each, parse it with the same library the engine uses.
+const FLOOR = `
+const fs = require('node:fs');
+const path = require('node:path');
+const YAML = require(process.env.BENCH_YAML);
+const root = path.join(process.argv[2], 'defs');
+let count = 0;
+for (const group of fs.readdirSync(root)) {
+  for (const name of fs.readdirSync(path.join(root, group))) {
+    const doc = YAML.parseDocument(fs.readFileSync(path.join(root, group, name), 'utf8'));
+    if (doc.toJS()) count++;
+  }
+}
+process.stderr.write(String(count));
+`;
+
+interface Sample {
+  wallMs: number;
+  /** user + system CPU of the child, from the shell's `times`: steadier than wall time on a busy machine. */
+  cpuMs: number;
+}
+
+const seconds = (text: string) => {
+  const match = /^(\d+)m([\d.]+)s$/.exec(text);
+  return match ? (Number(match[1]) * 60 + Number(match[2])) * 1000 : NaN;
+};
+
+function timeRun(label: string, command: string[], cwd: string, env: NodeJS.ProcessEnv): Sample[] {
+  const samples: Sample[] = [];
+  for (let i = 0; i < RUNS; i++) {
+    const start = performance.now();
+    // stdout of both goes to /dev/null: neither pays for a reader on the other end of a pipe
+    const result = spawnSync('bash', ['-c', '"$0" "$@" > /dev/null; status=$?; times; exit $status', process.execPath, ...command], { cwd, env, encoding: 'utf8' });
+    const wallMs = performance.now() - start;
+    // lint exits 1 when the generated files hold errors; the floor reports how many files it parsed
+    const failed = label === 'floor' ? result.status !== 0 || result.stderr !== String(FILES) : result.status !== 0 && result.status !== 1;
+    if (failed) throw new Error(`${label} failed (${result.status}): ${result.stderr.slice(0, 2000)}`);
+    const children = (result.stdout.trim().split('\n').at(-1) ?? '').split(/\s+/);
+    samples.push({ wallMs, cpuMs: seconds(children[0] ?? '') + seconds(children[1] ?? '') });
+  }
+  return samples;
+}
+
+const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)] ?? NaN;
+
+function main(): void {
+  if (!fs.existsSync(CLI)) {
+    console.error(`${CLI} is missing: run "npm run build" first`);
+    process.exitCode = 2;
+    return;
+  }
+  const dir = generate();
+  try {
+    const env = { ...process.env, BENCH_YAML: require.resolve('yaml') };
+    const floorScript = path.join(dir, 'floor.js');
+    fs.writeFileSync(floorScript, FLOOR);
+    // one warm-up of each so the file cache is hot for both
+    timeRun('floor', [floorScript, dir], dir, env);
+    timeRun('lint', [CLI, 'lint', '--format', 'json'], dir, env);
+    const floor = timeRun('floor', [floorScript, dir], dir, env);
+    const lint = timeRun('lint', [CLI, 'lint', '--format', 'json'], dir, env);
+    const wall = (s: Sample[]) => median(s.map((x) => x.wallMs));
+    const cpu = (s: Sample[]) => median(s.map((x) => x.cpuMs));
+    const ratio = wall(lint) / wall(floor);
+    console.log(`${FILES} files x 4 disks, median of ${RUNS} runs           wall       cpu`);
+    console.log(`  floor (read + yaml parse)     ${wall(floor).toFixed(0).padStart(8)} ms ${cpu(floor).toFixed(0).padStart(6)} ms`);
+    console.log(`  diskwise lint --format json   ${wall(lint).toFixed(0).padStart(8)} ms ${cpu(lint).toFixed(0).padStart(6)} ms`);
+    console.log(`  ratio ${ratio.toFixed(2)}x wall, ${(cpu(lint) / cpu(floor)).toFixed(2)}x cpu (target <= ${TARGET_RATIO}x): ${ratio <= TARGET_RATIO ? 'within target' : 'over target'}`);
+  } finally {
+    if (process.argv.includes('--keep')) console.log(`  files kept in ${dir}`);
+    else fs.rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+main();
