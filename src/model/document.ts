@@ -54,7 +54,7 @@ export function readDefinition(path: string, text: string, format: DocumentForma
   const tree = parseDocument(text, { schema: format === 'json' ? 'json' : 'core', prettyErrors: false, uniqueKeys: true, strict: true });
   const problems: DocumentProblem[] = tree.errors.map((error) => ({
     message: firstLine(error.message),
-    range: lines.range(error.pos[0], error.pos[1]),
+    range: lines.range(Math.min(error.pos[0], text.length), Math.min(error.pos[1], text.length)),
   }));
   if (problems.length > 0) return { problems };
   let data: unknown;
