@@ -185,6 +185,10 @@ function choiceCell(choice: CacheChoiceView | undefined, pending: string): Child
     el('span', 'num', `refcount ${bytes(choice.refcount)}`), el('span', 'muted', ` covers ${bytes(choice.refcountCovered)} of file`));
 }
 
+function totalCell(n: bigint): HTMLElement {
+  return el('span', undefined, bytes(n), el('br'), el('span', 'muted', `${n.toLocaleString('en-US')} bytes`));
+}
+
 function cachesSection(view: ImageView): { section: HTMLElement; rows: number } {
   const section = el('section', 'caches', el('h2', undefined, 'Recommended cache settings'));
   section.appendChild(el('p', 'muted',
@@ -216,9 +220,9 @@ function cachesSection(view: ImageView): { section: HTMLElement; rows: number } 
   if (m) {
     const tr = el('tr', 'total',
       el('th', undefined, 'memory over the chain', el('br'), el('span', 'muted', `sum of ${plural(m.layersSized, 'layer')}${m.layersSized < m.layersTotal ? ` of ${m.layersTotal}` : ''}`)),
-      el('td', 'num', m.now === null ? pending : bytes(m.now)),
-      el('td', 'num', bytes(m.full)),
-      el('td', 'num', bytes(m.driverDefault)));
+      el('td', 'num', m.now === null ? pending : totalCell(m.now)),
+      el('td', 'num', totalCell(m.full)),
+      el('td', 'num', totalCell(m.driverDefault)));
     body.appendChild(tr);
     rows++;
   }
