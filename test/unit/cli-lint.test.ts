@@ -163,6 +163,20 @@ describe('diskwise lint: JSON output', () => {
     assert.match(run.stdout, /"virtualSize": 1099511627776,/);
   });
 
+  it(`${CONTRACT} byte counts past 2^53 print exactly (JSON numbers are not limited to doubles, RFC 8259 §6)`, async () => {
+    const dir = makeWorkspace({
+      'diskwise.yaml': 'version: 1\ninclude: ["*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size", clusterSize: "$.cluster" } }\n',
+      // 16 PiB + 1 byte: the nearest double is 2^54, one byte short
+      'big.yaml': 'drives:\n  - { size: "18014398509481985", cluster: 2M }\n',
+    });
+    try {
+      const run = await lintIn(dir, ['--format', 'json']);
+      assert.match(run.stdout, /"virtualSize": 18014398509481985,/);
+    } finally {
+      removeWorkspace(dir);
+    }
+  });
+
   it(`${CONTRACT} a finding: RFC 6901 pointer, 1-based range, fix edits as UTF-16 offsets into the original text`, async () => {
     const run = await lintIn(WORKSPACE, ['--format', 'json', 'hosts/undersized.yaml']);
     const finding = json(run).files[0]?.findings[0];
