@@ -158,18 +158,25 @@ describe(`edits: insertFieldEdit in JSON ${RFC8259}`, () => {
   });
 });
 
+/** The node at a path, which the test expects to exist. */
+function nodeOf(d: DefinitionDocument, at: PathSegment[]) {
+  const found = nodeAt(d, at);
+  assert.ok(found);
+  return found.node;
+}
+
 describe('edits: insertFieldEdit refuses what it cannot write safely', () => {
   it('a non-map on the way to the key', () => {
     const d = doc('disk:\n  cache: 5\n', 'a.yaml');
-    assert.equal(insertFieldEdit(d, (nodeAt(d, ['disk']) as { node: never }).node, ['cache', 'l2'], MiB128), undefined);
+    assert.equal(insertFieldEdit(d, nodeOf(d, ['disk']), ['cache', 'l2'], MiB128), undefined);
   });
   it('an empty value on the way to the key', () => {
     const d = doc('disk:\n  cache:\n', 'a.yaml');
-    assert.equal(insertFieldEdit(d, (nodeAt(d, ['disk']) as { node: never }).node, ['cache', 'l2'], MiB128), undefined);
+    assert.equal(insertFieldEdit(d, nodeOf(d, ['disk']), ['cache', 'l2'], MiB128), undefined);
   });
   it('a base that is not a map', () => {
     const d = doc('disk: [1, 2]\n', 'a.yaml');
-    assert.equal(insertFieldEdit(d, (nodeAt(d, ['disk']) as { node: never }).node, ['l2'], MiB128), undefined);
+    assert.equal(insertFieldEdit(d, nodeOf(d, ['disk']), ['l2'], MiB128), undefined);
   });
 });
 
@@ -187,7 +194,7 @@ describe('edits: property: inserting a key into generated maps', () => {
     { file: 'a.json', write: (v: unknown) => JSON.stringify(v) },
   );
   it('the result parses, holds the new value, and the rest of the data is unchanged', () => {
-    fc.assert(fc.property(tree, format, fc.constantFrom(['zz1'], ['zz1', 'zz2'], ['zz1', 'zz2', 'zz3']), (data, { file, write }, keys) => {
+    fc.assert(fc.property(tree, format, fc.constantFrom<string[][]>(['zz1'], ['zz1', 'zz2'], ['zz1', 'zz2', 'zz3']), (data, { file, write }, keys) => {
       const text = write(data);
       const result = insert(text, file, [], keys);
       const expected = structuredClone(data) as Record<string, unknown>;
