@@ -1,5 +1,6 @@
 // `diskwise lint --format json` (CONTRACTS.md §3): one document for the whole run, byte counts as
 // exact integers, paths relative to the mapping file's folder, positions 1-based.
+import { CAUTIONS } from '../core/cautions';
 import { stringifyJson } from '../core/json';
 import type { Finding, SourceRange } from '../lint';
 import { mappingRelative, shownFindings, summarize, type LintRun } from './lint-results';
@@ -72,6 +73,7 @@ export function renderJson(run: LintRun): string {
       fixed: run.fix ? summary.fixed : undefined,
       unreadable: summary.failed > 0 ? summary.failed : undefined,
     },
+    cautions: run.fix && summary.fixed > 0 ? [CAUTIONS.reopen, CAUTIONS.hostMemory, CAUTIONS.review] : undefined,
   };
   // Past 2^53 bytes (a disk of 8 PiB and more) only the bigint-aware writer keeps counts exact.
   return `${exact ? JSON.stringify(document, null, 2) : stringifyJson(document)}\n`;

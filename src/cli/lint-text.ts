@@ -1,6 +1,7 @@
 // `diskwise lint` for people: findings grouped by file, one line each that terminals and editors
 // turn into a link (`path:line:col`), a hint under each fixable one, and one closing summary.
 // Suppressed findings are not shown; the summary counts them.
+import { CAUTIONS } from '../core/cautions';
 import type { Finding } from '../lint';
 import { displayPath } from './lint-discovery';
 import { shownFindings, summarize, type LintRun, type LintSummary } from './lint-results';
@@ -40,6 +41,9 @@ export function renderText(run: LintRun): string {
     }
   }
   if (out.length > 0) out.push('');
-  out.push(summaryLine(summarize(run), run));
+  const summary = summarize(run);
+  out.push(summaryLine(summary, run));
+  // Changed settings reach running machines only through the user's own rollout: say so.
+  if (run.fix && summary.fixed > 0) out.push('', 'Before rolling the changed files out:', ...[CAUTIONS.reopen, CAUTIONS.hostMemory, CAUTIONS.review].map((c) => `  - ${c}`));
   return `${out.join('\n')}\n`;
 }

@@ -217,6 +217,10 @@ describe('diskwise lint --fix', () => {
       assert.doesNotMatch(run.stdout, /undersized\.yaml.*l2-cache-undersized/);
       assert.match(run.stdout, /conflict\.json:7:\d+ +error +cache-options-conflict/);
       assert.match(run.stdout, /2 fixes applied/);
+      // FACTS.md "Cautions to show users": settings apply on reopen, host memory, change control
+      assert.match(run.stdout, /restart the VM or reopen the disk/);
+      assert.match(run.stdout, /host memory/);
+      assert.match(run.stdout, /change control/);
     } finally {
       removeWorkspace(dir);
     }
