@@ -4,6 +4,7 @@
 import { ImageError, throwIfAborted } from './errors';
 import type { Qcow2Header } from './header';
 import type { ByteSource } from './source';
+import { L2Counter } from './l2-counter';
 import { createBlockScanner } from './zero-scan';
 
 export interface WalkProgress {
@@ -71,8 +72,6 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
   const totalClustersBig = (virtualSize + header.clusterSize - 1n) / header.clusterSize;
   const totalClusters = Number(totalClustersBig);
   const l1Total = header.l1EntriesNeeded;
-  const zeroFlagAllowed = header.version === 3 && !extended;
-  const subclusterBytes = cluster / 32;
   const l1Start = Number(header.l1Offset);
   const l1End = l1Start + header.l1Entries * 8;
 
@@ -80,9 +79,6 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
   const wanted = Math.min(MAX_BUCKETS, Math.max(1, Math.floor(options.buckets ?? DEFAULT_BUCKETS)));
   const clustersPerRegion = Math.max(1, Math.ceil(totalClusters / wanted));
   const regions = totalClusters === 0 ? 0 : Math.ceil(totalClusters / clustersPerRegion);
-  const dataPerRegion = new Float64Array(regions);
-  const zeroPerRegion = new Float64Array(regions);
-  const lastCluster = totalClusters - 1;
   const lastClusterBytes = Number(virtualSize - (totalClustersBig - 1n) * header.clusterSize);
 
   const summary: MetadataSummary = {
@@ -98,135 +94,28 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
     allocation: { regionBytes: BigInt(clustersPerRegion) * header.clusterSize, data: [], zero: [] },
     warnings: [],
   };
-  // Inconsistencies are counted per kind, so a damaged table gives a few lines, not thousands.
-  const oddities = new Map<string, { count: number; first: string }>();
+  // Tables are read into the scanner's buffers; it finds the non-zero 16-byte blocks, and the
+  // counter decodes only the entries in those.
+  const scanner = createBlockScanner(cluster, READS_IN_FLIGHT);
+  const counter = new L2Counter(header, scanner, totalClusters, clustersPerRegion, regions, lastClusterBytes);
   const warn = (what: string, where: string): void => {
-    const seen = oddities.get(what);
+    const seen = counter.oddities.get(what);
     if (seen) seen.count++;
-    else oddities.set(what, { count: 1, first: where });
+    else counter.oddities.set(what, { count: 1, first: where });
   };
 
   // Where each L2 table sits, so a table referenced twice is an error rather than a loop of rereads:
   // this bounds the work by the file's size whatever the L1 table says.
   const tableOwners = new Map<number, number>();
-  const compressedShift = 62 - (header.clusterBits - 8) - 32; // bits of the offset in the high word
-  const compressedOffsetHighMask = 2 ** compressedShift - 1;
-
-  const guestOffsetText = (clusterIndex: number): string => hex(clusterIndex * cluster);
-
-  // Tables are read into the scanner's buffers; it finds the non-zero 16-byte blocks, and only the
-  // entries in those are decoded.
-  const scanner = createBlockScanner(cluster, READS_IN_FLIGHT);
-  const views = scanner.buffers.map((b) => new DataView(b.buffer, b.byteOffset, cluster));
-  const wordViews = scanner.buffers.map((b) => new Int32Array(b.buffer, b.byteOffset, cluster / 4));
-  const countTable = (slot: number, l1Index: number): void => {
-    const view = views[slot]!;
-    const words = wordViews[slot]!;
-    const firstCluster = l1Index * entriesPerTable;
-    const entries = Math.min(entriesPerTable, totalClusters - firstCluster);
-    const { offsets, count } = scanner.scan(slot);
-    for (let k = 0; k < count; k++) {
-      const offset = offsets[k]!;
-      if (extended) {
-        const i = offset >> 4;
-        if (i < entries) countEntry(view, words, i, firstCluster);
-        continue;
-      }
-      // A 16-byte block holds two standard entries; usually only one of them is set.
-      const i = offset >> 3;
-      const w = offset >> 2;
-      if ((words[w]! | words[w + 1]!) !== 0 && i < entries) countEntry(view, words, i, firstCluster);
-      if ((words[w + 2]! | words[w + 3]!) !== 0 && i + 1 < entries) countEntry(view, words, i + 1, firstCluster);
-    }
-  };
-
-  // The hot path keeps to 32-bit integers (host offsets as high and low words, unsigned order by
-  // flipping the sign bit), so the JIT never has to fall back to doubles part way through a walk.
-  const fileHigh = Math.floor(fileSize / TWO_32);
-  const fileLowFlipped = (fileSize % TWO_32 ^ 0x80000000) | 0;
-  const alignMask = (cluster - 1) & ~0x1ff;
-  const beyondFile = (hostHigh: number, hostLow: number): boolean =>
-    hostHigh > fileHigh || (hostHigh === fileHigh && ((hostLow ^ 0x80000000) | 0) >= fileLowFlipped);
-  const offsetText = (hostHigh: number, hostLow: number): string => hex(hostHigh * TWO_32 + (hostLow >>> 0));
-
-  const countEntry = (view: DataView, words: Int32Array, i: number, firstCluster: number): void => {
-    const w = i * (entryBytes / 4);
-    if (words[w] === 0 && words[w + 1] === 0 && (!extended || (words[w + 2] === 0 && words[w + 3] === 0))) return;
-    const at = i * entryBytes;
-    const high = view.getInt32(at);
-    const low = view.getInt32(at + 4);
-    const clusterIndex = firstCluster + i;
-    const region = Math.floor(clusterIndex / clustersPerRegion);
-    const guestBytes = clusterIndex === lastCluster ? lastClusterBytes : cluster;
-
-    if ((high & 0x40000000) !== 0) {
-      // [SPEC] compressed cluster descriptor, x = 62 - (cluster_bits - 8)
-      if (header.externalData) throw new ImageError('malformed', `compressed cluster at guest offset ${guestOffsetText(clusterIndex)} in an image with an external data file`);
-      const hostHigh = high & compressedOffsetHighMask;
-      if ((hostHigh === 0 && low === 0) || beyondFile(hostHigh, low)) {
-        throw new ImageError('malformed', `compressed data for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${offsetText(hostHigh, low)}, outside the file (${fileSize} bytes)`);
-      }
-      if (extended && (view.getInt32(at + 8) !== 0 || view.getInt32(at + 12) !== 0)) {
-        warn('compressed clusters with a non-zero subcluster bitmap (reserved)', `guest offset ${guestOffsetText(clusterIndex)}`);
-      }
-      summary.compressedClusters++;
-      summary.dataClustersAllocated++;
-      dataPerRegion[region] = (dataPerRegion[region] ?? 0) + guestBytes;
-      return;
-    }
-
-    const hostHigh = high & 0x00ffffff;
-    const hostLow = low & 0xfffffe00;
-    const hasHost = hostHigh !== 0 || hostLow !== 0 || (header.externalData && high < 0); // bit 63: copied
-    if ((low & 0x1fe) !== 0 || (high & 0x3f000000) !== 0 || (!zeroFlagAllowed && (low & 1) !== 0)) {
-      warn('L2 entries with reserved bits set', `guest offset ${guestOffsetText(clusterIndex)}`);
-    }
-    if (hasHost && !header.externalData) {
-      if ((low & alignMask) !== 0) {
-        throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${offsetText(hostHigh, hostLow)}, not aligned to the ${cluster}-byte cluster size`);
-      }
-      if (beyondFile(hostHigh, hostLow)) {
-        throw new ImageError('malformed', `the data cluster for guest offset ${guestOffsetText(clusterIndex)} is at host offset ${offsetText(hostHigh, hostLow)}, past the end of the file (${fileSize} bytes)`);
-      }
-    }
-
-    if (extended) {
-      const zeroMask = view.getInt32(at + 8); // bits 32..63: subcluster reads as zeros
-      const allocMask = view.getInt32(at + 12); // bits 0..31: subcluster allocated
-      if ((allocMask & zeroMask) !== 0) warn('L2 entries marking subclusters both allocated and zero', `guest offset ${guestOffsetText(clusterIndex)}`);
-      if (allocMask !== 0 && !hasHost) {
-        throw new ImageError('malformed', `the L2 entry for guest offset ${guestOffsetText(clusterIndex)} marks subclusters allocated but has no host cluster`);
-      }
-      const allocated = popcount(allocMask);
-      const zeros = popcount(zeroMask & ~allocMask);
-      summary.subclustersAllocated += allocated;
-      summary.subclustersZero += zeros;
-      if (allocated > 0) {
-        summary.standardClusters++;
-        summary.dataClustersAllocated++;
-        dataPerRegion[region] = (dataPerRegion[region] ?? 0) + Math.min(allocated * subclusterBytes, guestBytes);
-      }
-      if (zeros > 0) zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + Math.min(zeros * subclusterBytes, guestBytes);
-      return;
-    }
-
-    if (zeroFlagAllowed && (low & 1) !== 0) {
-      summary.zeroClusters++;
-      zeroPerRegion[region] = (zeroPerRegion[region] ?? 0) + guestBytes;
-    } else if (hasHost) {
-      summary.standardClusters++;
-      summary.dataClustersAllocated++;
-      dataPerRegion[region] = (dataPerRegion[region] ?? 0) + guestBytes;
-    }
-  };
 
   const checkTableOffset = (offset: number, l1Index: number): void => {
-    const where = `the L2 table of L1 entry ${l1Index} (guest offset ${hex(l1Index * entriesPerTable * cluster)})`;
-    if (offset % cluster !== 0) throw new ImageError('malformed', `${where} is at ${hex(offset)}, not aligned to the ${cluster}-byte cluster size`);
-    if (offset + cluster > fileSize) throw new ImageError('malformed', `${where} is at ${hex(offset)}, past the end of the file (${fileSize} bytes)`);
-    if (offset < l1End && offset + cluster > l1Start) throw new ImageError('malformed', `${where} overlaps the L1 table`);
+    // The message is built only when needed: formatting guest offsets for every table is not free.
+    const where = (): string => `the L2 table of L1 entry ${l1Index} (guest offset ${hex(l1Index * entriesPerTable * cluster)})`;
+    if (offset % cluster !== 0) throw new ImageError('malformed', `${where()} is at ${hex(offset)}, not aligned to the ${cluster}-byte cluster size`);
+    if (offset + cluster > fileSize) throw new ImageError('malformed', `${where()} is at ${hex(offset)}, past the end of the file (${fileSize} bytes)`);
+    if (offset < l1End && offset + cluster > l1Start) throw new ImageError('malformed', `${where()} overlaps the L1 table`);
     const owner = tableOwners.get(offset);
-    if (owner !== undefined) throw new ImageError('malformed', `${where} is at ${hex(offset)}, the same place as the L2 table of L1 entry ${owner}`);
+    if (owner !== undefined) throw new ImageError('malformed', `${where()} is at ${hex(offset)}, the same place as the L2 table of L1 entry ${owner}`);
     tableOwners.set(offset, l1Index);
   };
 
@@ -257,13 +146,9 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
     const count = Math.min(L1_CHUNK_ENTRIES, l1Total - chunkStart);
     const l1 = await source.read(header.l1Offset + BigInt(chunkStart * 8), count * 8);
     if (l1.length < count * 8) throw new ImageError('malformed', 'the file ends inside the L1 table');
-    const l1View = new DataView(l1.buffer, l1.byteOffset, l1.byteLength);
     const tables: Array<{ l1Index: number; offset: number }> = [];
-    for (let i = 0; i < count; i++) {
-      const high = l1View.getUint32(i * 8);
-      const low = l1View.getUint32(i * 8 + 4);
-      if (high === 0 && low === 0) continue;
-      const l1Index = chunkStart + i;
+    for (const { index, high, low } of nonZeroEntries(l1, count)) {
+      const l1Index = chunkStart + index;
       if ((low & 0x1ff) !== 0 || (high & 0x7f000000) !== 0) warn('L1 entries with reserved bits set', `entry ${l1Index}`);
       const offset = (high & 0x00ffffff) * TWO_32 + ((low & 0xfffffe00) >>> 0);
       if (offset === 0) continue; // only the "copied" flag: no table
@@ -282,7 +167,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
       for (let t = 0; t < tables.length; t++) {
         const { offset, l1Index } = tables[t]!;
         if (readSync(offset, scanner.buffers[0]!) < cluster) throw new ImageError('malformed', `the file ends inside the L2 table at ${hex(offset)}`);
-        countTable(0, l1Index);
+        counter.countTable(0, l1Index);
         afterTable(l1Index);
         if ((t & 15) === 15) {
           await breathe();
@@ -299,7 +184,7 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
           await Promise.allSettled(pending.slice(t + 1));
           throw new ImageError('cancelled', 'cancelled');
         }
-        countTable(slot, tables[t]!.l1Index);
+        counter.countTable(slot, tables[t]!.l1Index);
         afterTable(tables[t]!.l1Index);
         const next = t + READS_IN_FLIGHT;
         if (next < tables.length) pending.push(readTable(tables[next]!.offset, slot));
@@ -309,7 +194,9 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
   }
   if (l1Total === 0) report(0);
 
-  for (const [what, { count, first }] of oddities) summary.warnings.push(`${count} ${what}, the first at ${first}`);
+  Object.assign(summary, counter.tally);
+  for (const [what, { count, first }] of counter.oddities) summary.warnings.push(`${count} ${what}, the first at ${first}`);
+  const { dataPerRegion, zeroPerRegion } = counter;
   // Region totals are whole bytes well inside a double's exact range for any file that exists.
   summary.allocatedBytes = BigInt(dataPerRegion.reduce((sum, bytes) => sum + bytes, 0));
   summary.zeroBytes = BigInt(zeroPerRegion.reduce((sum, bytes) => sum + bytes, 0));
@@ -329,9 +216,18 @@ async function copyRead(source: ByteSource, offset: number, buffer: Uint8Array):
   return bytes.length;
 }
 
-function popcount(mask: number): number {
-  let v = mask >>> 0;
-  v = v - ((v >>> 1) & 0x55555555);
-  v = (v & 0x33333333) + ((v >>> 2) & 0x33333333);
-  return (((v + (v >>> 4)) & 0x0f0f0f0f) * 0x01010101) >>> 24;
+/**
+ * The non-zero 8-byte big-endian entries of a table (an L1 chunk), as two 32-bit words each. A small
+ * function of its own so the JIT optimises the loop early: an L1 table can hold millions of entries.
+ */
+function nonZeroEntries(bytes: Uint8Array, count: number): Array<{ index: number; high: number; low: number }> {
+  const found: Array<{ index: number; high: number; low: number }> = [];
+  const view = new DataView(bytes.buffer, bytes.byteOffset, count * 8);
+  for (let i = 0; i < count; i++) {
+    const high = view.getUint32(i * 8);
+    const low = view.getUint32(i * 8 + 4);
+    if ((high | low) !== 0) found.push({ index: i, high, low });
+  }
+  return found;
 }
+
