@@ -5,7 +5,8 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 // Loaded through require so the bundle takes the package's CommonJS build.
 import tinyglobby = require('tinyglobby');
-import { lintDocument, type FileReport, type Mapping } from '../lint';
+import { lintPrepared, prepareDocument, type FileReport, type Mapping, type PreparedDocument } from '../lint';
+import { ImageFactsCache } from './images';
 import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
 import { isMappingFileName, Mappings, readText } from './mappings';
 import { readSettings } from './settings';
@@ -44,6 +45,9 @@ export class Linting implements vscode.Disposable {
   readonly onDidReloadMappings = this.mappingEmitter.event;
   private readonly disposables: vscode.Disposable[] = [];
 
+  /** Image facts for the image rules; only in a trusted workspace (untrusted: the text alone). */
+  private images = vscode.workspace.isTrusted ? new ImageFactsCache() : undefined;
+
   constructor(private readonly extensionUri: vscode.Uri, readonly timings: Timings) {}
 
   private get enabled(): boolean {
@@ -64,6 +68,10 @@ export class Linting implements vscode.Disposable {
         if (event.affectsConfiguration('diskwise')) void this.reloadMappings().then(() => this.lintWorkspace(false));
       }),
       vscode.workspace.onDidChangeWorkspaceFolders(() => void this.reloadMappings().then(() => this.lintWorkspace(false))),
+      vscode.workspace.onDidGrantWorkspaceTrust(() => {
+        this.images = new ImageFactsCache();
+        void this.lintWorkspace(false);
+      }),
       this.watch(),
     );
     // What the user is looking at first, then everything else behind a progress notification.
@@ -109,10 +117,20 @@ export class Linting implements vscode.Disposable {
     return this.lint(document.uri, document.getText(), document.version, mapping);
   }
 
-  private lint(uri: vscode.Uri, text: string, version: number | undefined, mapping: Mapping): LintResult {
+  private lint(uri: vscode.Uri, text: string, version: number | undefined, mapping: Mapping, prepared?: PreparedDocument): LintResult {
     const started = Date.now();
-    const report = lintDocument({ path: uri.fsPath, text }, mapping, { severities: readSettings(uri).rules });
+    const ready = prepared ?? prepareDocument({ path: uri.fsPath, text }, mapping);
+    const images = this.images;
+    const report = lintPrepared(ready, { severities: readSettings(uri).rules, images: images?.lookup });
     this.timings.lastLintMs = Date.now() - started;
+    // Images named for the first time, or whose files changed, are read in the background; then the
+    // text is linted again with their facts, if it is still the text the editor holds.
+    if (images && ready.imagePaths.length > 0) {
+      void images.load(ready.imagePaths).then((changed) => {
+        const current = this.results.get(uri.toString());
+        if (changed && current && current.version === version && current.text === text) this.lint(uri, text, version, mapping, ready);
+      }, () => undefined);
+    }
     const result: LintResult = { uri, version, text, report, mapping };
     this.results.set(uri.toString(), result);
     this.diagnostics.set(uri, fileDiagnostics(this.extensionUri, uri, report.findings));
@@ -122,12 +140,16 @@ export class Linting implements vscode.Disposable {
   }
 
   private async lintFromDisk(uri: vscode.Uri): Promise<void> {
-    const open = vscode.workspace.textDocuments.find((d) => d.uri.toString() === uri.toString());
-    if (open) { this.lintOpen(open); return; }
     const mapping = this.mappings.mappingFor(uri);
     if (!mapping) return;
+    const open = vscode.workspace.textDocuments.find((d) => d.uri.toString() === uri.toString());
+    if (open) {
+      this.lintOpen(open);
+      return;
+    }
     const text = await readText(uri);
-    if (text !== undefined) this.lint(uri, text, undefined, mapping);
+    if (text === undefined) return;
+    this.lint(uri, text, undefined, mapping);
   }
 
   async reloadMappings(): Promise<void> {

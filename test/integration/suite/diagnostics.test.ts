@@ -57,6 +57,17 @@ describe('diagnostics on the demo fleet', () => {
     assert.ok(related.some((r) => r.message.includes('root') && r.location.uri.toString() === document.uri.toString()), related.map((r) => r.message).join('; '));
   });
 
+  it('checks the images a definition names (a trusted workspace reads their headers)', async () => {
+    const { document } = await open(HARBOUR);
+    const mismatch = await waitFor('image-mismatch', () => ours(document.uri).find((d) => codeOf(d) === 'image-mismatch'));
+    // The definition says 64K; the image file's header says otherwise.
+    assert.deepEqual(mismatch.range, rangeOf(document, '"block": "64K"', '"64K"'));
+    assert.equal(mismatch.severity, vscode.DiagnosticSeverity.Error);
+    const { document: ticketing } = await open(TICKETING);
+    const unreadable = await waitFor('image-unreadable', () => ours(ticketing.uri).find((d) => codeOf(d) === 'image-unreadable'));
+    assert.deepEqual(unreadable.range, rangeOf(ticketing, 'file: ../images/tern-web-02-root.qcow2', '../images/tern-web-02-root.qcow2'));
+  });
+
   it('applies the quick fix for the undersized cache and the diagnostic goes away', async () => {
     const { document } = await open(TICKETING);
     const range = rangeOf(document, 'l2: 8M', '8M');

@@ -221,6 +221,34 @@ describe('qcow2 image viewer', () => {
     assert.equal(done.view.layers[0]?.caches?.now?.l2, 2048n * 512n);
   });
 
+  it('follows the editor\'s colour theme, with outlines in high contrast', async () => {
+    const uri = vscode.Uri.file(plain.path);
+    await openImage(plain.path);
+    const workbench = vscode.workspace.getConfiguration('workbench');
+    const before = workbench.inspect<string>('colorTheme')?.globalValue;
+    const seen = new Map<string, ViewerSnapshot['drawn']['theme']>();
+    try {
+      for (const [theme, kind] of [['Default Dark Modern', 'vscode-dark'], ['Default High Contrast', 'vscode-high-contrast'], ['Default Light Modern', 'vscode-light']] as const) {
+        await workbench.update('colorTheme', theme, vscode.ConfigurationTarget.Global);
+        const shot = await waitFor(`the viewer in ${theme}`, async () => {
+          const s = await snapshot(uri);
+          return s?.drawn.theme.kind === kind ? s : undefined;
+        }, 15_000);
+        seen.set(kind, shot.drawn.theme);
+      }
+    } finally {
+      await workbench.update('colorTheme', before, vscode.ConfigurationTarget.Global);
+    }
+    const dark = seen.get('vscode-dark');
+    const light = seen.get('vscode-light');
+    const contrast = seen.get('vscode-high-contrast');
+    assert.ok(dark && light && contrast);
+    assert.notEqual(dark.background, light.background, 'the background comes from the theme');
+    assert.ok(dark.dataFill && light.dataFill, 'the data columns take a colour from the theme');
+    assert.ok(contrast.cellStroke !== 'none' && contrast.cellStroke !== '', `high contrast outlines the map's cells (stroke ${contrast.cellStroke})`);
+    assert.equal(light.cellStroke, 'none', 'other themes draw no outline');
+  });
+
   it('follows the demo fleet\'s overlay to its golden image', async () => {
     const overlay = demoFile('images/tern-db-root.qcow2');
     const before = sha256(overlay.fsPath);
