@@ -39,4 +39,9 @@ window.addEventListener('message', (event: MessageEvent<unknown>) => {
   }
 });
 
+// A theme change restyles the page without a message: draw again so the host hears what it looks like.
+new MutationObserver(() => {
+  if (shown) post({ type: 'rendered', seq: shown.seq, drawn: renderView(root, shown, actions) });
+}).observe(document.body, { attributes: true, attributeFilter: ['class'] });
+
 post({ type: 'ready' });

@@ -3,7 +3,7 @@
 // formats them (sizes through the engine's own formatSize).
 import { formatSize } from '../../src/core/units';
 import type {
-  CacheChoiceView, DrawnSummary, ImageView, LayerView, WalkProgressView,
+  CacheChoiceView, DrawnSummary, ImageView, LayerView, ThemeSummary, WalkProgressView,
 } from '../../src/extension/imageViewer/protocol';
 import { allocationPicture, pictureLegend } from './picture';
 
@@ -268,5 +268,19 @@ export function renderView(root: HTMLElement, view: ImageView, actions: ViewerAc
     }
   }
   root.replaceChildren(...parts);
-  return { state: view.state, layers: view.layers.length, mapRegions: regions, cacheRows: rows, progressShown: reading };
+  return { state: view.state, layers: view.layers.length, mapRegions: regions, cacheRows: rows, progressShown: reading, theme: themeSummary(root) };
+}
+
+/** What the theme's variables resolve to here, so a test can see the viewer follow the theme. */
+export function themeSummary(root: HTMLElement): ThemeSummary {
+  const kinds = ['vscode-high-contrast-light', 'vscode-high-contrast', 'vscode-dark', 'vscode-light'];
+  const kind = kinds.find((k) => document.body.classList.contains(k)) ?? 'unknown';
+  const data = root.querySelector('svg.allocation-map .data');
+  const cell = root.querySelector('svg.allocation-map .cell');
+  return {
+    kind,
+    background: getComputedStyle(document.body).backgroundColor,
+    dataFill: data ? getComputedStyle(data).fill : '',
+    cellStroke: cell ? getComputedStyle(cell).stroke : '',
+  };
 }

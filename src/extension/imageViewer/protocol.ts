@@ -134,6 +134,17 @@ export interface DrawnSummary {
   /** Rows in the recommended-caches table. */
   cacheRows: number;
   progressShown: boolean;
+  /** The theme as the webview sees it: the editor's theme kind and colours computed from its variables. */
+  theme: ThemeSummary;
+}
+
+export interface ThemeSummary {
+  /** The body class the editor sets: vscode-light, vscode-dark, vscode-high-contrast, ... */
+  kind: string;
+  background: string;
+  /** Computed fill of the stored-data columns and outline of the empty cells (none outside high contrast). */
+  dataFill: string;
+  cellStroke: string;
 }
 
 export type ViewerHostMessage =
