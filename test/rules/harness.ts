@@ -3,7 +3,7 @@
 // A fixable rule also gets a round trip: apply its fix, lint again, the finding is gone and no byte
 // outside the edits has changed.
 import { strict as assert } from 'node:assert';
-import { lintDocument, loadMapping, type FileReport, type Finding, type Mapping } from '../../src/lint';
+import { lintDocument, loadMapping, type FileReport, type Finding, type LintOptions, type Mapping } from '../../src/lint';
 import { applyEdits } from '../../src/model/edits';
 
 /** Where the test definitions live; nothing is read from disk, the path only names the file. */
@@ -55,6 +55,10 @@ export interface RuleCase {
   mapping?: MappingObject;
   /** For invalid cases: exactly the findings of the rule under test, in order. */
   findings?: ExpectedFinding[];
+  /** Absolute path of the definition file (image paths are relative to it); default under DEFINITION_DIR. */
+  file?: string;
+  /** Lint options, computed when the case runs (e.g. the facts of images written by `before`). */
+  options?: () => LintOptions;
 }
 
 export interface RuleTable {
@@ -62,6 +66,9 @@ export interface RuleTable {
   invalid: RuleCase[];
   /** For fixable rules: one case whose first finding of the rule carries a fix. */
   fix?: RuleCase;
+  /** Runs once before the cases (e.g. writes the image files they name), and after them. */
+  before?: () => void | Promise<void>;
+  after?: () => void | Promise<void>;
 }
 
 const isPlainObject = (value: unknown): value is MappingObject =>
@@ -88,8 +95,9 @@ export function pathFor(text: string): string {
   return /^\uFEFF?\s*[{[]/.test(text) ? `${DEFINITION_DIR}/case.json` : `${DEFINITION_DIR}/case.yaml`;
 }
 
-export function lintCase(testCase: Pick<RuleCase, 'text' | 'mapping'>): FileReport {
-  return lintDocument({ path: pathFor(testCase.text), text: testCase.text }, mappingFor(testCase.mapping));
+export function lintCase(testCase: Pick<RuleCase, 'text' | 'mapping' | 'file' | 'options'>): FileReport {
+  const file = testCase.file ?? pathFor(testCase.text);
+  return lintDocument({ path: file, text: testCase.text }, mappingFor(testCase.mapping), testCase.options?.() ?? {});
 }
 
 /**
@@ -168,6 +176,8 @@ export function roundTrip(rule: string, testCase: RuleCase): string {
 /** Registers the mocha cases of one rule's table. */
 export function ruleTable(rule: string, table: RuleTable): void {
   describe(`rule ${rule}`, () => {
+    if (table.before) before(table.before);
+    if (table.after) after(table.after);
     describe('valid: no finding of this rule', () => {
       for (const testCase of table.valid) {
         it(testCase.name, () => {
