@@ -2,9 +2,13 @@
 // says, at the line and column it says, when linted with the demo's mapping file. Keeps the pages
 // honest as the rules change.
 import { strict as assert } from 'node:assert';
-import { existsSync, readFileSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import * as path from 'node:path';
-import { lintDocument, loadMapping, RULES } from '../../src/lint';
+import { ImageFacts } from '../../src/cli/lint-images';
+import { lintDocument, loadMapping, RULES, type LintOptions } from '../../src/lint';
+import { parseSize } from '../../src/core/units';
+import { writeImage } from '../image/qcow2-writer';
 
 const ROOT = path.resolve(__dirname, '../..');
 const DEMO_MAPPING = path.join(ROOT, 'examples/diskwise.yaml');
@@ -39,13 +43,32 @@ describe('rule docs pages', () => {
         assert.ok(page.includes(`**Fix:** ${rule.fixable ? 'yes' : 'no'}`), 'fixability matches the rule');
         assert.match(page, /## What it catches/);
       });
-      it('its "Before" example gives this finding where the page says', function () {
+      it('its "Before" example gives this finding where the page says', async () => {
         const page = readFileSync(file, 'utf8');
-        // Examples of the image rules need real image files beside the definition.
-        if (page.includes('<!-- example needs image files -->')) this.skip();
         const found = example(page);
         assert.ok(found && found.places.length > 0, 'the page has a Before example and names the place of its finding');
-        const report = lintDocument({ path: path.join(ROOT, 'examples/fleet/docs-example.yaml'), text: found.text }, demoMapping());
+        // The image rules' examples name image files: the page says which exist (written here from
+        // the qcow2 specification with the test writer) and the rest are missing.
+        const images = /<!-- example images: (.*?) -->/.exec(page);
+        let definition = path.join(ROOT, 'examples/fleet/docs-example.yaml');
+        let options: LintOptions = {};
+        let dir: string | undefined;
+        if (images) {
+          dir = mkdtempSync(path.join(tmpdir(), 'diskwise-docs-'));
+          definition = path.join(dir, 'fleet.yaml');
+          for (const spec of (images[1] as string).matchAll(/(\S+\.qcow2) clusterBits=(\d+) size=(\S+)/g)) {
+            const target = path.join(dir, spec[1] as string);
+            mkdirSync(path.dirname(target), { recursive: true });
+            const size = parseSize(spec[3]);
+            assert.ok(size.ok);
+            writeImage(target, { version: 3, clusterBits: Number(spec[2]), virtualSize: size.value, clusters: [] });
+          }
+          const facts = new ImageFacts();
+          await facts.load([...found.text.matchAll(/file: (\S+)/g)].map((m) => path.join(dir as string, m[1] as string)));
+          options = { images: facts.lookup };
+        }
+        const report = lintDocument({ path: definition, text: found.text }, demoMapping(), options);
+        if (dir) rmSync(dir, { recursive: true, force: true });
         const actual = report.findings.filter((f) => f.rule === rule.id).map((f) => ({ line: f.range.line, column: f.range.column }));
         assert.deepEqual(actual, found.places, report.findings.map((f) => `${f.rule} ${f.range.line}:${f.range.column}`).join('\n'));
       });
