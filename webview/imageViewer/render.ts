@@ -238,6 +238,13 @@ export function renderView(root: HTMLElement, view: ImageView, actions: ViewerAc
   state.setAttribute('role', 'status');
   const head = el('header', 'head', el('h1', undefined, view.fileName), el('div', 'muted mono', view.path), state);
   const reading = view.state === 'reading';
+  if (view.changedOnDisk) {
+    const notice = el('p', 'changed', view.changedOnDisk === 'deleted'
+      ? 'The file was deleted or moved after it was read: these numbers describe what it was.'
+      : 'The file changed on disk after it was read: the numbers below may be stale. Read again for fresh ones.');
+    notice.setAttribute('role', 'alert');
+    head.appendChild(notice);
+  }
   if (reading) head.appendChild(progressBlock(view.progress, actions));
   else if (view.state !== 'untrusted') {
     const again = el('button', 'secondary', 'Read again');
@@ -268,7 +275,7 @@ export function renderView(root: HTMLElement, view: ImageView, actions: ViewerAc
     }
   }
   root.replaceChildren(...parts);
-  return { state: view.state, layers: view.layers.length, mapRegions: regions, cacheRows: rows, progressShown: reading, theme: themeSummary(root) };
+  return { state: view.state, layers: view.layers.length, mapRegions: regions, cacheRows: rows, progressShown: reading, changedNotice: view.changedOnDisk !== null, theme: themeSummary(root) };
 }
 
 /** What the theme's variables resolve to here, so a test can see the viewer follow the theme. */

@@ -34,6 +34,8 @@ export class ImageDocument implements vscode.CustomDocument {
   private running: Promise<void> | undefined;
   private lastProgressPost = 0;
   private stopAtFirstProgress = false;
+  private changedOnDisk: 'changed' | 'deleted' | null = null;
+  private readonly watcher: vscode.FileSystemWatcher | undefined;
   current: ImageView;
   lastDrawn: { view: ImageView; drawn: DrawnSummary } | undefined;
   viewsPosted = 0;
@@ -43,6 +45,18 @@ export class ImageDocument implements vscode.CustomDocument {
     this.path = uri.fsPath;
     this.fileName = path.basename(uri.fsPath);
     this.current = this.build();
+    if (uri.scheme === 'file') {
+      // A running VM may be writing the image: say so, rather than show numbers as if they were current.
+      this.watcher = vscode.workspace.createFileSystemWatcher(new vscode.RelativePattern(vscode.Uri.file(path.dirname(this.path)), this.fileName));
+      this.watcher.onDidChange(() => this.fileChanged('changed'));
+      this.watcher.onDidCreate(() => this.fileChanged('changed'));
+      this.watcher.onDidDelete(() => this.fileChanged('deleted'));
+    }
+  }
+
+  private fileChanged(how: 'changed' | 'deleted'): void {
+    this.changedOnDisk = how;
+    this.publish(this.state);
   }
 
   listen(listener: DocumentListener): vscode.Disposable {
@@ -75,6 +89,7 @@ export class ImageDocument implements vscode.CustomDocument {
     }
     const abort = new AbortController();
     this.abort = abort;
+    this.changedOnDisk = null;
     this.note = undefined;
     this.progress = null;
     const run = this.inspect(abort.signal).finally(() => {
@@ -173,6 +188,7 @@ export class ImageDocument implements vscode.CustomDocument {
       layers: this.reports,
       state,
       progress: this.progress,
+      changedOnDisk: this.changedOnDisk,
       note: this.note,
     });
   }
@@ -187,6 +203,7 @@ export class ImageDocument implements vscode.CustomDocument {
 
   dispose(): void {
     this.stop();
+    this.watcher?.dispose();
     this.listeners.clear();
     this.disposed.fire();
     this.disposed.dispose();

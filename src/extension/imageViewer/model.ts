@@ -20,6 +20,7 @@ export interface ViewInput {
   state: ViewState;
   progress: WalkProgressView | null;
   profile?: DriverProfile;
+  changedOnDisk?: 'changed' | 'deleted' | null;
   /** Replaces the state's usual sentence (e.g. why nothing could be read at all). */
   note?: string;
 }
@@ -35,6 +36,7 @@ export function buildImageView(input: ViewInput): ImageView {
     state: input.state,
     status: input.note ?? statusLine(input.state, layers, input.progress),
     progress: input.progress,
+    changedOnDisk: input.changedOnDisk ?? null,
     layers,
     memory: chainMemory(input.layers, profile),
     profile: profile.summary,

@@ -117,6 +117,8 @@ export interface ImageView {
   /** A sentence for the state line (why it stopped, what failed, what to do). */
   status: string;
   progress: WalkProgressView | null;
+  /** The file changed (or went away) on disk after this read began: the numbers may be stale. */
+  changedOnDisk: 'changed' | 'deleted' | null;
   /** The image first, then its backing files, nearest first. */
   layers: LayerView[];
   memory: ChainMemoryView | null;
@@ -134,6 +136,8 @@ export interface DrawnSummary {
   /** Rows in the recommended-caches table. */
   cacheRows: number;
   progressShown: boolean;
+  /** The "changed on disk" notice is shown. */
+  changedNotice: boolean;
   /** The theme as the webview sees it: the editor's theme kind and colours computed from its variables. */
   theme: ThemeSummary;
 }

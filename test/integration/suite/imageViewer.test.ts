@@ -221,6 +221,33 @@ describe('qcow2 image viewer', () => {
     assert.equal(done.view.layers[0]?.caches?.now?.l2, 2048n * 512n);
   });
 
+  it('says when the file changed on disk after it was read, and reads it afresh', async () => {
+    const file = path.join(dir, 'changing.qcow2');
+    const first = writeImage(file, { version: 3, clusterBits: 16, virtualSize: 2n * GiB, clusters: [{ guest: 0, kind: 'data' }] });
+    const uri = vscode.Uri.file(file);
+    const read = await openImage(file);
+    assert.equal(read.view.layers[0]?.walk?.l2TablesAllocated, first.truth.l2TablesAllocated);
+    assert.equal(read.view.changedOnDisk, null);
+    // The guest writes into two more L2 tables' ranges (8192 clusters per table [SPEC]).
+    const second = writeImage(file, {
+      version: 3, clusterBits: 16, virtualSize: 2n * GiB,
+      clusters: [{ guest: 0, kind: 'data' }, { guest: 8192, kind: 'data' }, { guest: 3 * 8192, kind: 'data' }],
+    });
+    const stale = await waitFor('the changed-on-disk notice', async () => {
+      const shot = await snapshot(uri);
+      return shot?.view.changedOnDisk === 'changed' && shot.drawn.changedNotice ? shot : undefined;
+    }, 15_000);
+    assert.equal(stale.view.layers[0]?.walk?.l2TablesAllocated, first.truth.l2TablesAllocated, 'the old numbers stay until read again');
+    await vscode.commands.executeCommand('diskwise.imageViewer.reread', uri.toString());
+    const fresh = await waitFor('the fresh read', async () => {
+      const shot = await snapshot(uri);
+      return shot?.view.state === 'done' && shot.view.changedOnDisk === null ? shot : undefined;
+    }, 15_000);
+    assert.equal(fresh.view.layers[0]?.walk?.l2TablesAllocated, second.truth.l2TablesAllocated);
+    assert.equal(fresh.view.layers[0]?.walk?.l2TablesAllocated, 3);
+    assert.equal(fresh.drawn.changedNotice, false);
+  });
+
   it('follows the editor\'s colour theme, with outlines in high contrast', async () => {
     const uri = vscode.Uri.file(plain.path);
     await openImage(plain.path);
