@@ -2,8 +2,9 @@
 // backing chain and the recommended caches. Every number arrives from the host; this file only
 // formats them (sizes through the engine's own formatSize).
 import { formatSize } from '../../src/core/units';
-import type {
-  CacheChoiceView, DrawnSummary, ImageView, LayerView, ThemeSummary, WalkProgressView,
+import {
+  ERROR_KIND_WORDS,
+  type CacheChoiceView, type DrawnSummary, type ImageView, type LayerView, type ThemeSummary, type WalkProgressView,
 } from '../../src/extension/imageViewer/protocol';
 import { allocationPicture, pictureLegend } from './picture';
 
@@ -75,11 +76,7 @@ function factRows(layer: LayerView, counting: boolean): Array<[string, Child]> {
 
 function errorBlock(layer: LayerView): HTMLElement | null {
   if (!layer.error || layer.error.kind === 'cancelled') return null;
-  const what: Record<string, string> = {
-    missing: 'missing file', cycle: 'backing cycle', 'too-deep': 'chain too deep', 'not-qcow2': 'not a qcow2 image',
-    malformed: 'malformed image', unsupported: 'unsupported feature', unreadable: 'unreadable',
-  };
-  const block = el('p', 'error', el('strong', undefined, `${what[layer.error.kind] ?? layer.error.kind}: `), layer.error.message);
+  const block = el('p', 'error', el('strong', undefined, `${ERROR_KIND_WORDS[layer.error.kind] ?? layer.error.kind}: `), layer.error.message);
   block.setAttribute('role', 'alert');
   return block;
 }

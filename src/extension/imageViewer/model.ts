@@ -6,8 +6,9 @@ import { CAUTIONS } from '../../core/cautions';
 import { driverProfile, type DriverProfile } from '../../core/profiles';
 import { refcountCoveredBytes, subclusterSize } from '../../core/sizing';
 import type { ImageReport } from '../../image';
-import type {
-  CacheChoiceView, ChainMemoryView, ImageView, LayerCachesView, LayerView, ViewState, WalkProgressView,
+import {
+  ERROR_KIND_WORDS,
+  type CacheChoiceView, type ChainMemoryView, type ImageView, type LayerCachesView, type LayerView, type ViewState, type WalkProgressView,
 } from './protocol';
 
 export interface ViewInput {
@@ -159,7 +160,7 @@ function statusLine(state: ViewState, layers: readonly LayerView[], progress: Wa
       const bad = layers.find((l) => l.error !== undefined);
       if (!bad || !bad.error) return 'The image could not be read.';
       const where = bad.index === 0 ? 'The image' : `Backing layer ${bad.index}`;
-      return `${where} could not be read (${bad.error.kind}): ${bad.error.message}`;
+      return `${where} could not be read (${ERROR_KIND_WORDS[bad.error.kind]}): ${bad.error.message}`;
     }
     case 'done':
       return layers.length > 1 ? `Read the image and ${layers.length - 1} backing layer${layers.length === 2 ? '' : 's'}.` : 'Read the image.';

@@ -127,6 +127,18 @@ export interface ImageView {
   cautions: string[];
 }
 
+/** Each error kind of the reader in plain words, for the state line and the chain. */
+export const ERROR_KIND_WORDS: Record<ImageErrorKind, string> = {
+  missing: 'missing file',
+  unreadable: 'unreadable file',
+  'not-qcow2': 'not a qcow2 image',
+  malformed: 'malformed image',
+  unsupported: 'unsupported feature',
+  cycle: 'backing cycle',
+  'too-deep': 'chain too deep',
+  cancelled: 'stopped',
+};
+
 /** What the webview drew, echoed so a test can check the picture matches the model. */
 export interface DrawnSummary {
   state: ViewState;

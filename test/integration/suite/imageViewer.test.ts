@@ -6,7 +6,7 @@
 // named sources beside each check.
 import * as assert from 'node:assert/strict';
 import { createHash } from 'node:crypto';
-import { mkdtempSync, readFileSync, statSync } from 'node:fs';
+import { mkdtempSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import * as path from 'node:path';
 import * as vscode from 'vscode';
@@ -170,11 +170,43 @@ describe('qcow2 image viewer', () => {
     const missing = view.layers[1];
     assert.equal(missing?.error?.kind, 'missing');
     assert.match(missing?.error?.message ?? '', /no-such-base\.qcow2/);
-    assert.match(view.status, /Backing layer 1 could not be read \(missing\)/);
+    assert.match(view.status, /Backing layer 1 could not be read \(missing file\)/);
     // The image itself was still read and sized.
     assert.equal(view.layers[0]?.walk?.l2TablesAllocated, lost.truth.l2TablesAllocated);
     assert.equal(view.memory?.layersSized, 1);
     assert.equal(view.memory?.layersTotal, 2);
+  });
+
+  it('shows a backing cycle plainly', async () => {
+    const spec = (backing: string) => ({ version: 3 as const, clusterBits: 16, virtualSize: 1n * GiB, backing: { name: backing, format: 'qcow2' }, clusters: [] });
+    writeImage(path.join(dir, 'loop-a.qcow2'), spec('loop-b.qcow2'));
+    writeImage(path.join(dir, 'loop-b.qcow2'), spec('loop-a.qcow2'));
+    const { view } = await openImage(path.join(dir, 'loop-a.qcow2'));
+    assert.equal(view.state, 'failed');
+    const cyclic = view.layers.find((l) => l.error);
+    assert.equal(cyclic?.error?.kind, 'cycle');
+    assert.match(view.status, /could not be read \(backing cycle\)/);
+    assert.equal(view.layers[1]?.facts?.backing, 'loop-a.qcow2');
+  });
+
+  it('says plainly that a text file or an empty file named .qcow2 is not an image', async () => {
+    const text = path.join(dir, 'notes.qcow2');
+    writeFileSync(text, 'disk notes for the tern hosts\n');
+    const empty = path.join(dir, 'empty.qcow2');
+    writeFileSync(empty, '');
+    for (const file of [text, empty]) {
+      const before = sha256(file);
+      const { view, drawn } = await openImage(file);
+      assert.equal(view.state, 'failed');
+      assert.equal(drawn.state, 'failed');
+      assert.equal(view.layers[0]?.error?.kind, 'not-qcow2');
+      assert.match(view.status, /The image could not be read \(not a qcow2 image\)/);
+      assert.equal(view.layers[0]?.facts, null);
+      assert.equal(view.memory, null, 'nothing to size');
+      assert.equal(drawn.mapRegions, 0);
+      assert.equal(sha256(file), before);
+      await vscode.commands.executeCommand('workbench.action.closeAllEditors');
+    }
   });
 
   it('counts subclusters of an extended L2 image', async () => {
