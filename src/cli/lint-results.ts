@@ -3,11 +3,29 @@
 import * as nodePath from 'node:path';
 import type { FileReport, Finding, Mapping } from '../lint';
 
+/** What the outputs read of a disk's report. */
+export type DiskView = Pick<FileReport['disks'][number], 'machine' | 'name' | 'pointer' | 'sizing' | 'recommended'>;
+
+/** What the outputs read of a file's report: small enough to pass between threads cheaply. */
+export interface ReportView {
+  parsed: boolean;
+  disks: DiskView[];
+  findings: Finding[];
+}
+
+export function viewOf(report: FileReport): ReportView {
+  return {
+    parsed: report.parsed,
+    disks: report.disks.map((d) => ({ machine: d.machine, name: d.name, pointer: d.pointer, sizing: d.sizing, recommended: d.recommended })),
+    findings: report.findings,
+  };
+}
+
 export interface LintedFile {
   /** Absolute path. */
   path: string;
   /** Absent when the file could not be read. */
-  report?: FileReport;
+  report?: ReportView;
   /** Why the file could not be read (or written back by --fix). */
   error?: string;
   /** Fixes --fix applied to this file. */
@@ -61,7 +79,7 @@ export function summarize(run: LintRun): LintSummary {
 }
 
 /** The findings an output shows: everything, or under --quiet the unsuppressed errors only. */
-export function shownFindings(run: LintRun, report: FileReport): Finding[] {
+export function shownFindings(run: LintRun, report: ReportView): Finding[] {
   return run.quiet ? report.findings.filter((f) => f.severity === 'error' && !f.suppressed) : report.findings;
 }
 

@@ -1,13 +1,11 @@
 // `diskwise lint` (CONTRACTS.md §2): find the mapping file, pick the definition files, lint each
 // one (and fix it with --fix), print text, JSON or SARIF, and exit 0, 1 or 2 as the contract says.
-import * as fs from 'node:fs';
-import { lintPrepared, prepareDocument, type FileReport, type LintOptions, type Mapping } from '../lint';
 import { lastOption, parseArgs, type OptionSpec } from './args';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
-import { displayPath, ioMessage, resolveMapping, selectFiles, stripBom } from './lint-discovery';
-import { encodeLike, fixText, writeFileAtomic } from './lint-fix';
-import { ImageFacts } from './lint-images';
+import { displayPath, resolveMapping, selectFiles } from './lint-discovery';
+import { lintFile, type LintFormat, type LintRequest } from './lint-file';
 import { renderJson } from './lint-json';
+import { lintFiles } from './lint-parallel';
 import { startProgress } from './lint-progress';
 import { summarize, type LintedFile, type LintRun } from './lint-results';
 import { renderSarif } from './lint-sarif';
@@ -23,8 +21,7 @@ const OPTIONS: Record<string, OptionSpec> = {
   help: { value: false },
 };
 
-const FORMATS = ['text', 'json', 'sarif'] as const;
-type LintFormat = (typeof FORMATS)[number];
+const FORMATS: readonly LintFormat[] = ['text', 'json', 'sarif'];
 
 export const LINT_USAGE = `usage: diskwise lint [PATH...] [--config FILE] [--format text|json|sarif]
                      [--fix] [--max-warnings N] [--quiet]
@@ -43,56 +40,10 @@ exit status: 0 no errors and warnings within --max-warnings; 1 errors, or too ma
              2 usage, mapping file or file read/write problems
 `;
 
-interface LintRequest {
-  paths: string[];
-  config?: string;
-  format: LintFormat;
-  fix: boolean;
-  maxWarnings?: number;
-  quiet: boolean;
-  images: boolean;
-}
 
 function usageError(io: CommandIO, message: string): number {
   io.stderr(`diskwise lint: ${message}\n\n${LINT_USAGE}`);
   return EXIT_USAGE;
-}
-
-/** Reads one file, lints it and (with --fix) fixes it; never throws. */
-async function lintFile(path: string, mapping: Mapping, request: LintRequest, images: ImageFacts, notes: string[], cwd: string): Promise<LintedFile> {
-  let bytes: Buffer;
-  try {
-    bytes = fs.readFileSync(path);
-  } catch (error) {
-    return { path, error: `cannot read: ${ioMessage(error)}`, fixed: 0 };
-  }
-  const decoded = bytes.toString('utf8');
-  const hadBom = decoded.charCodeAt(0) === 0xfeff;
-  // Offsets are counted without the byte order mark, as editors count them; --fix puts it back.
-  const text = stripBom(decoded);
-  let report: FileReport;
-  const options: LintOptions = request.images ? { images: images.lookup } : {};
-  try {
-    const prepared = prepareDocument({ path, text }, mapping);
-    if (request.images && prepared.imagePaths.length > 0) await images.load(prepared.imagePaths);
-    report = lintPrepared(prepared, options);
-  } catch (error) {
-    return { path, error: `internal error while linting: ${error instanceof Error ? error.message : String(error)}`, fixed: 0 };
-  }
-  if (!request.fix || !report.parsed || !report.findings.some((f) => f.fix && !f.suppressed)) return { path, report, fixed: 0 };
-  if (!encodeLike(text, hadBom).equals(bytes)) {
-    notes.push(`${displayPath(path, cwd)}: left unchanged by --fix: the file is not valid UTF-8, so writing it back would change bytes the fixes do not touch`);
-    return { path, report, fixed: 0 };
-  }
-  const outcome = fixText(path, text, mapping, report, options);
-  if (outcome.withheld) notes.push(`${displayPath(path, cwd)}: ${outcome.withheld}`);
-  if (outcome.applied === 0) return { path, report: outcome.report, fixed: 0 };
-  try {
-    writeFileAtomic(path, encodeLike(outcome.text, hadBom));
-  } catch (error) {
-    return { path, report, error: `cannot write the fixes: ${ioMessage(error)}`, fixed: 0 };
-  }
-  return { path, report: outcome.report, fixed: outcome.applied };
 }
 
 function readRequest(argv: readonly string[], io: CommandIO): LintRequest | number {
@@ -134,12 +85,9 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   const selection = selectFiles(mapping.value, io.cwd, request.paths);
   const notes: string[] = [];
   const progress = startProgress(io, selection.files.length, request.fix ? 'fixing' : 'linting');
-  const images = new ImageFacts();
-  const files: LintedFile[] = selection.errors.map((e) => ({ path: e.path, error: e.message, fixed: 0 }));
-  for (const path of selection.files) {
-    files.push(await lintFile(path, mapping.value, request, images, notes, io.cwd));
-    progress.tick(files.length);
-  }
+  const linted = await lintFiles(selection.files, mapping.value, request, io.cwd, progress);
+  notes.push(...[...linted.notes].sort());
+  const files: LintedFile[] = [...selection.errors.map((e) => ({ path: e.path, error: e.message, fixed: 0 })), ...linted.files];
   progress.done();
   files.sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
 

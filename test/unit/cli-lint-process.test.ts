@@ -4,7 +4,8 @@ import { strict as assert } from 'node:assert';
 import * as fs from 'node:fs';
 import * as path from 'node:path';
 import { CONTRACT } from '../helpers/sources';
-import { BROKEN_MAPPING, CLI, copyWorkspace, lintProcess, removeWorkspace, STACK_FRAME, WORKSPACE, type LintJson } from '../fixtures/lint/run';
+import { threadCount } from '../../src/cli/lint-parallel';
+import { BROKEN_MAPPING, CLI, copyWorkspace, lintProcess, makeWorkspace, removeWorkspace, STACK_FRAME, WORKSPACE, type LintJson } from '../fixtures/lint/run';
 
 describe('diskwise lint in a child process', () => {
   before(function () {
@@ -60,5 +61,65 @@ describe('diskwise lint in a child process', () => {
     } finally {
       removeWorkspace(dir);
     }
+  });
+
+  describe('worker threads for large runs', function () {
+    this.timeout(120_000);
+    // DISKWISE_JOBS forces threads whatever the file count, so a small workspace exercises them
+    const MAPPING = 'version: 1\ninclude: ["defs/*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { name: "$.id", size: "$.size", l2Cache: "$.l2" } }\n';
+    const SIZES = ['20G', '100G', '1T'];
+    const CACHES = ['1M', '2.5M', '8M', '3000K'];
+    const workspace = (count: number) => {
+      const files: Record<string, string> = { 'diskwise.yaml': MAPPING };
+      for (let i = 0; i < count; i++) {
+        files[`defs/vm${String(i).padStart(4, '0')}.yaml`] = `drives:\n  - { id: a, size: ${SIZES[i % 3]}, l2: ${CACHES[i % 4]} }\n  - { id: b, size: ${SIZES[(i + 1) % 3]} }\n`;
+      }
+      files['defs/vm0007.yaml'] = 'drives: [\n';
+      return makeWorkspace(files);
+    };
+
+    it(`${CONTRACT} the output is the same on one thread and on several`, async () => {
+      const dir = workspace(60);
+      try {
+        for (const format of ['json', 'sarif', 'text']) {
+          const one = await lintProcess(dir, ['--format', format], { DISKWISE_JOBS: '1' });
+          const three = await lintProcess(dir, ['--format', format], { DISKWISE_JOBS: '3' });
+          assert.equal(one.code, 1);
+          assert.equal(three.code, one.code);
+          assert.equal(three.stdout, one.stdout, format);
+          assert.equal(three.stderr, one.stderr);
+        }
+      } finally {
+        removeWorkspace(dir);
+      }
+    });
+
+    it(`${CONTRACT} --fix on several threads writes the same files as on one`, async () => {
+      const a = workspace(60);
+      const b = workspace(60);
+      try {
+        const one = await lintProcess(a, ['--fix', '--format', 'json'], { DISKWISE_JOBS: '1' });
+        const three = await lintProcess(b, ['--fix', '--format', 'json'], { DISKWISE_JOBS: '3' });
+        assert.equal(three.stdout, one.stdout);
+        assert.ok(((JSON.parse(one.stdout) as LintJson).summary.fixed ?? 0) > 0);
+        for (const name of fs.readdirSync(path.join(a, 'defs'))) {
+          assert.equal(fs.readFileSync(path.join(b, 'defs', name), 'utf8'), fs.readFileSync(path.join(a, 'defs', name), 'utf8'), name);
+        }
+        assert.deepEqual(fs.readdirSync(path.join(b, 'defs')).sort(), fs.readdirSync(path.join(a, 'defs')).sort(), 'no temporary files left');
+      } finally {
+        removeWorkspace(a);
+        removeWorkspace(b);
+      }
+    });
+
+    it(`${CONTRACT} thread count: one for small runs or when DISKWISE_JOBS=1, never more than the cores`, () => {
+      assert.equal(threadCount(10, {}, 8), 1);
+      assert.equal(threadCount(5000, {}, 1), 1);
+      assert.equal(threadCount(5000, {}, 2), 2);
+      assert.equal(threadCount(5000, { DISKWISE_JOBS: '1' }, 8), 1);
+      assert.equal(threadCount(5000, { DISKWISE_JOBS: '3' }, 8), 3);
+      assert.equal(threadCount(2, { DISKWISE_JOBS: '4' }, 8), 2);
+      assert.equal(threadCount(5000, { DISKWISE_JOBS: 'lots' }, 2), 2);
+    });
   });
 });

@@ -1,0 +1,58 @@
+// One definition file through `diskwise lint`: read it, lint it, fix it with --fix and write it
+// back. Shared by the command's own loop and its worker threads; never throws.
+import * as fs from 'node:fs';
+import { lintPrepared, prepareDocument, type FileReport, type LintOptions, type Mapping } from '../lint';
+import { displayPath, ioMessage, stripBom } from './lint-discovery';
+import { encodeLike, fixText, writeFileAtomic } from './lint-fix';
+import type { ImageFacts } from './lint-images';
+import { viewOf, type LintedFile } from './lint-results';
+
+export type LintFormat = 'text' | 'json' | 'sarif';
+
+export interface LintRequest {
+  paths: string[];
+  config?: string;
+  format: LintFormat;
+  fix: boolean;
+  maxWarnings?: number;
+  quiet: boolean;
+  images: boolean;
+}
+
+/** Reads one file, lints it and (with --fix) fixes it; never throws. */
+export async function lintFile(path: string, mapping: Mapping, request: LintRequest, images: ImageFacts, notes: string[], cwd: string): Promise<LintedFile> {
+  let bytes: Buffer;
+  try {
+    bytes = fs.readFileSync(path);
+  } catch (error) {
+    return { path, error: `cannot read: ${ioMessage(error)}`, fixed: 0 };
+  }
+  const decoded = bytes.toString('utf8');
+  const hadBom = decoded.charCodeAt(0) === 0xfeff;
+  // Offsets are counted without the byte order mark, as editors count them; --fix puts it back.
+  const text = stripBom(decoded);
+  let report: FileReport;
+  const options: LintOptions = request.images ? { images: images.lookup } : {};
+  try {
+    const prepared = prepareDocument({ path, text }, mapping);
+    if (request.images && prepared.imagePaths.length > 0) await images.load(prepared.imagePaths);
+    report = lintPrepared(prepared, options);
+  } catch (error) {
+    return { path, error: `internal error while linting: ${error instanceof Error ? error.message : String(error)}`, fixed: 0 };
+  }
+  if (!request.fix || !report.parsed || !report.findings.some((f) => f.fix && !f.suppressed)) return { path, report: viewOf(report), fixed: 0 };
+  if (!encodeLike(text, hadBom).equals(bytes)) {
+    notes.push(`${displayPath(path, cwd)}: left unchanged by --fix: the file is not valid UTF-8, so writing it back would change bytes the fixes do not touch`);
+    return { path, report: viewOf(report), fixed: 0 };
+  }
+  const outcome = fixText(path, text, mapping, report, options);
+  if (outcome.withheld) notes.push(`${displayPath(path, cwd)}: ${outcome.withheld}`);
+  if (outcome.applied === 0) return { path, report: viewOf(outcome.report), fixed: 0 };
+  try {
+    writeFileAtomic(path, encodeLike(outcome.text, hadBom));
+  } catch (error) {
+    return { path, report: viewOf(report), error: `cannot write the fixes: ${ioMessage(error)}`, fixed: 0 };
+  }
+  return { path, report: viewOf(outcome.report), fixed: outcome.applied };
+}
+
