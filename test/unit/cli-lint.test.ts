@@ -271,6 +271,17 @@ describe('diskwise lint: the mapping file', () => {
     assert.equal(json(run).files.length, 5, 'the workspace mapping, found two folders up');
   });
 
+  it(`${COMMON} none above the working directory: the nearest one above the first named path`, async () => {
+    const dir = makeWorkspace({ 'elsewhere.txt': '' });
+    try {
+      const run = await lintIn(dir, ['--format', 'json', path.join(WORKSPACE, 'hosts', 'undersized.yaml')]);
+      assert.equal(run.code, 0, run.stderr);
+      assert.deepEqual(json(run).files.map((f) => f.path), ['hosts/undersized.yaml']);
+    } finally {
+      removeWorkspace(dir);
+    }
+  });
+
   it(`${CONTRACT} --config names it explicitly`, async () => {
     const run = await lintIn(path.dirname(WORKSPACE), ['--config', path.join('workspace', 'diskwise.yaml'), '--format', 'json']);
     assert.equal(json(run).files.length, 5);
