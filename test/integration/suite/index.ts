@@ -8,6 +8,7 @@ const testFiles: Array<() => unknown> = [
   () => require('./activation.test'),
   () => require('./diagnostics.test'),
   () => require('./mapping-and-commands.test'),
+  () => require('./settings.test'),
   () => require('./imageViewer.test'),
 ];
 
