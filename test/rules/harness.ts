@@ -201,6 +201,16 @@ export function ruleTable(rule: string, table: RuleTable): void {
         it(fixCase.name, () => {
           roundTrip(rule, fixCase);
         });
+        // The same case with CRLF line ends and with a UTF-8 byte order mark: the fix must keep
+        // every other byte, the line ends and the mark included.
+        it(`${fixCase.name} (CRLF line ends)`, () => {
+          const fixed = roundTrip(rule, { ...fixCase, text: fixCase.text.replace(/\r?\n/g, '\r\n') });
+          assert.doesNotMatch(fixed, /[^\r]\n/, 'every line break stays CRLF');
+        });
+        it(`${fixCase.name} (UTF-8 byte order mark)`, () => {
+          const fixed = roundTrip(rule, { ...fixCase, text: `\uFEFF${fixCase.text}` });
+          assert.ok(fixed.startsWith('\uFEFF') && fixed.indexOf('\uFEFF', 1) === -1, 'the mark stays first, once');
+        });
       });
     }
   });
