@@ -1,7 +1,7 @@
 // The image viewer's script: receives views and progress from the extension host and draws them;
 // Stop and Read again go back as messages. It reads nothing itself.
 import {
-  decodeViewerHostMessage, encodeViewerMessage, type ImageView, type ViewerWebviewMessage,
+  decodeViewerHostMessage, encodeViewerMessage, type ImageView, type ProfileChoice, type ViewerWebviewMessage,
 } from '../../src/extension/imageViewer/protocol';
 import { renderView, updateProgress } from './render';
 
@@ -18,6 +18,7 @@ const post = (message: ViewerWebviewMessage): void => vscode.postMessage(encodeV
 const actions = {
   stop: () => post({ type: 'stop' }),
   reread: () => post({ type: 'reread' }),
+  profile: (choice: ProfileChoice) => post({ type: 'profile', choice }),
 };
 
 window.addEventListener('message', (event: MessageEvent<unknown>) => {

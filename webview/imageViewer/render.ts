@@ -4,13 +4,39 @@
 import { formatSize } from '../../src/core/units';
 import {
   ERROR_KIND_WORDS,
-  type CacheChoiceView, type DrawnSummary, type ImageView, type LayerView, type ThemeSummary, type WalkProgressView,
+  type CacheChoiceView, type DrawnSummary, type ProfileChoice, type ImageView, type LayerView, type ThemeSummary, type WalkProgressView,
 } from '../../src/extension/imageViewer/protocol';
 import { allocationPicture, pictureLegend } from './picture';
 
 export interface ViewerActions {
   stop(): void;
   reread(): void;
+  profile(choice: ProfileChoice): void;
+}
+
+const PROFILES: Array<{ label: string; choice: ProfileChoice }> = [
+  { label: 'current driver, Linux host', choice: { generation: 'current', platform: 'linux' } },
+  { label: 'current driver, other hosts', choice: { generation: 'current', platform: 'other' } },
+  { label: 'legacy driver', choice: { generation: 'legacy', platform: 'linux' } },
+];
+
+function profilePicker(view: ImageView, actions: ViewerActions): HTMLElement {
+  const select = el('select', 'profile-picker');
+  select.id = 'profile-picker';
+  PROFILES.forEach((p, i) => {
+    const option = el('option', undefined, p.label);
+    option.value = String(i);
+    const current = view.profileChoice;
+    option.selected = p.choice.generation === current.generation && (p.choice.generation === 'legacy' || p.choice.platform === current.platform);
+    select.appendChild(option);
+  });
+  select.addEventListener('change', () => {
+    const picked = PROFILES[Number(select.value)];
+    if (picked) actions.profile(picked.choice);
+  });
+  const label = el('label', undefined, 'Driver defaults: ');
+  label.htmlFor = select.id;
+  return el('div', 'profile-row', label, select);
 }
 
 type Child = Node | string | null | undefined | false;
@@ -186,12 +212,12 @@ function totalCell(n: bigint): HTMLElement {
   return el('span', undefined, bytes(n), el('br'), el('span', 'muted', `${n.toLocaleString('en-US')} bytes`));
 }
 
-function cachesSection(view: ImageView): { section: HTMLElement; rows: number } {
-  const section = el('section', 'caches', el('h2', undefined, 'Recommended cache settings'));
+function cachesSection(view: ImageView, actions: ViewerActions): { section: HTMLElement; rows: number } {
+  const section = el('section', 'caches', el('h2', undefined, 'Recommended cache settings'), profilePicker(view, actions));
   section.appendChild(el('p', 'muted',
     'Per layer: the L2 cache that holds every L2 table allocated now, the L2 cache that maps the whole virtual disk ' +
     '(what the image needs once fully allocated), and what the driver picks when nothing is set. ' +
-    `Refcount caches are the driver's default. Driver defaults assume: ${view.profile}.`));
+    `Refcount caches are the driver's default. Assumed: ${view.profile}.`));
   const t = el('table', 'cache-table');
   const head = el('tr');
   for (const h of ['layer', 'now: every allocated table', 'fully allocated: full coverage', 'driver default']) head.appendChild(el('th', undefined, h));
@@ -266,7 +292,7 @@ export function renderView(root: HTMLElement, view: ImageView, actions: ViewerAc
     }
     parts.push(chainSection(view));
     if (view.layers.some((l) => l.caches)) {
-      const caches = cachesSection(view);
+      const caches = cachesSection(view, actions);
       rows = caches.rows;
       parts.push(caches.section);
     }

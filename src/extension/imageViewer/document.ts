@@ -4,8 +4,9 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { inspectImage, readChain, type ImageReport, type InspectProgress } from '../../image';
 import { layerReport } from '../../image/report';
+import { driverProfile, type DriverProfile } from '../../core/profiles';
 import { buildImageView, finalState } from './model';
-import type { DrawnSummary, ImageView, ViewState, WalkProgressView } from './protocol';
+import type { DrawnSummary, ImageView, ProfileChoice, ViewState, WalkProgressView } from './protocol';
 
 /** Progress reaches the webview at most this often; the walk itself reports more often. */
 const PROGRESS_EVERY_MS = 100;
@@ -35,6 +36,7 @@ export class ImageDocument implements vscode.CustomDocument {
   private lastProgressPost = 0;
   private stopAtFirstProgress = false;
   private changedOnDisk: 'changed' | 'deleted' | null = null;
+  private profile: DriverProfile = driverProfile();
   private readonly watcher: vscode.FileSystemWatcher | undefined;
   current: ImageView;
   lastDrawn: { view: ImageView; drawn: DrawnSummary } | undefined;
@@ -103,6 +105,12 @@ export class ImageDocument implements vscode.CustomDocument {
 
   stop(): void {
     this.abort?.abort();
+  }
+
+  /** The driver-default profile changes the caches only: recomputed from the reports, nothing is reread. */
+  setProfile(choice: ProfileChoice): void {
+    this.profile = driverProfile(choice.generation, choice.platform);
+    this.publish(this.state);
   }
 
   async reread(): Promise<void> {
@@ -189,6 +197,7 @@ export class ImageDocument implements vscode.CustomDocument {
       state,
       progress: this.progress,
       changedOnDisk: this.changedOnDisk,
+      profile: this.profile,
       note: this.note,
     });
   }

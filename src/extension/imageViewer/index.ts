@@ -6,10 +6,12 @@
 //   diskwise.imageViewer.lastView  -> the last view model a webview drew, wire-encoded (decodeSnapshot)
 //   diskwise.imageViewer.stop      -> stops a running walk; true when one was running
 //   diskwise.imageViewer.reread    -> reads the image again; resolves when done
+//   diskwise.imageViewer.setProfile (uri, { generation, platform }) -> the driver-default profile the
+//                                     caches assume, as the webview's selector sets it
 //   diskwise.imageViewer.stopAtFirstProgress (uri) -> the next walk of that image stops itself at its
 //                                     first progress report, so a stop lands mid-walk deterministically
 import * as vscode from 'vscode';
-import { encodeSnapshot } from './protocol';
+import { encodeSnapshot, type ProfileChoice } from './protocol';
 import { IMAGE_VIEW_TYPE, ImageViewerProvider } from './provider';
 
 export { IMAGE_VIEW_TYPE } from './provider';
@@ -30,6 +32,7 @@ export function registerImageViewer(context: vscode.ExtensionContext): void {
     vscode.commands.registerCommand('diskwise.imageViewer.reread', async (uri?: string) => {
       await provider.reread(uri);
     }),
+    vscode.commands.registerCommand('diskwise.imageViewer.setProfile', (uri: string | undefined, choice: ProfileChoice) => provider.setProfile(uri, choice)),
     vscode.commands.registerCommand('diskwise.imageViewer.stopAtFirstProgress', (uri: string) => provider.armStop(uri)),
   );
 }

@@ -41,6 +41,7 @@ export function buildImageView(input: ViewInput): ImageView {
     layers,
     memory: chainMemory(input.layers, profile),
     profile: profile.summary,
+    profileChoice: { generation: profile.generation, platform: profile.platform },
     cautions: Object.values(CAUTIONS),
   };
 }

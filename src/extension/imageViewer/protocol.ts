@@ -3,6 +3,7 @@
 // Byte counts are bigint and travel as tagged strings (the panel's codec), so no size is ever
 // rounded through a float on the way.
 import { fromWire, toWire } from '../../../webview/protocol';
+import type { DriverGeneration, HostPlatform } from '../../core/profiles';
 import type { ImageErrorKind } from '../../image/errors';
 
 /** Where the viewer is with one image. */
@@ -122,8 +123,9 @@ export interface ImageView {
   /** The image first, then its backing files, nearest first. */
   layers: LayerView[];
   memory: ChainMemoryView | null;
-  /** The driver-default profile the numbers assume. */
+  /** The driver-default profile the numbers assume, in words, and which one it is. */
   profile: string;
+  profileChoice: ProfileChoice;
   cautions: string[];
 }
 
@@ -138,6 +140,11 @@ export const ERROR_KIND_WORDS: Record<ImageErrorKind, string> = {
   'too-deep': 'chain too deep',
   cancelled: 'stopped',
 };
+
+export interface ProfileChoice {
+  generation: DriverGeneration;
+  platform: HostPlatform;
+}
 
 /** What the webview drew, echoed so a test can check the picture matches the model. */
 export interface DrawnSummary {
@@ -171,10 +178,11 @@ export type ViewerWebviewMessage =
   | { type: 'ready' }
   | { type: 'rendered'; seq: number; drawn: DrawnSummary }
   | { type: 'stop' }
-  | { type: 'reread' };
+  | { type: 'reread' }
+  | { type: 'profile'; choice: ProfileChoice };
 
 const HOST_TYPES = new Set<ViewerHostMessage['type']>(['view', 'progress']);
-const WEBVIEW_TYPES = new Set<ViewerWebviewMessage['type']>(['ready', 'rendered', 'stop', 'reread']);
+const WEBVIEW_TYPES = new Set<ViewerWebviewMessage['type']>(['ready', 'rendered', 'stop', 'reread', 'profile']);
 
 function typeOf(value: unknown): unknown {
   return value !== null && typeof value === 'object' ? (value as { type?: unknown }).type : undefined;

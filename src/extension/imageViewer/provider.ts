@@ -5,8 +5,16 @@ import { randomBytes } from 'node:crypto';
 import * as vscode from 'vscode';
 import { ImageDocument } from './document';
 import {
-  decodeViewerWebviewMessage, encodeViewerMessage, type ViewerHostMessage, type ViewerSnapshot,
+  decodeViewerWebviewMessage, encodeViewerMessage, type ProfileChoice, type ViewerHostMessage, type ViewerSnapshot,
 } from './protocol';
+import { DRIVER_GENERATIONS, HOST_PLATFORMS } from '../../core/profiles';
+
+function isProfileChoice(value: unknown): value is ProfileChoice {
+  const v = value as Partial<ProfileChoice> | null;
+  return typeof v === 'object' && v !== null
+    && DRIVER_GENERATIONS.includes(v.generation as ProfileChoice['generation'])
+    && HOST_PLATFORMS.includes(v.platform as ProfileChoice['platform']);
+}
 
 export const IMAGE_VIEW_TYPE = 'diskwise.qcow2Image';
 
@@ -61,6 +69,9 @@ export class ImageViewerProvider implements vscode.CustomReadonlyEditorProvider<
           case 'reread':
             void document.reread();
             break;
+          case 'profile':
+            if (isProfileChoice(message.choice)) document.setProfile(message.choice);
+            break;
         }
       }),
       panel.onDidChangeViewState(() => {
@@ -95,6 +106,13 @@ export class ImageViewerProvider implements vscode.CustomReadonlyEditorProvider<
 
   reread(uri?: string): Promise<void> | undefined {
     return this.find(uri)?.reread();
+  }
+
+  setProfile(uri: string | undefined, choice: ProfileChoice): boolean {
+    const document = this.find(uri);
+    if (!document || !isProfileChoice(choice)) return false;
+    document.setProfile(choice);
+    return true;
   }
 
   armStop(uri: string): void {

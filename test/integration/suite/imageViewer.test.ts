@@ -129,6 +129,36 @@ describe('qcow2 image viewer', () => {
     assert.ok(view.cautions.some((c) => /per backing layer/.test(c)));
   });
 
+  it('recomputes the caches for another driver profile without reading the image again', async () => {
+    const big = writeImage(path.join(dir, 'profiles.qcow2'), { version: 3, clusterBits: 16, virtualSize: 256n * GiB, clusters: [{ guest: 0, kind: 'data' }] });
+    const uri = vscode.Uri.file(big.path);
+    const first = await openImage(big.path);
+    // FACTS.md check values (common practice): 256 GiB with 64 KiB clusters needs 32 MiB for full coverage.
+    assert.equal(first.view.layers[0]?.caches?.full.l2, 32n * MiB);
+    // [CACHE] current driver on Linux: up to 32 MiB.
+    assert.deepEqual(first.view.profileChoice, { generation: 'current', platform: 'linux' });
+    assert.equal(first.view.layers[0]?.caches?.driverDefault.l2, 32n * MiB);
+
+    const pick = async (generation: string, platform: string): Promise<ViewerSnapshot> => {
+      assert.equal(await vscode.commands.executeCommand('diskwise.imageViewer.setProfile', uri.toString(), { generation, platform }), true);
+      return waitFor(`the ${generation}/${platform} profile drawn`, async () => {
+        const shot = await snapshot(uri);
+        return shot?.view.profileChoice.generation === generation && shot.view.profileChoice.platform === platform ? shot : undefined;
+      });
+    };
+    // [CACHE] current driver elsewhere: up to 8 MiB.
+    const other = await pick('current', 'other');
+    assert.equal(other.view.layers[0]?.caches?.driverDefault.l2, 8n * MiB);
+    // [CACHE] legacy driver: a 1 MiB L2 cache and a refcount cache a quarter of the L2 cache.
+    const legacy = await pick('legacy', 'linux');
+    assert.equal(legacy.view.layers[0]?.caches?.driverDefault.l2, 1n * MiB);
+    assert.equal(legacy.view.layers[0]?.caches?.driverDefault.refcount, 256n * KiB);
+    assert.equal(legacy.view.layers[0]?.caches?.full.refcount, 8n * MiB);
+    assert.equal(legacy.view.layers[0]?.caches?.full.l2, 32n * MiB, 'full coverage does not depend on the driver');
+    assert.equal(legacy.progressReports, first.progressReports, 'the image was not walked again');
+    assert.equal(legacy.view.state, 'done');
+  });
+
   it('sizes every layer of a backing chain with its own cluster size and sums the memory', async () => {
     const base = writeImage(path.join(dir, 'chain-base.qcow2'), { version: 3, clusterBits: 20, virtualSize: 4n * GiB, clusters: [{ guest: 0, kind: 'data' }], seed: 2 });
     const overlay = writeImage(path.join(dir, 'chain-top.qcow2'), {
