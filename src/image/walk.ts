@@ -5,7 +5,7 @@ import { ImageError, throwIfAborted } from './errors';
 import type { Qcow2Header } from './header';
 import type { ByteSource } from './source';
 import { L2Counter } from './l2-counter';
-import { createBlockScanner } from './zero-scan';
+import { acquireBlockScanner, releaseBlockScanner, type BlockScanner } from './zero-scan';
 
 export interface WalkProgress {
   /** L1 entries looked at so far, of `l1Total` (the entries that map the virtual size). */
@@ -61,8 +61,17 @@ const YIELD_EVERY_MS = 8;
 const hex = (n: number): string => `0x${n.toString(16)}`;
 
 export async function walkMetadata(source: ByteSource, header: Qcow2Header, options: WalkOptions = {}): Promise<MetadataSummary> {
+  throwIfAborted(options.signal);
+  const scanner = acquireBlockScanner(Number(header.clusterSize), READS_IN_FLIGHT);
+  try {
+    return await walkWith(scanner, source, header, options);
+  } finally {
+    releaseBlockScanner(scanner);
+  }
+}
+
+async function walkWith(scanner: BlockScanner, source: ByteSource, header: Qcow2Header, options: WalkOptions): Promise<MetadataSummary> {
   const { signal, onProgress } = options;
-  throwIfAborted(signal);
   const cluster = Number(header.clusterSize);
   const fileSize = Number(header.fileSize);
   const extended = header.extendedL2;
@@ -96,7 +105,6 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
   };
   // Tables are read into the scanner's buffers; it finds the non-zero 16-byte blocks, and the
   // counter decodes only the entries in those.
-  const scanner = createBlockScanner(cluster, READS_IN_FLIGHT);
   const counter = new L2Counter(header, scanner, totalClusters, clustersPerRegion, regions, lastClusterBytes);
   const warn = (what: string, where: string): void => {
     const seen = counter.oddities.get(what);
@@ -176,18 +184,26 @@ export async function walkMetadata(source: ByteSource, header: Qcow2Header, opti
       }
     } else {
       const pending: Array<Promise<number>> = [];
-      for (let t = 0; t < tables.length && t < READS_IN_FLIGHT; t++) pending.push(readTable(tables[t]!.offset, t));
-      for (let t = 0; t < tables.length; t++) {
-        const slot = await pending[t]!;
-        await breathe();
-        if (signal?.aborted) {
-          await Promise.allSettled(pending.slice(t + 1));
-          throw new ImageError('cancelled', 'cancelled');
+      // A read that fails while an earlier one is awaited is reported when its turn comes.
+      const start = (offset: number, slot: number): void => {
+        const read = readTable(offset, slot);
+        read.catch(() => undefined);
+        pending.push(read);
+      };
+      try {
+        for (let t = 0; t < tables.length && t < READS_IN_FLIGHT; t++) start(tables[t]!.offset, t);
+        for (let t = 0; t < tables.length; t++) {
+          const slot = await pending[t]!;
+          await breathe();
+          throwIfAborted(signal);
+          counter.countTable(slot, tables[t]!.l1Index);
+          afterTable(tables[t]!.l1Index);
+          const next = t + READS_IN_FLIGHT;
+          if (next < tables.length) start(tables[next]!.offset, slot);
         }
-        counter.countTable(slot, tables[t]!.l1Index);
-        afterTable(tables[t]!.l1Index);
-        const next = t + READS_IN_FLIGHT;
-        if (next < tables.length) pending.push(readTable(tables[next]!.offset, slot));
+      } finally {
+        // No read may still be filling a buffer once the scanner goes back to the pool.
+        await Promise.allSettled(pending);
       }
     }
     report(chunkStart + count);

@@ -1,6 +1,6 @@
 // Finding the few non-zero entries of a sparse L2 table fast. Every byte of every allocated table
 // must be looked at, which in plain JavaScript costs about as much as reading the table; a tiny
-// WebAssembly function with 128-bit SIMD compares 64 bytes per step instead. Both paths give the
+// WebAssembly function with 128-bit SIMD compares 128 bytes per step instead. Both paths give the
 // same answer: the byte offsets of the non-zero 16-byte blocks of a table.
 
 export interface BlockScanner {
@@ -38,11 +38,14 @@ const name = (text: string): number[] => vector([...text].map((c) => [c.charCode
  *   block $done
  *     loop $next
  *       (br_if $done (i32.ge_u $p $end))
- *       (if (v128.any_true (v128.or (v128.or (load $p) (load $p+16)) (v128.or (load $p+32) (load $p+48))))
- *         for k in 0..3: (if (v128.any_true (load $p+16k)) (store $out+4n ($p+16k)) (n++)))
- *       (p += 64) (br $next)))
+ *       (if (v128.any_true (v128.or ... (v128.or (load $p) (load $p+16)) ... (load $p+112)))
+ *         for k in 0..7: (if (v128.any_true (load $p+16k)) (store $out+4n ($p+16k)) (n++)))
+ *       (p += 128) (br $next)))
  *   $n)
  */
+/** 16-byte vectors ORed per step: 8 (128 bytes; every table is a multiple of 512 bytes). */
+const VECTORS_PER_STEP = 8;
+
 function scanModuleBytes(): Uint8Array<ArrayBuffer> {
   const I32 = 0x7f;
   const get = (i: number): number[] => [0x20, i];
@@ -63,9 +66,9 @@ function scanModuleBytes(): Uint8Array<ArrayBuffer> {
     ...vector([[1, I32]]), // one local: $n
     0x02, 0x40, 0x03, 0x40,
     ...get(0), ...get(1), 0x4f, 0x0d, 0x01, // br_if $done
-    ...load(0), ...load(16), ...or, ...load(32), ...or, ...load(48), ...or, ...anyTrue,
-    0x04, 0x40, ...one(0), ...one(1), ...one(2), ...one(3), 0x0b,
-    ...get(0), ...i32(64), 0x6a, ...set(0),
+    ...load(0), ...Array.from({ length: VECTORS_PER_STEP - 1 }, (_, k) => [...load(16 * (k + 1)), ...or]).flat(), ...anyTrue,
+    0x04, 0x40, ...Array.from({ length: VECTORS_PER_STEP }, (_, k) => one(k)).flat(), 0x0b,
+    ...get(0), ...i32(16 * VECTORS_PER_STEP), 0x6a, ...set(0),
     0x0c, 0x00, // br $next
     0x0b, 0x0b,
     ...get(3),
@@ -96,7 +99,7 @@ function scanModule(): WebAssembly.Module | null {
 
 const PAGE = 65536;
 
-/** A scanner for tables of `tableBytes` (a multiple of 64), with `slots` buffers. */
+/** A scanner for tables of `tableBytes` (a multiple of 128), with `slots` buffers. */
 export function createBlockScanner(tableBytes: number, slots: number, preferJs = false): BlockScanner {
   const module = preferJs ? null : scanModule();
   if (module) {
@@ -135,4 +138,24 @@ export function createBlockScanner(tableBytes: number, slots: number, preferJs =
       return { offsets, count };
     },
   };
+}
+
+// Walks reuse scanners (and their WebAssembly memory) instead of making one each: a new memory
+// per walk costs an allocation the collector then has to account for. A scanner is only ever
+// used by one walk at a time.
+const idle = new Map<string, BlockScanner[]>();
+const KEEP_IDLE = 2;
+
+export function acquireBlockScanner(tableBytes: number, slots: number): BlockScanner {
+  const free = idle.get(`${tableBytes}/${slots}`);
+  return free?.pop() ?? createBlockScanner(tableBytes, slots);
+}
+
+export function releaseBlockScanner(scanner: BlockScanner): void {
+  const first = scanner.buffers[0];
+  if (!first) return;
+  const key = `${first.length}/${scanner.buffers.length}`;
+  const free = idle.get(key) ?? [];
+  if (free.length < KEEP_IDLE) free.push(scanner);
+  idle.set(key, free);
 }
