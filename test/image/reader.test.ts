@@ -233,6 +233,24 @@ describe('image reader against the writer ground truth', function () {
     });
   });
 
+  describe('concurrency', () => {
+    it('walks running at the same time give the same reports as one after another', async () => {
+      const images = [0, 1, 2].map((k) => {
+        const clusters: ClusterSpec[] = [];
+        // a different number of clusters per table in each image, so mixed-up buffers would show
+        for (let t = 0; t < 300; t++) for (let c = 0; c <= k * 5; c++) clusters.push({ guest: t * 8192 + c * 7 + (t % 11), kind: 'data' });
+        return write({ version: 3, clusterBits: 16, virtualSize: 300n * 512n * MiB, clusters, writeData: false }).path;
+      });
+      const sequential = [];
+      for (const path of images) sequential.push(await inspectImage(path));
+      assert.deepEqual(sequential.map((r) => r.dataClustersAllocated), [300, 1800, 3300]);
+      for (const blockingReads of [true, false]) {
+        const together = await Promise.all(images.map((path) => inspectImage(path, { blockingReads })));
+        assert.deepEqual(together, sequential);
+      }
+    });
+  });
+
   describe('progress and cancellation', () => {
     it('reports progress up to the end of the L1 table', async () => {
       const clusters: ClusterSpec[] = [];
