@@ -51,8 +51,11 @@ export async function readText(uri: vscode.Uri): Promise<string | undefined> {
   }
 }
 
+/** A file that would be a folder's mapping file if it existed: a standard name at a folder's root. */
 export function isMappingFileName(uri: vscode.Uri): boolean {
-  return (MAPPING_FILE_NAMES as readonly string[]).includes(path.basename(uri.path));
+  if (!(MAPPING_FILE_NAMES as readonly string[]).includes(path.basename(uri.path))) return false;
+  const folder = vscode.workspace.getWorkspaceFolder(uri);
+  return folder !== undefined && path.dirname(uri.fsPath) === folder.uri.fsPath;
 }
 
 export class Mappings {

@@ -240,6 +240,24 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   await page.screenshot({ path: shot });
   console.log(`  screenshot: ${path.relative(ROOT, shot)}`);
 
+  // What-if on another disk: 4 KiB cache entries (slices) for tern-web-02's 256 KiB clusters. Full
+  // coverage is then counted in 4 KiB entries: 20 GiB / 256 KiB * 8 B = 640 KiB, a whole number of
+  // 4 KiB entries, instead of 768 KiB in whole 256 KiB tables.
+  const web = { machine: 'tern-web-02', name: 'root' };
+  const webCard = frame.locator('section.machine[data-machine="tern-web-02"] article.disk[data-disk="root"]');
+  await webCard.locator('[data-action="whatif"]').click();
+  const slicePick = webCard.locator('vscode-dropdown[data-control="l2Slice"]');
+  await waitUntil('the slice dropdown', async () => ((await slicePick.count()) > 0 ? true : undefined));
+  await slicePick.click();
+  await webCard.locator('vscode-dropdown[data-control="l2Slice"] vscode-option', { hasText: /^\s*4 KiB\s*$/ }).click();
+  const sliced = await waitUntil('the sliced full coverage', async () => {
+    const value = await cellValue(frame, web, 'l2FullCoverage');
+    return value === fullCoverage(20n * GiB, 256n * KiB).toString() ? undefined : value;
+  }, 5000).catch(() => undefined);
+  const expectedSliced = roundUp(((20n * GiB) / (256n * KiB)) * 8n, 4n * KiB);
+  checks.check('what-if: 4 KiB slices on 256 KiB clusters need 640 KiB for full coverage', sliced === expectedSliced.toString(), `shown ${sliced}, expected ${expectedSliced}`);
+  await webCard.locator('vscode-button[data-action="reset"]').click();
+
   // Apply the trial through the same edits: the definition now says 64M.
   await frame.locator('article.disk[data-disk="ledger"] vscode-button[data-action="apply"]').click();
   const applied = await waitUntil('the applied value in the editor', async () => {
