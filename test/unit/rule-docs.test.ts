@@ -32,6 +32,11 @@ function example(page: string): { text: string; places: { line: number; column: 
 }
 
 describe('rule docs pages', () => {
+  it('the index lists every rule with its severity and fixability, and no other', () => {
+    const index = readFileSync(path.join(ROOT, 'docs/rules/README.md'), 'utf8');
+    const rows = [...index.matchAll(/^\| \[([a-z0-9-]+)\]\(\1\.md\) \| (\w+) \| (yes|no) \|/gm)].map((m) => [m[1], m[2], m[3]]);
+    assert.deepEqual(rows, RULES.map((r) => [r.id, r.severity, r.fixable ? 'yes' : 'no']));
+  });
   for (const rule of RULES) {
     describe(rule.id, () => {
       const file = path.join(ROOT, rule.docs);
