@@ -24,7 +24,7 @@ const OPTIONS: Record<string, OptionSpec> = {
 const FORMATS: readonly LintFormat[] = ['text', 'json', 'sarif'];
 
 export const LINT_USAGE = `usage: diskwise lint [PATH...] [--config FILE] [--format text|json|sarif]
-                     [--fix] [--max-warnings N] [--quiet]
+                     [--fix] [--max-warnings N] [--quiet] [--no-images]
 
   PATH            files or folders to check (default: every file the mapping file includes);
                   a named file is always checked, a folder only for the files the mapping includes
@@ -38,6 +38,7 @@ export const LINT_USAGE = `usage: diskwise lint [PATH...] [--config FILE] [--for
 
 exit status: 0 no errors and warnings within --max-warnings; 1 errors, or too many warnings;
              2 usage, mapping file or file read/write problems
+environment: DISKWISE_JOBS=N lints on N threads (default: one per core for large runs)
 `;
 
 
