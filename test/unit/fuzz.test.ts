@@ -12,6 +12,7 @@ import fc from 'fast-check';
 import { stringify as yamlStringify } from 'yaml';
 import { lintDocument, loadMapping, RULE_IDS, type FileReport } from '../../src/lint';
 import { readDefinition } from '../../src/model/document';
+import { parseJsonPointer } from '../../src/model/jsonpath';
 import { applyEdits } from '../../src/model/edits';
 import { BASE_MAPPING, mappingFor, mergeMapping } from '../rules/harness';
 
@@ -105,8 +106,23 @@ const mappingOverrides = fc.record({
   budget: fc.record({ cacheShareOfMemory: fc.constantFrom(0.01, 0.05, 1) }, { requiredKeys: [] }),
 }, { requiredKeys: ['disks'] });
 
+/** RFC 6901 evaluation on the document's data: every pointer a finding carries must name a node. */
+function resolves(data: unknown, pointer: string): boolean {
+  const parsed = parseJsonPointer(pointer);
+  if (!parsed.ok) return false;
+  let node = data;
+  for (const segment of parsed.value) {
+    if (Array.isArray(node) && /^(0|[1-9]\d*)$/.test(String(segment)) && Number(segment) < node.length) node = node[Number(segment)];
+    else if (typeof node === 'object' && node !== null && !Array.isArray(node) && Object.prototype.hasOwnProperty.call(node, segment)) node = (node as Record<string, unknown>)[String(segment)];
+    else return false;
+  }
+  return true;
+}
+
 function checkReport(text: string, file: string, report: FileReport): void {
+  const document = report.parsed ? readDefinition(`/fuzz/${file}`, text).document : undefined;
   for (const finding of report.findings) {
+    if (document) assert.ok(resolves(document.data, finding.pointer), `${finding.rule}: pointer ${JSON.stringify(finding.pointer)} names no node`);
     assert.ok(RULES.has(finding.rule), finding.rule);
     assert.ok(SEVERITIES.has(finding.severity));
     assertMessage(finding.message, text);
