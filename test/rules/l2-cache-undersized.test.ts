@@ -119,3 +119,26 @@ describe(`rule ${RULE}: more fix round trips`, () => {
     assert.ok(!/[^\r]\n/.test(fixed), JSON.stringify(fixed));
   });
 });
+
+describe(`rule ${RULE}: values shared through YAML anchors`, () => {
+  const shared = [
+    'tuning: &small { l2: 8M }',
+    'machines:',
+    '  - name: pier-db',
+    '    disks:',
+    '      - { name: a, size: 1T, cache: *small }',
+    '      - { name: b, size: 1T, cache: *small }',
+    '',
+  ].join('\n');
+  it('a finding on a value reached through an alias is reported at the anchor, without a fix (an edit would change every user)', () => {
+    const findings = findingsOf(lintCase({ text: shared }), RULE);
+    assert.deepEqual(findings.map((f) => [f.range.line, f.range.column]), [[1, 22], [1, 22]]);
+    assert.ok(findings.every((f) => f.fix === undefined), 'no fix through an alias');
+  });
+  it('a disk that is itself an alias gets no inserted key', () => {
+    const text = 'template: &disk { name: t, size: 1T }\nmachines:\n  - name: m\n    disks:\n      - *disk\n';
+    const findings = findingsOf(lintCase({ text }), RULE);
+    assert.equal(findings.length, 1);
+    assert.equal(findings[0]?.fix, undefined);
+  });
+});
