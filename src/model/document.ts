@@ -45,6 +45,23 @@ function jsonSyntaxProblem(text: string, lines: LineIndex): DocumentProblem | un
   return { message: `not valid JSON: ${error.message}`, range: lines.range(error.offset, Math.min(error.offset + 1, text.length)) };
 }
 
+/** A YAML alias to an ancestor makes the data contain itself: selectors would walk it forever. */
+function isCyclic(root: unknown): boolean {
+  const onPath = new Set<object>();
+  const done = new Set<object>();
+  const walk = (value: unknown): boolean => {
+    if (typeof value !== 'object' || value === null || done.has(value)) return false;
+    if (onPath.has(value)) return true;
+    onPath.add(value);
+    const children = value instanceof Map ? [...value.values()] : Object.values(value);
+    for (const child of children) if (walk(child)) return true;
+    onPath.delete(value);
+    done.add(value);
+    return false;
+  };
+  return walk(root);
+}
+
 export function readDefinition(path: string, text: string, format: DocumentFormat = formatOf(path)): ReadResult {
   const lines = new LineIndex(text);
   if (format === 'json') {
@@ -63,6 +80,9 @@ export function readDefinition(path: string, text: string, format: DocumentForma
   } catch (error) {
     const message = error instanceof Error ? error.message : String(error);
     return { problems: [{ message: firstLine(message), range: lines.range(0, 0) }] };
+  }
+  if (text.includes('*') && isCyclic(data)) {
+    return { problems: [{ message: 'an alias refers to a node that contains it, so the data never ends', range: lines.range(0, 0) }] };
   }
   const eol = /\r\n/.test(text) ? '\r\n' : '\n';
   return { document: { path, text, format, data, tree, lines, eol }, problems: [] };

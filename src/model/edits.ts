@@ -35,9 +35,10 @@ function quoteFor(document: DefinitionDocument, node: Node | undefined): '"' | "
   return '';
 }
 
-function render(document: DefinitionDocument, value: NewValue, style: SizeStyle | undefined, like?: Node): string {
+function render(document: DefinitionDocument, value: NewValue, style: SizeStyle | undefined, like?: Node, keepString = false): string {
   const { text, isString } = valueText(value, style);
-  if (!isString) return text;
+  // A value written as a string stays a string, even when the new one is plain bytes.
+  if (!isString && !(keepString && quoteFor(document, like) !== '')) return text;
   const quote = quoteFor(document, like);
   return `${quote}${text}${quote}`;
 }
@@ -50,7 +51,7 @@ export function replaceValueEdit(document: DefinitionDocument, node: Node, raw: 
   const style = value.kind === 'size' ? (sizeStyleOf(raw) ?? fileStyle) : undefined;
   // A value written as a plain number stays a number; a string keeps its unit style.
   const effectiveStyle = typeof raw === 'number' ? { kind: 'bytes' as const, space: false } : style;
-  return { offset: start, length: end - start, text: render(document, value, effectiveStyle, node) };
+  return { offset: start, length: end - start, text: render(document, value, effectiveStyle, node, typeof raw === 'string') };
 }
 
 const yamlKey = (key: string): string => (/^[A-Za-z_][\w.-]*$/.test(key) ? key : JSON.stringify(key));

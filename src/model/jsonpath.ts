@@ -61,6 +61,15 @@ export function compileSelector(expression: string): Outcome<Selector> {
   return ok({ expression, steps, memberChain: names });
 }
 
+/** The library writes member names as normalized paths do (RFC 9535 §2.7): undo that escaping. */
+function unescapeName(segment: string | number): string | number {
+  if (typeof segment !== 'string' || !segment.includes('\\')) return segment;
+  return segment.replace(/\\(u[0-9a-fA-F]{4}|.)/g, (_, code: string) => {
+    if (code.length === 5) return String.fromCharCode(parseInt(code.slice(1), 16));
+    return ({ b: '\b', f: '\f', n: '\n', r: '\r', t: '\t' } as Record<string, string>)[code] ?? code;
+  });
+}
+
 const isObject = (value: unknown): value is Record<string, unknown> =>
   typeof value === 'object' && value !== null && !Array.isArray(value);
 
@@ -68,7 +77,7 @@ const isObject = (value: unknown): value is Record<string, unknown> =>
 export function select(selector: Selector, root: unknown): Match[] {
   if (!selector.steps) {
     const matches: Match[] = [];
-    exec(root as JsonValue, selector.expression, (value, path) => matches.push({ value, path: [...path] }));
+    exec(root as JsonValue, selector.expression, (value, path) => matches.push({ value, path: path.map(unescapeName) }));
     return matches;
   }
   let current: Match[] = [{ path: [], value: root }];

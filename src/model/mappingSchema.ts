@@ -3,8 +3,9 @@
 import { z } from 'zod';
 
 const selector = z.string().min(1).describe('An RFC 9535 JSONPath selector, relative to the node selected before it');
+// Read loosely here and exactly by the loader, whose messages say what a size must be.
 const size = z
-  .union([z.number().int().nonnegative(), z.string().min(1)])
+  .union([z.number(), z.string().min(1)])
   .describe('Bytes, or a number with a unit: K, M, G, T, P (or Ki.., KiB..: powers of 1024), kB, MB, GB, TB (powers of 1000)');
 
 export const DISK_FIELDS = [

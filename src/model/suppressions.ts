@@ -2,6 +2,7 @@
 // or machine (or at the end of its first line) silences those rules for it. A reason is required:
 // suppressions are reviewed exceptions, and the reason travels into JSON and SARIF output.
 import type { SourceRange } from '../core/results';
+import { visit } from 'yaml';
 import type { DefinitionDocument } from './document';
 
 export interface SuppressionComment {
@@ -20,16 +21,29 @@ export interface SuppressionProblem {
 
 const MARKER = /#\s*diskwise-accept\b(.*)$/;
 
+/** Whether an offset falls inside a scalar value (a quoted string can hold a "#"). */
+function scalarRanges(document: DefinitionDocument): (offset: number) => boolean {
+  const ranges: [number, number][] = [];
+  visit(document.tree, {
+    Scalar(_key, node) {
+      if (node.range) ranges.push([node.range[0], node.range[1]]);
+    },
+  });
+  return (offset) => ranges.some(([start, end]) => offset >= start && offset < end);
+}
+
 export function readSuppressions(document: DefinitionDocument, knownRules: ReadonlySet<string>): { comments: SuppressionComment[]; problems: SuppressionProblem[] } {
   const comments: SuppressionComment[] = [];
   const problems: SuppressionProblem[] = [];
   if (document.format !== 'yaml' || !document.text.includes('diskwise-accept')) return { comments, problems };
   const { lines } = document;
+  const inScalar = scalarRanges(document);
   for (let line = 1; line <= lines.lineCount; line++) {
     const text = lines.lineText(line);
     const match = MARKER.exec(text);
     if (!match) continue;
     const start = lines.lineStart(line) + (match.index ?? 0);
+    if (inScalar(start)) continue; // "# diskwise-accept" inside a quoted value is data, not a comment
     const range = lines.range(start, lines.lineStart(line) + text.length);
     const body = (match[1] ?? '').trim();
     const colon = body.indexOf(':');
