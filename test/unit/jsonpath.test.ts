@@ -152,6 +152,31 @@ describe(`jsonpath: ${RFC('§2.3.5.3')} filter selector examples`, () => {
   it('$.a[?@ == @] selects every element', () => assert.deepEqual(query('$.a[?@ == @]', doc), doc.a));
 });
 
+describe(`jsonpath: ${RFC('§2.3.5.3 Table 11')} comparison examples (from memory), each as a filter on the root`, () => {
+  // A filter whose comparison does not use @ selects every child of the root when true, none when false.
+  const doc = { obj: { x: 'y' }, arr: [2, 3] };
+  const table: [string, boolean][] = [
+    ['$.absent1 == $.absent2', true], ['$.absent1 <= $.absent2', true], ["$.absent == 'g'", false], ['$.absent1 != $.absent2', false],
+    ["$.absent != 'g'", true], ['1 <= 2', true], ['1 > 2', false], ["13 == '13'", false], ["'a' <= 'b'", true], ["'a' > 'b'", false],
+    ['$.obj == $.arr', false], ['$.obj != $.arr', true], ['$.obj == $.obj', true], ['$.obj != $.obj', false], ['$.arr == $.arr', true],
+    ['$.arr != $.arr', false], ['$.obj == 17', false], ['$.obj != 17', true], ['$.obj <= $.arr', false], ['$.obj < $.arr', false],
+    ['$.obj <= $.obj', true], ['$.arr <= $.arr', true], ['1 <= $.arr', false], ['1 >= $.arr', false], ['1 > $.arr', false],
+    ['1 < $.arr', false], ['true <= true', true], ['true > true', false],
+  ];
+  for (const [comparison, result] of table) {
+    it(`${comparison} is ${result}`, () => {
+      assert.equal(query(`$[?${comparison}]`, doc).length, result ? 2 : 0);
+    });
+  }
+});
+
+describe(`jsonpath: ${RFC('§2.5.1.3')} child segment examples`, () => {
+  const doc = ['a', 'b', 'c', 'd', 'e', 'f', 'g'];
+  it('$[0, 3] selects a, d', () => assert.deepEqual(query('$[0, 3]', doc), ['a', 'd']));
+  it('$[0:2, 5] selects a, b, f', () => assert.deepEqual(query('$[0:2, 5]', doc), ['a', 'b', 'f']));
+  it('$[0, 0] selects a twice', () => assert.deepEqual(query('$[0, 0]', doc), ['a', 'a']));
+});
+
 describe(`jsonpath: ${RFC('§2.5.2.3')} descendant segment examples`, () => {
   const doc = { o: { j: 1, k: 2 }, a: [5, 3, [{ j: 4 }, { k: 6 }]] };
   it('$..j selects 1 and 4', () => assert.deepEqual(sorted(query('$..j', doc)), ['1', '4']));
