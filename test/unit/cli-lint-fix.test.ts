@@ -7,7 +7,10 @@ import { strict as assert } from 'node:assert';
 import * as fs from 'node:fs';
 import * as path from 'node:path';
 import { CACHE, COMMON, CONTRACT, RFC8259 } from '../helpers/sources';
-import { copyWorkspace, lintIn, makeWorkspace, removeWorkspace, STACK_FRAME, type LintJson, type Run } from '../fixtures/lint/run';
+import { CLI, copyWorkspace, lintIn, lintProcess, makeWorkspace, removeWorkspace, STACK_FRAME, type LintJson, type Run } from '../fixtures/lint/run';
+
+/** The conventional unprivileged user (uid and gid 65534). */
+const NOBODY = { uid: 65534, gid: 65534 };
 
 const json = (run: Run): LintJson => JSON.parse(run.stdout) as LintJson;
 
@@ -297,15 +300,27 @@ describe('diskwise lint --fix', () => {
     }
   });
 
-  it(`${CONTRACT} a file that cannot be written: exit 2 naming it, the original untouched`, async function () {
-    if (process.getuid?.() === 0) this.skip(); // root writes into read-only folders
+  it(`${CONTRACT} a file that cannot be written: exit 2 naming it, the original untouched`, async () => {
     const dir = makeWorkspace({ 'diskwise.yaml': LEGACY_MAPPING, 'ro/block.yaml': YAML_BEFORE });
     try {
+      fs.chmodSync(dir, 0o755);
       fs.chmodSync(path.join(dir, 'ro'), 0o555);
-      const run = await lintIn(dir, ['--fix', 'ro/block.yaml']);
-      assert.equal(run.code, 2);
+      // root writes into read-only folders: run the built CLI as an unprivileged user instead, from
+      // a copy that user can read wherever the repository lives
+      const root = process.getuid?.() === 0;
+      let run: Run;
+      if (root) {
+        const cli = path.join(dir, 'cli.js');
+        fs.copyFileSync(CLI, cli);
+        run = await lintProcess(dir, ['--fix', 'ro/block.yaml'], { as: NOBODY, cli });
+      } else {
+        run = await lintIn(dir, ['--fix', 'ro/block.yaml']);
+      }
+      assert.equal(run.code, 2, run.stderr);
       assert.match(run.stderr, /^ro\/block\.yaml: cannot write the fixes: permission denied$/m);
+      assert.doesNotMatch(run.stderr, STACK_FRAME);
       assert.equal(fs.readFileSync(path.join(dir, 'ro', 'block.yaml'), 'utf8'), YAML_BEFORE);
+      assert.deepEqual(fs.readdirSync(path.join(dir, 'ro')), ['block.yaml']);
     } finally {
       fs.chmodSync(path.join(dir, 'ro'), 0o755);
       removeWorkspace(dir);

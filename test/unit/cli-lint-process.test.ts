@@ -82,8 +82,8 @@ describe('diskwise lint in a child process', () => {
       const dir = workspace(60);
       try {
         for (const format of ['json', 'sarif', 'text']) {
-          const one = await lintProcess(dir, ['--format', format], { DISKWISE_JOBS: '1' });
-          const three = await lintProcess(dir, ['--format', format], { DISKWISE_JOBS: '3' });
+          const one = await lintProcess(dir, ['--format', format], { env: { DISKWISE_JOBS: '1' } });
+          const three = await lintProcess(dir, ['--format', format], { env: { DISKWISE_JOBS: '3' } });
           assert.equal(one.code, 1);
           assert.equal(three.code, one.code);
           assert.equal(three.stdout, one.stdout, format);
@@ -98,8 +98,8 @@ describe('diskwise lint in a child process', () => {
       const a = workspace(60);
       const b = workspace(60);
       try {
-        const one = await lintProcess(a, ['--fix', '--format', 'json'], { DISKWISE_JOBS: '1' });
-        const three = await lintProcess(b, ['--fix', '--format', 'json'], { DISKWISE_JOBS: '3' });
+        const one = await lintProcess(a, ['--fix', '--format', 'json'], { env: { DISKWISE_JOBS: '1' } });
+        const three = await lintProcess(b, ['--fix', '--format', 'json'], { env: { DISKWISE_JOBS: '3' } });
         assert.equal(three.stdout, one.stdout);
         assert.ok(((JSON.parse(one.stdout) as LintJson).summary.fixed ?? 0) > 0);
         for (const name of fs.readdirSync(path.join(a, 'defs'))) {
