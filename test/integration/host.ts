@@ -90,6 +90,21 @@ const QUIET_SETTINGS = {
   'chat.disableAIFeatures': true,
 };
 
+/** Installs a packaged extension into the run's extensions folder, as a user would. */
+export async function installVsix(dirs: RunDirs, vsix: string): Promise<void> {
+  await new Promise<void>((resolve, reject) => {
+    const child = spawn(CODE_SERVER_BIN, ['--user-data-dir', dirs.userData, '--extensions-dir', dirs.extensions, '--install-extension', vsix], {
+      stdio: ['ignore', 'pipe', 'pipe'],
+      env: { ...process.env, EXTENSIONS_GALLERY: '{}', XDG_CONFIG_HOME: dirs.xdgConfig, XDG_DATA_HOME: dirs.xdgData, XDG_CACHE_HOME: dirs.xdgCache, TMPDIR: dirs.tmp },
+    });
+    let output = '';
+    child.stdout?.on('data', (chunk: Buffer) => { output += chunk.toString(); });
+    child.stderr?.on('data', (chunk: Buffer) => { output += chunk.toString(); });
+    child.once('error', reject);
+    child.once('exit', (code) => (code === 0 ? resolve() : reject(new Error(`installing ${path.basename(vsix)} failed (${code}): ${output.trim()}`))));
+  });
+}
+
 export function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
     const server = createServer();
@@ -108,7 +123,11 @@ export interface CodeServer {
   stop(): Promise<void>;
 }
 
-export async function startCodeServer(dirs: RunDirs, extraSettings: Record<string, unknown> = {}): Promise<CodeServer> {
+export interface ServerOptions {
+  settings?: Record<string, unknown>;
+}
+
+export async function startCodeServer(dirs: RunDirs, options: ServerOptions = {}): Promise<CodeServer> {
   const port = await freePort();
   const config = path.join(dirs.base, 'code-server.yaml');
   writeFileSync(config, [
@@ -125,7 +144,7 @@ export async function startCodeServer(dirs: RunDirs, extraSettings: Record<strin
   const userSettingsDir = path.join(dirs.userData, 'User');
   mkdirSync(userSettingsDir, { recursive: true });
   writeFileSync(path.join(userSettingsDir, 'settings.json'),
-    JSON.stringify({ ...QUIET_SETTINGS, ...extraSettings }, null, 2));
+    JSON.stringify({ ...QUIET_SETTINGS, ...options.settings }, null, 2));
 
   const log = createWriteStream(path.join(dirs.base, 'code-server.log'));
   // detached: the server leads its own process group (setsid), so the extension host, which
@@ -178,17 +197,19 @@ export async function startCodeServer(dirs: RunDirs, extraSettings: Record<strin
 }
 
 export interface WorkbenchOptions {
-  /** Absolute path of the extension under development. */
-  extensionPath: string;
+  /** Absolute path of the extension under development; absent: the installed extensions only. */
+  extensionPath?: string;
   /** Absolute path of the bundled suite; when set, the host runs it and reports through the page. */
   testsPath?: string;
 }
 
 export function workbenchUrl(server: CodeServer, dirs: RunDirs, opts: WorkbenchOptions): string {
   const remote = (abs: string): string => `vscode-remote://127.0.0.1:${server.port}${abs}`;
-  const payload: Array<[string, string]> = [['extensionDevelopmentPath', remote(opts.extensionPath)]];
+  const payload: Array<[string, string]> = [];
+  if (opts.extensionPath) payload.push(['extensionDevelopmentPath', remote(opts.extensionPath)]);
   if (opts.testsPath) payload.push(['extensionTestsPath', remote(opts.testsPath)]);
-  return `${server.origin}/?folder=${encodeURIComponent(dirs.workspace)}&payload=${encodeURIComponent(JSON.stringify(payload))}`;
+  const folder = `${server.origin}/?folder=${encodeURIComponent(dirs.workspace)}`;
+  return payload.length > 0 ? `${folder}&payload=${encodeURIComponent(JSON.stringify(payload))}` : folder;
 }
 
 export interface Browser {

@@ -1,17 +1,18 @@
 // Runs the extension's tests in a real VS Code: code-server on loopback, driven by chromium.
 //   tsx test/integration/run.ts          the mocha suite inside the extension host
 //   tsx test/integration/run.ts --ui     the UI test against the workbench's DOM
+//   tsx test/integration/run.ts --installed   the packaged .vsix, installed, through the UI
 // Prints mocha's report and exits with the runner's code. With no host installed it says what is
 // missing and how to install it, and skips (exit 0) unless CI=true, where that is a failure.
 import * as path from 'node:path';
 import { createWriteStream, existsSync, readFileSync, statSync } from 'node:fs';
 import { format } from 'node:util';
 import {
-  ROOT, launchBrowser, makeRunDirs, missingHost, reportMissingHost, seedWorkspace, startCodeServer,
+  ROOT, installVsix, launchBrowser, makeRunDirs, missingHost, reportMissingHost, seedWorkspace, startCodeServer,
   workbenchUrl, type Browser, type CodeServer,
 } from './host';
 import { SUITE_START_MARK } from './suite/marks';
-import { runUiTest } from './ui';
+import { runInstalledTest, runUiTest } from './ui';
 
 const OVERALL_TIMEOUT_MS = 6 * 60_000;
 const SUITE_BUNDLE = path.join(ROOT, 'out', 'test', 'index.js');
@@ -19,17 +20,20 @@ const EXTENSION_BUNDLE = path.join(ROOT, 'dist', 'extension.js');
 
 async function main(): Promise<number> {
   const ui = process.argv.includes('--ui');
-  const what = ui ? 'vscode ui test' : 'vscode integration suite';
+  // --installed: the packaged .vsix installed into code-server as a user would, then checked
+  // through the UI: what ships is complete and runs.
+  const installed = process.argv.includes('--installed');
+  const what = ui ? 'vscode ui test' : installed ? 'vscode installed-package test' : 'vscode integration suite';
   const missing = missingHost();
   if (missing.length > 0) return reportMissingHost(missing, what);
-  for (const bundle of ui ? [EXTENSION_BUNDLE] : [EXTENSION_BUNDLE, SUITE_BUNDLE]) {
+  for (const bundle of ui ? [EXTENSION_BUNDLE] : installed ? [] : [EXTENSION_BUNDLE, SUITE_BUNDLE]) {
     if (!existsSync(bundle)) {
       console.error(`${what}: ${path.relative(ROOT, bundle)} is missing; run npm run build and node scripts/vscode-build-tests.mjs first`);
       return 2;
     }
   }
 
-  const dirs = makeRunDirs(ui ? 'vscode-ui' : 'vscode-suite');
+  const dirs = makeRunDirs(ui ? 'vscode-ui' : installed ? 'vscode-installed' : 'vscode-suite');
   seedWorkspace(dirs);
   let server: CodeServer | undefined;
   let browser: Browser | undefined;
@@ -47,11 +51,16 @@ async function main(): Promise<number> {
   });
 
   try {
+    if (installed) {
+      const vsix = packagePath();
+      if (!existsSync(vsix)) throw new Error(`${path.basename(vsix)} is missing; run npm run package first`);
+      await installVsix(dirs, vsix);
+    }
     server = await startCodeServer(dirs);
     browser = await launchBrowser(dirs);
     const started = browser;
-    const work = ui
-      ? runUiTest(server, browser, dirs).catch(async (err: unknown) => {
+    const work = ui || installed
+      ? (installed ? runInstalledTest(server, browser, dirs) : runUiTest(server, browser, dirs)).catch(async (err: unknown) => {
         const shot = path.join(dirs.base, 'failure.png');
         await started.page.screenshot({ path: shot }).catch(() => undefined);
         console.error(`${what}: ${err instanceof Error ? err.message : String(err)} (screenshot ${path.relative(ROOT, shot)})`);
@@ -59,7 +68,7 @@ async function main(): Promise<number> {
       })
       : runSuite(server, browser, dirs);
     const code = await Promise.race([work, timeout]);
-    if (!ui) printPackageSize();
+    if (!ui && !installed) printPackageSize();
     if (browser.blocked.length > 0) {
       console.log(`${what}: refused ${browser.blocked.length} request(s) not addressed to 127.0.0.1:`);
       for (const url of [...new Set(browser.blocked)].slice(0, 10)) console.log(`  ${url}`);
@@ -97,9 +106,13 @@ async function runSuite(server: CodeServer, browser: Browser, dirs: ReturnType<t
 }
 
 /** The packaged extension's size, for the performance summary (built by npm run package). */
-function printPackageSize(): void {
+function packagePath(): string {
   const manifest = JSON.parse(readFileSync(path.join(ROOT, 'package.json'), 'utf8')) as { name: string; version: string };
-  const vsix = path.join(ROOT, `${manifest.name}-${manifest.version}.vsix`);
+  return path.join(ROOT, `${manifest.name}-${manifest.version}.vsix`);
+}
+
+function printPackageSize(): void {
+  const vsix = packagePath();
   if (existsSync(vsix)) {
     const bytes = statSync(vsix).size;
     console.log(`perf: .vsix size: ${(bytes / 1024).toFixed(1)} KiB (${bytes} bytes, ${path.basename(vsix)})`);

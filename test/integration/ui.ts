@@ -305,3 +305,32 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   console.log(`ui: ${passed} passed, ${checks.failed} failed`);
   return checks.failed === 0 ? 0 : 1;
 }
+
+/**
+ * The packaged extension as a user gets it: the .vsix installed into code-server (run.ts
+ * --installed), no development path. It must lint the demo and draw the sizing panel from the
+ * bundles inside the package.
+ */
+export async function runInstalledTest(server: CodeServer, browser: Browser, dirs: RunDirs): Promise<number> {
+  const { page } = browser;
+  const checks = new Checks();
+  await page.goto(workbenchUrl(server, dirs, {}));
+  await page.waitForSelector('.monaco-workbench', { timeout: 60_000 });
+  await page.waitForSelector('.statusbar', { timeout: 30_000 });
+  await sleep(1500);
+  await openFile(page, 'ticketing.yaml');
+  const squiggles = await waitUntil('squiggles', async () => ((await page.locator('.squiggly-warning').count()) > 0 ? true : undefined), 20_000).catch(() => false);
+  checks.check('the installed package lints the demo (squiggles)', squiggles === true);
+  await runCommand(page, 'diskwise: Show the cache sizing panel');
+  const frame = await panelFrame(page);
+  const cards = await waitUntil('the disk cards', async () => {
+    const count = await frame.locator('article.disk').count();
+    return count >= 4 ? count : undefined;
+  }, 20_000).catch(() => 0);
+  checks.check('its sizing panel draws the four qcow2 disks from the packaged webview bundle', cards === 4, `${cards} cards`);
+  checks.check('no request left 127.0.0.1', browser.blocked.length === 0, browser.blocked.length ? `${browser.blocked.length} refused` : 'all local');
+  await page.screenshot({ path: path.join(dirs.base, 'installed-package.png') });
+  const passed = checks.list.length - checks.failed;
+  console.log(`ui (installed package): ${passed} passed, ${checks.failed} failed`);
+  return checks.failed === 0 ? 0 : 1;
+}
