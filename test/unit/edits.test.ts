@@ -3,7 +3,7 @@
 // reader (YAML 1.2 / RFC 8259 JSON) to check it says what the fix meant.
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
-import { stringify as yamlStringify } from 'yaml';
+import { isMap, isPair, isScalar, parseDocument, stringify as yamlStringify, visit } from 'yaml';
 import { nodeAt, readDefinition, type DefinitionDocument } from '../../src/model/document';
 import { applyEdits, documentSizeStyle, insertFieldEdit, nonOverlapping, replaceValueEdit, type NewValue } from '../../src/model/edits';
 import type { PathSegment } from '../../src/model/jsonpath';
@@ -206,6 +206,69 @@ describe('edits: property: inserting a key into generated maps', () => {
       at[keys.at(-1) as string] = '128M';
       assert.deepEqual(dataOf(result, file), expected, result);
     }), { numRuns: 300 });
+  });
+});
+
+describe('edits: property: inserting into any map of generated, hand-styled YAML', () => {
+  // Generated data written as YAML, then styled the way people write it: some maps in flow style,
+  // comments after values and above keys. A key chain (reusing existing map keys on the way) is
+  // inserted into one of the maps; the result must read back as the data with that one value set.
+  const key = fc.constantFrom('a', 'b', 'cache', 'io', 'size');
+  const leaf = fc.oneof(fc.integer({ min: 0, max: 99 }), fc.constantFrom('1T', '64K', 'x y', 'qcow2'));
+  const tree = fc.letrec((tie) => ({
+    map: fc.dictionary(key, fc.oneof({ depthSize: 'small', maxDepth: 3 }, leaf, tie('map'), fc.array(fc.oneof(leaf, tie('map')), { maxLength: 2 })), { minKeys: 1, maxKeys: 3 }),
+  })).map;
+  const choices = fc.array(fc.nat(), { minLength: 20, maxLength: 20 });
+  it('the result parses and holds exactly the data plus the new value', () => {
+    fc.assert(fc.property(tree, choices, fc.array(key, { maxLength: 2 }), fc.boolean(), (data, pick, via, crlf) => {
+      const styled = parseDocument(yamlStringify(data, { aliasDuplicateObjects: false }));
+      let n = 0;
+      const maps: (string | number)[][] = [];
+      visit(styled, {
+        Map: (_, node, path) => {
+          const at = pick[n++ % pick.length] as number;
+          // A map in flow style writes everything below it in flow style too.
+          if (at % 4 === 0) node.flow = true;
+          const keys: (string | number)[] = [];
+          for (let i = 1; i < path.length; i++) {
+            const parent = path[i - 1];
+            const here = path[i];
+            if (isPair(here) && isScalar(here.key)) keys.push(String(here.key.value));
+            else if (!isPair(here) && parent && 'items' in (parent as object) && !isMap(parent)) keys.push(((parent as { items: unknown[] }).items).indexOf(here));
+          }
+          maps.push(keys);
+        },
+        Pair: (_, pair) => {
+          const at = pick[n++ % pick.length] as number;
+          if (at % 3 === 0 && isScalar(pair.value)) pair.value.comment = ' note';
+          if (at % 5 === 1 && isScalar(pair.key)) pair.key.commentBefore = ' about this key';
+        },
+      });
+      let text = styled.toString();
+      if (crlf) text = text.replace(/\n/g, '\r\n');
+      const reread = readDefinition('/p/a.yaml', text);
+      if (!reread.document) return; // a styling the YAML writer cannot express; not the subject here
+      const base = maps[(pick[19] as number) % maps.length] as (string | number)[];
+      const target = nodeAt(reread.document, base);
+      if (!target || !isMap(target.node)) return;
+      const keys = [...via, 'zz9'];
+      const edit = insertFieldEdit(reread.document, target.node, keys, MiB128);
+      // Allowed to refuse (a non-map on the way); when it writes, the result must be right.
+      if (!edit) return;
+      const result = applyEdits(text, [edit]);
+      const after = readDefinition('/p/a.yaml', result);
+      assert.ok(after.document, `the result must parse:\n${text}\n--- became ---\n${result}\n${JSON.stringify(after.problems)}`);
+      const expected = structuredClone(reread.document.data) as Record<string | number, unknown>;
+      let at = expected;
+      for (const k of base) at = at[k] as Record<string | number, unknown>;
+      for (const k of keys.slice(0, -1)) {
+        at[k] = at[k] ?? {};
+        at = at[k] as Record<string, unknown>;
+      }
+      at.zz9 = '128M';
+      assert.deepEqual(after.document.data, expected, `${text}\n--- became ---\n${result}`);
+      if (crlf) assert.doesNotMatch(result, /[^\r]\n/, 'CRLF kept');
+    }), { numRuns: 400 });
   });
 });
 
