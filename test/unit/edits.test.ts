@@ -272,6 +272,63 @@ describe('edits: property: inserting into any map of generated, hand-styled YAML
   });
 });
 
+describe('edits: property: inserting into any object of hand-formatted JSON', () => {
+  // JSON written the many ways people and tools write it: each object on one line or several,
+  // spaces or tabs, spaces around ":" and "," or none, CRLF or LF.
+  type Json = null | boolean | number | string | Json[] | { [key: string]: Json };
+  const key = fc.constantFrom('a', 'b', 'cache', 'tuning', 'x y');
+  const tree: fc.Arbitrary<{ [key: string]: Json }> = fc.letrec((tie) => ({
+    obj: fc.dictionary(key, fc.oneof({ depthSize: 'small', maxDepth: 3 }, fc.integer(), fc.constantFrom('1T', 'qcow2'), tie('obj'), fc.array(tie('obj'), { maxLength: 2 })), { minKeys: 0, maxKeys: 3 }),
+  })).obj as fc.Arbitrary<{ [key: string]: Json }>;
+  const styleArb = fc.record({ unit: fc.constantFrom('  ', '    ', '\t', ' '), colon: fc.constantFrom(':', ': ', ' : '), comma: fc.constantFrom(',', ', '), eol: fc.constantFrom('\n', '\r\n'), picks: fc.array(fc.boolean(), { minLength: 16, maxLength: 16 }) });
+  function write(value: Json, style: { unit: string; colon: string; comma: string; eol: string; picks: boolean[] }, indent: string, counter: { n: number }): string {
+    if (value === null || typeof value !== 'object') return JSON.stringify(value);
+    const multi = style.picks[counter.n++ % style.picks.length] as boolean;
+    const inner = indent + style.unit;
+    const parts = Array.isArray(value)
+      ? value.map((v) => write(v, style, inner, counter))
+      : Object.entries(value).map(([k, v]) => `${JSON.stringify(k)}${style.colon}${write(v, style, inner, counter)}`);
+    const [open, close] = Array.isArray(value) ? ['[', ']'] : ['{', '}'];
+    if (parts.length === 0) return `${open}${close}`;
+    return multi ? `${open}${style.eol}${inner}${parts.join(`,${style.eol}${inner}`)}${style.eol}${indent}${close}` : `${open}${parts.join(style.comma)}${close}`;
+  }
+  it('the result is valid JSON holding exactly the data plus the new value', () => {
+    fc.assert(fc.property(tree, styleArb, fc.nat(), fc.array(key, { maxLength: 2 }), (data, style, pickBase, via) => {
+      const text = write(data, style, '', { n: 0 });
+      const d = doc(text, 'a.json');
+      // Every object of the document, by path.
+      const objects: (string | number)[][] = [];
+      const walk = (v: unknown, at: (string | number)[]) => {
+        if (Array.isArray(v)) v.forEach((x, i) => walk(x, [...at, i]));
+        else if (v && typeof v === 'object') {
+          objects.push(at);
+          for (const [k, x] of Object.entries(v)) walk(x, [...at, k]);
+        }
+      };
+      walk(d.data, []);
+      const base = objects[pickBase % objects.length] as (string | number)[];
+      const target = nodeAt(d, base);
+      assert.ok(target);
+      const keys = [...via, 'zz9'];
+      const edit = insertFieldEdit(d, target.node, keys, MiB128);
+      if (!edit) return; // refused: a non-object on the way
+      const result = applyEdits(text, [edit]);
+      let parsed: unknown;
+      assert.doesNotThrow(() => { parsed = JSON.parse(result); }, `not JSON:\n${text}\n--- became ---\n${result}`);
+      const expected = structuredClone(d.data) as Record<string | number, unknown>;
+      let at = expected;
+      for (const k of base) at = at[k] as Record<string | number, unknown>;
+      for (const k of keys.slice(0, -1)) {
+        at[k] = at[k] ?? {};
+        at = at[k] as Record<string, unknown>;
+      }
+      at.zz9 = '128M';
+      assert.deepEqual(parsed, expected, `${text}\n--- became ---\n${result}`);
+      if (style.eol === '\r\n') assert.doesNotMatch(result, /[^\r]\n/, 'CRLF kept');
+    }), { numRuns: 400 });
+  });
+});
+
 describe('edits: replaceValueEdit keeps quotes and unit style', () => {
   it(`${IEC} letter, Ki, KiB and spaced forms keep their style`, () => {
     assert.equal(replace('l2: 8M\n', 'a.yaml', ['l2']), 'l2: 128M\n');
