@@ -48,6 +48,9 @@ export class SizingPanel implements vscode.Disposable {
     panel.onDidDispose(() => {
       this.panel = undefined;
       this.shownUri = undefined;
+      this.postedAt.clear();
+      // Nothing will draw them now: whoever waits for a drawing gets "no disks drawn".
+      for (const waiter of this.waiters.splice(0)) waiter.resolve(0);
     }, undefined, this.disposables);
     this.panel = panel;
   }
@@ -84,7 +87,7 @@ export class SizingPanel implements vscode.Disposable {
         break;
       case 'rendered': {
         const posted = this.postedAt.get(message.seq);
-        this.postedAt.delete(message.seq);
+        for (const seq of [...this.postedAt.keys()]) if (seq <= message.seq) this.postedAt.delete(seq);
         if (posted !== undefined) this.lastRender = { seq: message.seq, disks: message.disks, ms: Date.now() - posted };
         // Views superseded before they were drawn resolve too: the newest drawing answers for them.
         for (let i = this.waiters.length - 1; i >= 0; i--) {
