@@ -9,6 +9,7 @@ import { applyEdits, documentSizeStyle, insertFieldEdit, nonOverlapping, replace
 import type { PathSegment } from '../../src/model/jsonpath';
 import type { TextEdit } from '../../src/core/results';
 import { IEC, RFC8259 } from '../helpers/sources';
+import { parseSize } from '../../src/core/units';
 
 const YAML12 = '[YAML 1.2]';
 const MiB128: NewValue = { kind: 'size', bytes: 134217728n };
@@ -362,6 +363,32 @@ describe('edits: replaceValueEdit keeps quotes and unit style', () => {
   });
   it('an interval is written as seconds', () => {
     assert.equal(replace('cleanup: 0\n', 'a.yaml', ['cleanup'], { kind: 'interval', seconds: 600 }), 'cleanup: 600\n');
+  });
+});
+
+describe(`edits: property: replaceValueEdit reads back exactly ${IEC}`, () => {
+  const written = fc.tuple(fc.integer({ min: 1, max: 4096 }), fc.constantFrom('', 'K', 'M', 'G', 'Ki', 'Mi', 'KiB', 'MiB', 'GiB'), fc.boolean());
+  const quoting = fc.constantFrom<['yaml' | 'json', string]>(['yaml', ''], ['yaml', '"'], ['yaml', "'"], ['json', '"'], ['json', '']);
+  it('the new value parses to the new bytes, keeps its type (string or number) and its quotes', () => {
+    fc.assert(fc.property(written, quoting, fc.bigInt({ min: 1n, max: 1n << 50n }), ([n, unit, space], [format, quote], bytes) => {
+      const plainNumber = unit === '' && quote === '';
+      const value = plainNumber ? String(n) : `${quote || (format === 'json' ? '"' : '')}${n}${space && unit ? ' ' : ''}${unit}${quote || (format === 'json' ? '"' : '')}`;
+      const text = format === 'json' ? `{"l2": ${value}}` : `l2: ${value}\n`;
+      const d = doc(text, `a.${format}`);
+      const at = nodeAt(d, ['l2']);
+      assert.ok(at);
+      const raw = (d.data as { l2: unknown }).l2;
+      const edit = replaceValueEdit(d, at.node, raw, { kind: 'size', bytes });
+      assert.ok(edit);
+      const result = applyEdits(text, [edit]);
+      const after = (doc(result, `a.${format}`).data as { l2: unknown }).l2;
+      // A plain YAML scalar such as 1Ki may come back as a plain number when the new size has no
+      // exact form in its unit (bytes then); JSON and quoted values keep their type.
+      if (format === 'json' || quote) assert.equal(typeof after, typeof raw, `${text} -> ${result}`);
+      const parsed = parseSize(after);
+      assert.ok(parsed.ok && parsed.value === bytes, `${text} -> ${result}`);
+      if (quote) assert.ok(edit.text.startsWith(quote) && edit.text.endsWith(quote), `${text} -> ${result}`);
+    }), { numRuns: 500 });
   });
 });
 
