@@ -23,15 +23,16 @@ const unescapeNormalized = (name: string): string =>
 /** Nodelists whose order the RFC leaves open (members of an object) are compared as multisets. */
 const sorted = (values: unknown[]): string[] => values.map((v) => JSON.stringify(v)).sort();
 
-// RFC 9535 §1.5, Figure 1: the example JSON document. The author names are replaced by placeholders
-// (house rule: no names of people); structure, titles, ISBNs and prices are the RFC's.
+// RFC 9535 §1.5, Figure 1: the example JSON document. Author names and book titles are replaced by
+// placeholders (house rule: no names of people or works); structure, categories, ISBNs and prices
+// are the RFC's, and no query result depends on the replaced strings.
 const BOOKSTORE = {
   store: {
     book: [
-      { category: 'reference', author: 'Author 1', title: 'Sayings of the Century', price: 8.95 },
-      { category: 'fiction', author: 'Author 2', title: 'Sword of Honour', price: 12.99 },
-      { category: 'fiction', author: 'Author 3', title: 'Moby Dick', isbn: '0-553-21311-3', price: 8.99 },
-      { category: 'fiction', author: 'Author 4', title: 'The Lord of the Rings', isbn: '0-395-19395-8', price: 22.99 },
+      { category: 'reference', author: 'Author 1', title: 'Title 1', price: 8.95 },
+      { category: 'fiction', author: 'Author 2', title: 'Title 2', price: 12.99 },
+      { category: 'fiction', author: 'Author 3', title: 'Title 3', isbn: '0-553-21311-3', price: 8.99 },
+      { category: 'fiction', author: 'Author 4', title: 'Title 4', isbn: '0-395-19395-8', price: 22.99 },
     ],
     bicycle: { color: 'red', price: 399 },
   },
