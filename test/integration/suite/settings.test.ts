@@ -1,7 +1,7 @@
 // The extension's settings, changed the way a user does (workspace settings), in the real editor.
 import * as assert from 'node:assert/strict';
 import * as vscode from 'vscode';
-import { api, codeOf, open, ours, waitFor } from './helpers';
+import { api, codeOf, demoFile, open, ours, waitFor } from './helpers';
 
 const TICKETING = 'fleet/ticketing.yaml';
 
@@ -13,6 +13,7 @@ describe('settings', () => {
   after(async () => {
     await set('rules', undefined);
     await set('enable', undefined);
+    await set('mappingFile', undefined);
   });
 
   it('overrides a rule\'s severity, or turns it off', async () => {
@@ -38,5 +39,26 @@ describe('settings', () => {
     await waitFor('no diagnostics while disabled', () => ours(document.uri).length === 0);
     await set('enable', undefined);
     await waitFor('diagnostics again', () => ours(document.uri).length > 0);
+  });
+
+  it('uses the mapping file the setting names, and lints only what that one includes', async () => {
+    const root = new TextDecoder().decode(await vscode.workspace.fs.readFile(demoFile('diskwise.yaml')));
+    // The same mapping placed in fleet/, including only YAML files below it.
+    const yamlOnly = root.replace(/^include:.*$/m, 'include: ["*.yaml"]').replace(/^exclude:.*$/m, '').replace(/^ignore:[\s\S]*$/m, '');
+    const alternative = demoFile('fleet/yaml-only.mapping.yaml');
+    await vscode.workspace.fs.writeFile(alternative, new TextEncoder().encode(yamlOnly));
+    const harbour = demoFile('fleet/harbour.json');
+    try {
+      await vscode.commands.executeCommand('diskwise.lintWorkspace');
+      await waitFor('harbour.json linted under the root mapping', () => ours(harbour).length > 0);
+      await set('mappingFile', 'fleet/yaml-only.mapping.yaml');
+      await waitFor('harbour.json left out by the configured mapping', () => ours(harbour).length === 0);
+      const { document } = await open(TICKETING);
+      await waitFor('ticketing.yaml still linted', () => ours(document.uri).some((d) => codeOf(d) === 'l2-cache-undersized'));
+    } finally {
+      await set('mappingFile', undefined);
+      await vscode.workspace.fs.delete(alternative);
+    }
+    await waitFor('harbour.json linted again under the root mapping', () => ours(harbour).length > 0);
   });
 });
