@@ -87,6 +87,7 @@ async function runSuite(server: CodeServer, browser: Browser, dirs: ReturnType<t
   const { page } = browser;
   const automationLog = createWriteStream(path.join(dirs.base, 'automation.log'));
   let suiteStarted = false;
+  const counts = { passed: 0, failed: 0 };
   let settle: (code: number) => void = () => undefined;
   const exited = new Promise<number>((resolve) => { settle = resolve; });
   await page.exposeFunction('codeAutomationLog', (type: unknown, args: unknown) => {
@@ -96,13 +97,20 @@ async function runSuite(server: CodeServer, browser: Browser, dirs: ReturnType<t
     automationLog.write(`[${String(type)}] ${text}\n`);
     // Before the suite starts, the page relays the workbench's own chatter: keep that in the log.
     if (text.includes(SUITE_START_MARK)) { suiteStarted = true; return; }
-    if (suiteStarted) console.log(text);
+    if (!suiteStarted) return;
+    console.log(text);
+    const passing = /^\s*(\d+) passing/.exec(text);
+    const failing = /^\s*(\d+) failing/.exec(text);
+    if (passing) counts.passed = Number(passing[1]);
+    if (failing) counts.failed = Number(failing[1]);
   });
   await page.exposeFunction('codeAutomationExit', (code: unknown) => {
     settle(typeof code === 'number' ? code : 1);
   });
   await page.goto(workbenchUrl(server, dirs, { extensionPath: ROOT, testsPath: SUITE_BUNDLE }));
-  return exited;
+  const code = await exited;
+  console.log(`suite: ${counts.passed} passed, ${counts.failed} failed`);
+  return code;
 }
 
 /** The packaged extension's size, for the performance summary (built by npm run package). */

@@ -331,6 +331,6 @@ export async function runInstalledTest(server: CodeServer, browser: Browser, dir
   checks.check('no request left 127.0.0.1', browser.blocked.length === 0, browser.blocked.length ? `${browser.blocked.length} refused` : 'all local');
   await page.screenshot({ path: path.join(dirs.base, 'installed-package.png') });
   const passed = checks.list.length - checks.failed;
-  console.log(`ui (installed package): ${passed} passed, ${checks.failed} failed`);
+  console.log(`installed: ${passed} passed, ${checks.failed} failed`);
   return checks.failed === 0 ? 0 : 1;
 }
