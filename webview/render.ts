@@ -125,7 +125,9 @@ function diskRows(disk: DiskView, sizing: SizingReport, entrySize: bigint, was?:
   const coverage = el('div', 'coverage');
   coverage.append(bar(covered, 'coverage', covered < 1), el('span', 'coverage-of', `${formatSize(sizing.l2CoveredBytes)} of ${formatSize(sizing.virtualSize)}`));
   const wholeTable = entrySize === sizing.clusterSize;
-  const l2Text = (value: bigint | undefined): string | bigint => value ?? 'driver default';
+  const combined = disk.configured.totalCache;
+  const l2Text = (value: bigint | undefined): string | bigint =>
+    value ?? (combined !== undefined ? `not set: taken from the ${formatSize(combined)} combined cache` : 'not set: the driver\'s default');
   return [
     { field: 'virtualSize', label: 'Virtual size', value: sizing.virtualSize, kind: 'size' },
     { field: 'clusterSize', label: 'Cluster size', value: sizing.clusterSize, was: was?.sizing.clusterSize, kind: 'size' },
