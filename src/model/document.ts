@@ -68,9 +68,12 @@ export function readDefinition(path: string, text: string, format: DocumentForma
     const problem = jsonSyntaxProblem(text, lines);
     if (problem) return { problems: [problem] };
   }
-  const tree = parseDocument(text, { schema: format === 'json' ? 'json' : 'core', prettyErrors: false, uniqueKeys: true, strict: true });
+  // Merge keys (<<) are a YAML 1.1 habit that hand-written definitions still use; JSON has none.
+  const tree = parseDocument(text, { schema: format === 'json' ? 'json' : 'core', merge: format !== 'json', prettyErrors: false, uniqueKeys: true, strict: true });
   const problems: DocumentProblem[] = tree.errors.map((error) => ({
-    message: firstLine(error.message),
+    message: error.code === 'MULTIPLE_DOCS'
+      ? 'this file holds more than one YAML document; diskwise reads one definition document per file (split it, or drop the extra "---")'
+      : firstLine(error.message),
     range: lines.range(Math.min(error.pos[0], text.length), Math.min(error.pos[1], text.length)),
   }));
   if (problems.length > 0) return { problems };
@@ -111,7 +114,7 @@ export function nodeAt(document: DefinitionDocument, path: readonly PathSegment[
   let pair: Pair | undefined;
   for (const segment of path) {
     if (isMap(current)) {
-      pair = (current as YAMLMap).items.find((item) => keyText(item.key) === String(segment));
+      pair = findPair(current as YAMLMap, String(segment), state, document.tree);
       if (!pair) return undefined;
       current = resolve(pair.value, state, document.tree);
     } else if (isSeq(current) && typeof segment === 'number') {
@@ -123,8 +126,33 @@ export function nodeAt(document: DefinitionDocument, path: readonly PathSegment[
   return { node: current as Node, pair, viaAlias: state.viaAlias };
 }
 
+/** A map's own key first, then keys a merge key (<<) brings in, which live at the anchor. */
+function findPair(map: YAMLMap, key: string, state: { viaAlias: boolean }, doc: Document.Parsed, depth = 0): Pair | undefined {
+  const own = map.items.find((item) => keyText(item.key) === key);
+  if (own || depth > 16) return own;
+  for (const item of map.items) {
+    if (keyText(item.key) !== '<<') continue;
+    const sources = isSeq(item.value) ? (item.value as YAMLSeq).items : [item.value];
+    for (const source of sources) {
+      const inner = { viaAlias: false };
+      const resolved = resolve(source, inner, doc);
+      if (!isMap(resolved)) continue;
+      const found = findPair(resolved as YAMLMap, key, inner, doc, depth + 1);
+      if (found) {
+        state.viaAlias = true;
+        return found;
+      }
+    }
+  }
+  return undefined;
+}
+
 export function keyText(key: unknown): string | undefined {
-  if (isScalar(key)) return String((key as Scalar).value);
+  if (isScalar(key)) {
+    const value = (key as Scalar).value;
+    // The yaml package marks a merge key with a symbol.
+    return typeof value === 'symbol' ? '<<' : String(value);
+  }
   return typeof key === 'string' ? key : undefined;
 }
 

@@ -89,8 +89,18 @@ function locate(doc: DefinitionDocument, path: readonly PathSegment[], key?: str
   return { pointer: '', range: doc.lines.range(0, 0) };
 }
 
-function describeIssue(issue: ZodIssue): string {
+function valueAt(data: unknown, path: readonly PathSegment[]): unknown {
+  let current = data;
+  for (const segment of path) {
+    if (typeof current !== 'object' || current === null) return undefined;
+    current = (current as Record<string, unknown>)[String(segment)];
+  }
+  return current;
+}
+
+function describeIssue(issue: ZodIssue, data: unknown): string {
   const where = issue.path.length ? `"${issue.path.join('.')}"` : 'the mapping file';
+  if (issue.code !== 'unrecognized_keys' && issue.path.length > 0 && valueAt(data, issue.path as PathSegment[]) === undefined) return `${where} is required`;
   switch (issue.code) {
     case 'unrecognized_keys':
       return `unknown key${issue.keys.length > 1 ? 's' : ''} ${issue.keys.map((k) => `"${k}"`).join(', ')} in ${where}`;
@@ -102,6 +112,8 @@ function describeIssue(issue: ZodIssue): string {
       return `${where}: ${issue.message.replace(/^Invalid input: /, '')}`;
   }
 }
+
+const byPosition = (problems: MappingProblem[]): MappingProblem[] => problems.sort((a, b) => a.range.offset - b.range.offset);
 
 export function loadMapping(text: string, path: string, knownRuleIds: readonly string[] = []): MappingLoad {
   const read = readDefinition(path, text);
@@ -115,12 +127,12 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
     for (const issue of parsed.error.issues as unknown as ZodIssue[]) {
       const path = issue.path as PathSegment[];
       if (issue.code === 'unrecognized_keys') {
-        for (const key of issue.keys) problems.push({ message: describeIssue({ ...issue, keys: [key] }), ...locate(doc, path, key) });
+        for (const key of issue.keys) problems.push({ message: describeIssue({ ...issue, keys: [key] }, doc.data), ...locate(doc, path, key) });
       } else {
-        problems.push({ message: describeIssue(issue), ...locate(doc, path) });
+        problems.push({ message: describeIssue(issue, doc.data), ...locate(doc, path) });
       }
     }
-    return { problems };
+    return { problems: byPosition(problems) };
   }
   const file = parsed.data;
   const at = (...path: PathSegment[]) => locate(doc, path);
@@ -188,7 +200,7 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
     const pointer = parseJsonPointer(entry.pointer);
     if (!pointer.ok) problems.push({ message: `ignore[${i}].pointer: ${pointer.error}`, ...at('ignore', i, 'pointer') });
   });
-  if (problems.length > 0 || !disks) return { problems };
+  if (problems.length > 0 || !disks) return { problems: byPosition(problems) };
 
   const include = picomatch(file.include ?? DEFAULT_INCLUDE, { dot: false });
   const exclude = picomatch([...(file.exclude ?? []), ...ALWAYS_EXCLUDED], { dot: true });

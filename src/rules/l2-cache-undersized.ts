@@ -12,7 +12,8 @@ function prediction(top: LayerCache, pattern: string, requestSize: bigint): stri
   const { virtualSize, clusterSize, extendedL2 } = top.geometry;
   const model = modelCache({ virtualSize, clusterSize, extendedL2, entrySize: top.entrySize, cacheBytes: top.l2, access: access.value, ioSize: requestSize });
   if (!model.ok) return '';
-  const hits = (model.value.hitRatio * 100).toFixed(1);
+  // Rounded down, so a ratio just short of 1 never reads as "100.0%".
+  const hits = (Math.floor(model.value.hitRatio * 1000) / 10).toFixed(1);
   const misses = Math.round(model.value.missesPer1000);
   return ` Under ${pattern} access it predicts ${hits}% L2 hits, ${misses} extra metadata reads per 1,000 guest I/Os; full coverage: 100% and none.`;
 }

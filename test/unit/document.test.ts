@@ -233,9 +233,13 @@ describe(`document: ${YAML12} streams and merge keys`, () => {
     assert.ok(readDefinition('/defs/one.yaml', '%YAML 1.2\n---\nmachines: []\n...\n').document);
   });
   // YAML 1.2's core schema has no merge keys; many hand-written definitions use them (a YAML 1.1
-  // habit). Today "<<" is read as an ordinary key, so merged disks are silently not seen.
-  it.skip('a merge key (<<) brings the merged keys into the map (lead to decide: enable merge keys)', () => {
+  // habit), so they are read, and a merged value is located at its anchor (common practice).
+  it('a merge key (<<) brings the merged keys into the map, located at the anchor', () => {
     const d = read('base: &base { size: 1T }\ndisk:\n  <<: *base\n  name: data\n');
     assert.deepEqual((d.data as { disk: unknown }).disk, { size: '1T', name: 'data' });
+    const found = nodeAt(d, ['disk', 'size']);
+    assert.ok(found);
+    assert.equal(found.viaAlias, true, 'a fix there would change every user of the anchor');
+    assert.deepEqual([rangeOfNode(d, found.node).line, rangeOfNode(d, found.node).column], [1, 21]);
   });
 });
