@@ -82,12 +82,15 @@ function diskScore(objects: Array<Record<string, unknown>>): number {
   return score / objects.length;
 }
 
-/** Key paths of scalar members up to `depth` levels of nested objects. */
+/**
+ * Key paths of members up to `depth` levels of nested objects: scalars, and nested objects
+ * themselves too (a backing disk may be written as an object in place).
+ */
 function flatKeys(object: Record<string, unknown>, depth: number, prefix: string[] = []): string[][] {
   const out: string[][] = [];
   for (const [key, value] of Object.entries(object)) {
+    out.push([...prefix, key]);
     if (isRecord(value) && depth > 0) out.push(...flatKeys(value, depth - 1, [...prefix, key]));
-    else out.push([...prefix, key]);
   }
   return out;
 }

@@ -126,6 +126,20 @@ describe('commands, status bar and panel', () => {
     assert.equal(proposal.machineFields.name, '$.hostname');
     const loaded = loadMapping(proposal.text, '/tmp/diskwise.yaml');
     assert.deepEqual(loaded.problems, [], proposal.text);
+    assert.deepEqual(proposal.include, ['fleet/**/*.yaml', 'fleet/**/*.yml']);
+  });
+
+  it('proposes one from a JSON definition too, with its backing field', async () => {
+    const { document } = await open('fleet/harbour.json');
+    const proposal = proposeMapping(JSON.parse(document.getText()), 'fleet/harbour.json');
+    assert.ok(proposal);
+    assert.equal(proposal.machines, '$.vms[*]');
+    assert.equal(proposal.disks, '$.volumes[*]');
+    assert.equal(proposal.diskFields.backing, '$.base');
+    assert.equal(proposal.diskFields.image, '$.file');
+    assert.equal(proposal.diskFields.format, '$.kind');
+    assert.deepEqual(proposal.include, ['fleet/**/*.json']);
+    assert.deepEqual(loadMapping(proposal.text, '/tmp/diskwise.yaml').problems, [], proposal.text);
   });
 
   it('writes the starter mapping file once the user confirms, and lints with it', async () => {
