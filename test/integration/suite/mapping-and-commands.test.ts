@@ -5,7 +5,7 @@ import { formatSize } from '../../../src/core/units';
 import { loadMapping } from '../../../src/lint';
 import { proposeMapping } from '../../../src/extension/starterProposal';
 import { parse as parseYaml } from 'yaml';
-import { api, demoFile, open, ours, perf, rangeOf, revert, waitFor, workspaceRoot } from './helpers';
+import { api, codeOf, demoFile, open, ours, perf, rangeOf, revert, waitFor, workspaceRoot } from './helpers';
 
 describe('the mapping file', () => {
   it('shows its own errors at their positions while it is edited', async () => {
@@ -66,6 +66,23 @@ describe('commands, status bar and panel', () => {
     assert.ok(summary.findings > 0);
     const harbour = demoFile('fleet/harbour.json');
     assert.ok(ours(harbour).length > 0, 'a file never opened has diagnostics from the background lint');
+  });
+
+  it('keeps files it never opened current through a file watcher', async () => {
+    await api();
+    const added = demoFile('fleet/added-later.yaml');
+    // 200 GiB at 64 KiB clusters needs 25 MiB of L2 cache for full coverage [qcow2 specification].
+    const text = 'vms:\n  - hostname: tern-new-04\n    ram: 8G\n    volumes:\n      - label: data\n        kind: qcow2\n        capacity: 200G\n        tuning:\n          l2: 1M\n';
+    await vscode.workspace.fs.writeFile(added, new TextEncoder().encode(text));
+    try {
+      const found = await waitFor('diagnostics on a file created on disk', () => ours(added).find((d) => codeOf(d) === 'l2-cache-undersized'));
+      assert.equal(found.range.start.line, 8);
+      await vscode.workspace.fs.writeFile(added, new TextEncoder().encode(text.replace('l2: 1M', 'l2: 25M')));
+      await waitFor('the finding to go when the file changes on disk', () => !ours(added).some((d) => codeOf(d) === 'l2-cache-undersized'));
+    } finally {
+      await vscode.workspace.fs.delete(added);
+    }
+    await waitFor('diagnostics to go with the file', () => ours(added).length === 0);
   });
 
   it('shows the active file\'s cache memory in the status bar', async () => {
