@@ -61,6 +61,10 @@ export class Linting implements vscode.Disposable {
     this.disposables.push(
       vscode.workspace.onDidChangeTextDocument((event) => this.schedule(event.document)),
       vscode.workspace.onDidOpenTextDocument((document) => { if (this.isDefinition(document)) this.lintOpen(document); }),
+      // Closed without saving: the diagnostics follow the file on disk again.
+      vscode.workspace.onDidCloseTextDocument((document) => {
+        if (this.results.get(document.uri.toString())?.version !== undefined) setTimeout(() => void this.lintFromDisk(document.uri), 0);
+      }),
       vscode.workspace.onDidSaveTextDocument((document) => {
         if (isMappingFileName(document.uri) || this.mappings.stateOfMappingFile(document.uri)) void this.mappingChanged(document.uri);
       }),
