@@ -23,6 +23,8 @@ const vscode = acquireVsCodeApi();
 const root = document.getElementById('root') ?? document.body;
 const trials: WhatIfState = new Map();
 let current: { view: PanelView; seq: number } | undefined;
+/** The disk the user picked in the panel or put the editor's cursor in; its card carries the curve. */
+let selected: string | undefined;
 
 const post = (message: PanelMessage): void => vscode.postMessage(encodeMessage(message));
 
@@ -36,10 +38,13 @@ const actions: PanelActions = {
   changed() {
     if (current) draw(current.view, current.seq);
   },
+  select(pointer) {
+    selected = pointer;
+  },
 };
 
 function draw(view: PanelView, seq: number): void {
-  const disks = renderPanel(root, view, trials, actions);
+  const disks = renderPanel(root, view, trials, actions, selected);
   post({ type: 'rendered', seq, disks });
 }
 
@@ -64,6 +69,10 @@ window.addEventListener('message', (event: MessageEvent<unknown>) => {
       post({ type: 'rendered', seq: message.seq, disks: 0 });
       break;
     case 'focusDisk': {
+      if (current && selected !== message.pointer) {
+        selected = message.pointer;
+        draw(current.view, current.seq);
+      }
       const card = Array.from(document.querySelectorAll<HTMLElement>('article.disk')).find((c) => c.dataset.pointer === message.pointer);
       if (card) {
         for (const other of Array.from(document.querySelectorAll('article.disk.focused'))) other.classList.remove('focused');

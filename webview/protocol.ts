@@ -37,6 +37,8 @@ export interface DiskView {
   recommended: { l2Cache: bigint; cleanupInterval: number };
   /** The layers as the engine sized them, top first: the what-if mode recomputes from these. */
   chain: LayerSpec[];
+  /** The workload the definition declares (or the mapping assumes): the hit-ratio curve models it. */
+  workload: { pattern: string; requestSize: bigint };
   findings: FindingView[];
 }
 
@@ -74,6 +76,7 @@ export interface WhatIfValues {
 export type HostMessage =
   | { type: 'show'; seq: number; view: PanelView }
   | { type: 'empty'; seq: number; reason: string }
+  /** The editor's cursor is in this disk: the panel selects it (its card carries the curve). */
   | { type: 'focusDisk'; pointer: string }
   | { type: 'applied'; ok: boolean; message: string };
 

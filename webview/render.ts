@@ -3,6 +3,7 @@
 import type { SizingReport } from '../src/core/results';
 import { formatInterval, formatSize, formatSizeExact, parseSize } from '../src/core/units';
 import type { DiskView, FindingView, MachineView, PanelView, WhatIfValues } from './protocol';
+import { curveFigure } from './curve';
 import { CLUSTER_CHOICES, sliceChoices, whatIf, type WhatIfResult } from './whatif';
 
 export interface PanelActions {
@@ -10,6 +11,8 @@ export interface PanelActions {
   apply(disk: DiskView, values: WhatIfValues): void;
   /** The what-if state changed: redraw. */
   changed(): void;
+  /** The user picked this disk (its name or its what-if button): its card carries the curve. */
+  select(pointer: string): void;
 }
 
 /** Trial values per disk pointer; kept across updates so typing in the editor does not reset them. */
@@ -226,13 +229,18 @@ export function pendingValues(disk: DiskView, values: WhatIfValues): WhatIfValue
 
 interface DiskOutcome { card: HTMLElement; total: bigint }
 
-function diskCard(view: PanelView, disk: DiskView, state: WhatIfState, actions: PanelActions): DiskOutcome {
-  const card = el('article', 'disk');
+function diskCard(view: PanelView, disk: DiskView, state: WhatIfState, actions: PanelActions, charted: boolean): DiskOutcome {
+  const card = el('article', charted ? 'disk selected' : 'disk');
   card.dataset.pointer = disk.pointer;
   card.dataset.disk = disk.name;
   const head = el('header', 'disk-head');
   const title = custom('vscode-link', { class: 'disk-name', title: 'Show this disk in the editor', href: '#' }, disk.name);
-  title.addEventListener('click', (event) => { event.preventDefault(); actions.reveal(disk); });
+  title.addEventListener('click', (event) => {
+    event.preventDefault();
+    actions.reveal(disk);
+    actions.select(disk.pointer);
+    actions.changed();
+  });
   head.append(title);
   const active = disk.findings.filter((f) => !f.suppressed);
   if (active.length > 0) {
@@ -244,6 +252,7 @@ function diskCard(view: PanelView, disk: DiskView, state: WhatIfState, actions: 
   const open = state.has(disk.pointer);
   toggle.addEventListener('click', () => {
     if (state.has(disk.pointer)) state.delete(disk.pointer); else state.set(disk.pointer, {});
+    actions.select(disk.pointer);
     actions.changed();
   });
   head.append(toggle);
@@ -267,12 +276,26 @@ function diskCard(view: PanelView, disk: DiskView, state: WhatIfState, actions: 
   card.append(numbersTable(diskRows(disk, sizing, entrySize, was, configuredL2, disk.configured.l2Cache)));
   const cleanup = disk.configured.cleanupInterval;
   card.append(el('p', 'cleanup', `Cleanup interval: ${cleanup === undefined ? `driver default` : formatInterval(cleanup)}; recommended L2 cache ${formatSize(disk.recommended.l2Cache)}`));
+  if (charted) {
+    // The trial's numbers when it is valid, so the marks move with every what-if edit.
+    card.append(curveFigure(disk.name, {
+      virtualSize: sizing.virtualSize,
+      clusterSize: sizing.clusterSize,
+      extendedL2: disk.extendedL2,
+      entrySize,
+      pattern: disk.workload.pattern,
+      requestSize: disk.workload.requestSize,
+      configured: configuredL2,
+      effective: sizing.l2Effective,
+      fullCoverage: sizing.l2FullCoverage,
+    }));
+  }
   if (open && values && result) card.append(whatIfControls(disk, values, result, state, actions));
   if (disk.findings.length > 0) card.append(findingList(disk.findings, actions));
   return { card, total: sizing.cacheMemoryTotal };
 }
 
-function machineSection(view: PanelView, machine: MachineView, state: WhatIfState, actions: PanelActions): HTMLElement {
+function machineSection(view: PanelView, machine: MachineView, state: WhatIfState, actions: PanelActions, charted: string | undefined): HTMLElement {
   const section = el('section', 'machine');
   section.dataset.machine = machine.name;
   const head = el('header', 'machine-head');
@@ -284,7 +307,7 @@ function machineSection(view: PanelView, machine: MachineView, state: WhatIfStat
   if (machine.memory !== undefined) head.append(el('span', 'memory', `${formatSize(machine.memory)} RAM`));
   section.append(head);
 
-  const cards = machine.disks.map((disk) => diskCard(view, disk, state, actions));
+  const cards = machine.disks.map((disk) => diskCard(view, disk, state, actions, disk.pointer === charted));
   const total = cards.reduce((sum, c) => sum + c.total, 0n);
   const budgetLine = el('div', 'budget');
   budgetLine.dataset.field = 'machineCacheTotal';
@@ -307,7 +330,14 @@ function machineSection(view: PanelView, machine: MachineView, state: WhatIfStat
   return section;
 }
 
-export function renderPanel(root: HTMLElement, view: PanelView, state: WhatIfState, actions: PanelActions): number {
+/** The disk whose card carries the curve: the one picked, else the first one being tried, else the first. */
+export function chartedDisk(view: PanelView, state: WhatIfState, selected: string | undefined): string | undefined {
+  const disks = view.machines.flatMap((m) => m.disks);
+  if (selected !== undefined && disks.some((d) => d.pointer === selected)) return selected;
+  return (disks.find((d) => state.has(d.pointer)) ?? disks[0])?.pointer;
+}
+
+export function renderPanel(root: HTMLElement, view: PanelView, state: WhatIfState, actions: PanelActions, selected?: string): number {
   const scroll = window.scrollY;
   const content = el('main', 'panel');
   const header = el('header', 'file-head');
@@ -316,9 +346,10 @@ export function renderPanel(root: HTMLElement, view: PanelView, state: WhatIfSta
   header.append(el('span', 'profile', profileText));
   content.append(header);
   if (view.fileFindings.length > 0) content.append(findingList(view.fileFindings, actions));
+  const charted = chartedDisk(view, state, selected);
   let disks = 0;
   for (const machine of view.machines) {
-    content.append(machineSection(view, machine, state, actions));
+    content.append(machineSection(view, machine, state, actions, charted));
     disks += machine.disks.length;
   }
   if (view.machines.length === 0) content.append(el('p', 'none', 'No machine found in this file with the mapping\'s selectors.'));

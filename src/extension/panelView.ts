@@ -84,6 +84,7 @@ export function panelView(uri: string, version: number, report: FileReport, mapp
       configured,
       recommended: disk.recommended,
       chain: chainOf(disk, configured),
+      workload: { pattern: disk.pattern, requestSize: disk.requestSize },
       findings: findings.map(findingView),
     };
   });
