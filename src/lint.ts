@@ -5,7 +5,7 @@ import type { Finding, Fix, RelatedLocation, Severity, SourceRange } from './cor
 import { DEFAULT_REFCOUNT_BITS } from './core/sizing';
 import { nodeAt, readDefinition, type DefinitionDocument } from './model/document';
 import { documentSizeStyle, insertFieldEdit, replaceValueEdit, type NewValue } from './model/edits';
-import { extractMachines, type DiskSpec, type Located, type MachineSpec } from './model/disks';
+import { extractDisk, extractMachines, type DiskSpec, type Extraction, type Located, type MachineSpec, type ValueProblem } from './model/disks';
 import { loadMapping as loadMappingFile, type Mapping, type MappingLoad } from './model/mapping';
 import { readSuppressions } from './model/suppressions';
 import { RULE_IDS, RULES, type Rule } from './rules';
@@ -13,6 +13,8 @@ import type { DiskCheck, FindingInput, FixHelpers, SizedDisk, SizeField } from '
 import type { SizeStyle } from './core/units';
 import type { ImageChainFacts, ImageLookup } from './model/images';
 import * as nodePath from 'node:path';
+import { diffTexts, hasSharedNodes, reparseItem, type TextChange } from './model/incremental';
+import type { PathSegment } from './model/jsonpath';
 
 export type { Finding, Fix, Severity, SourceRange } from './core/results';
 export type { Mapping, MappingProblem } from './model/mapping';
@@ -84,8 +86,9 @@ function headRange(document: DefinitionDocument, range: SourceRange): SourceRang
 }
 
 class FileLint {
-  readonly findings: Finding[] = [];
-  private sizeStyle: SizeStyle | undefined;
+  /** Where findings go: the list of the disk, machine or file being checked. */
+  sink: Finding[] = [];
+  sizeStyle: SizeStyle | undefined;
   private readonly severities: Record<string, Severity | 'off'>;
 
   readonly images: ImageLookup | undefined;
@@ -102,7 +105,7 @@ class FileLint {
   add(rule: Rule, finding: Omit<Finding, 'rule' | 'severity'>): void {
     const severity = this.severityOf(rule);
     if (severity === 'off') return;
-    this.findings.push({ rule: rule.id, severity, ...finding });
+    this.sink.push({ rule: rule.id, severity, ...finding });
   }
 
   fileSizeStyle(machines: readonly MachineSpec[]): SizeStyle | undefined {
@@ -275,8 +278,9 @@ function lintDisk(lint: FileLint, disk: DiskSpec, machines: readonly MachineSpec
   };
 }
 
-function applySuppressions(lint: FileLint, machines: readonly MachineSpec[]): void {
-  const { document, mapping, findings } = lint;
+function applySuppressions(lint: FileLint, machines: readonly MachineSpec[], findings: Finding[]): void {
+  const { document, mapping } = lint;
+  lint.sink = findings;
   const suppressionRule = RULES.find((r) => r.id === 'invalid-suppression') as Rule;
   const { comments, problems } = readSuppressions(document, new Set(RULE_IDS));
   for (const problem of problems) lint.add(suppressionRule, { message: problem.message, pointer: '', range: problem.range });
@@ -339,50 +343,134 @@ export function lintDocument(file: SourceFile, mapping: Mapping, options: LintOp
 
 export function lintPrepared(prepared: PreparedDocument, options: LintOptions = {}): FileReport {
   const { file, mapping, read } = prepared;
-  if (!read.document || !prepared.extraction) {
-    const rule = RULES.find((r) => r.id === 'parse-error') as Rule;
-    return {
-      path: file.path,
-      disks: [],
-      machines: [],
-      findings: read.problems.map((p) => ({ rule: rule.id, severity: 'error' as const, message: p.message, pointer: '', range: p.range })),
-      parsed: false,
-    };
-  }
-  const document = read.document;
-  const lint = new FileLint(document, mapping, options);
-  const { machines, problems } = prepared.extraction;
-  const invalid = RULES.find((r) => r.id === 'invalid-value') as Rule;
-  for (const problem of problems) lint.add(invalid, { message: `${problem.field}: ${problem.message}`, pointer: problem.pointer, range: problem.range });
+  if (!read.document || !prepared.extraction) return unparsedReport(file.path, read.problems);
+  const lint = new FileLint(read.document, mapping, options);
+  const units = lintUnits(lint, prepared.extraction);
+  return assemble(lint, units);
+}
 
+function unparsedReport(path: string, problems: readonly { message: string; range: SourceRange }[]): FileReport {
+  const rule = RULES.find((r) => r.id === 'parse-error') as Rule;
+  return {
+    path,
+    disks: [],
+    machines: [],
+    findings: problems.map((p) => ({ rule: rule.id, severity: 'error' as const, message: p.message, pointer: '', range: p.range })),
+    parsed: false,
+  };
+}
+
+/** The findings of one disk (its values and its rules) and its sizing, kept apart so an edit inside it re-checks it alone. */
+interface DiskUnit {
+  disk: DiskSpec;
+  findings: Finding[];
+  result?: { sizing: DiskSizing; report: DiskReport };
+}
+
+interface MachineUnit {
+  machine: MachineSpec;
+  disks: DiskUnit[];
+  /** Problems with the machine's own values. */
+  valueFindings: Finding[];
+  ruleFindings: Finding[];
+}
+
+interface Units {
+  machines: MachineUnit[];
+  /** Value problems that belong to no disk or machine. */
+  other: Finding[];
+}
+
+const INVALID_VALUE = RULES.find((r) => r.id === 'invalid-value') as Rule;
+
+function problemFindings(lint: FileLint, problems: readonly ValueProblem[], into: Finding[]): void {
+  lint.sink = into;
+  for (const problem of problems) lint.add(INVALID_VALUE, { message: `${problem.field}: ${problem.message}`, pointer: problem.pointer, range: problem.range });
+}
+
+function lintDiskUnit(lint: FileLint, disk: DiskSpec, problems: readonly ValueProblem[], machines: readonly MachineSpec[]): DiskUnit {
+  const unit: DiskUnit = { disk, findings: [] };
+  problemFindings(lint, problems, unit.findings);
+  lint.sink = unit.findings;
+  if (disk.isQcow2) unit.result = lintDisk(lint, disk, machines);
+  return unit;
+}
+
+function machineRuleFindings(lint: FileLint, unit: MachineUnit): void {
+  const { machine } = unit;
+  const sized: SizedDisk[] = unit.disks.flatMap((d) => (d.result ? [{ disk: d.disk, sizing: d.result.sizing }] : []));
+  unit.ruleFindings = [];
+  lint.sink = unit.ruleFindings;
+  for (const rule of RULES) {
+    if (!rule.checkMachine || lint.severityOf(rule) === 'off') continue;
+    rule.checkMachine({
+      machine, disks: sized, mapping: lint.mapping,
+      report: (input) => {
+        const at = typeof input.at === 'object' ? input.at : undefined;
+        lint.add(rule, {
+          message: input.message,
+          pointer: at?.pointer ?? machine.pointer,
+          range: at?.range ?? headRange(lint.document, machine.range),
+          ...(input.related ? { related: input.related as RelatedLocation[] } : {}),
+        });
+      },
+    });
+  }
+}
+
+const withinPointer = (pointer: string, scope: string) => pointer === scope || pointer.startsWith(`${scope}/`);
+
+function lintUnits(lint: FileLint, extraction: Extraction): Units {
+  const { machines, problems } = extraction;
+  // Each value problem belongs to the innermost disk or machine whose pointer holds it.
+  const owners = new Map<string, ValueProblem[]>();
+  const other: ValueProblem[] = [];
+  const scopes = new Set<string>();
+  for (const machine of machines) {
+    scopes.add(machine.pointer);
+    for (const disk of machine.disks) scopes.add(disk.pointer);
+  }
+  for (const problem of problems) {
+    let pointer = problem.pointer;
+    for (;;) {
+      if (scopes.has(pointer)) break;
+      const cut = pointer.lastIndexOf('/');
+      if (cut < 0) break;
+      pointer = pointer.slice(0, cut);
+    }
+    if (scopes.has(pointer)) owners.set(pointer, [...(owners.get(pointer) ?? []), problem]);
+    else other.push(problem);
+  }
+  const units: Units = { machines: [], other: [] };
+  for (const machine of machines) {
+    const unit: MachineUnit = { machine, disks: [], valueFindings: [], ruleFindings: [] };
+    problemFindings(lint, machine.disks.some((d) => d.pointer === machine.pointer) ? [] : owners.get(machine.pointer) ?? [], unit.valueFindings);
+    for (const disk of machine.disks) unit.disks.push(lintDiskUnit(lint, disk, owners.get(disk.pointer) ?? [], machines));
+    machineRuleFindings(lint, unit);
+    units.machines.push(unit);
+  }
+  problemFindings(lint, other, units.other);
+  return units;
+}
+
+function assemble(lint: FileLint, units: Units): FileReport {
+  const { mapping, document } = lint;
   const disks: DiskReport[] = [];
   const machineReports: MachineReport[] = [];
-  for (const machine of machines) {
-    const sized: SizedDisk[] = [];
+  const findings: Finding[] = [...units.other];
+  for (const unit of units.machines) {
     const indices: number[] = [];
-    for (const disk of machine.disks) {
-      if (!disk.isQcow2) continue;
-      const result = lintDisk(lint, disk, machines);
-      if (!result) continue;
-      sized.push({ disk, sizing: result.sizing });
+    findings.push(...unit.valueFindings);
+    let total = 0n;
+    for (const disk of unit.disks) {
+      findings.push(...disk.findings);
+      if (!disk.result) continue;
       indices.push(disks.length);
-      disks.push(result.report);
+      disks.push(disk.result.report);
+      total += disk.result.sizing.report.cacheMemoryTotal;
     }
-    for (const rule of RULES) {
-      if (!rule.checkMachine || lint.severityOf(rule) === 'off') continue;
-      rule.checkMachine({
-        machine, disks: sized, mapping,
-        report: (input) => {
-          const at = typeof input.at === 'object' ? input.at : undefined;
-          lint.add(rule, {
-            message: input.message,
-            pointer: at?.pointer ?? machine.pointer,
-            range: at?.range ?? headRange(document, machine.range),
-            ...(input.related ? { related: input.related as RelatedLocation[] } : {}),
-          });
-        },
-      });
-    }
+    findings.push(...unit.ruleFindings);
+    const { machine } = unit;
     const memory = machine.memory?.value;
     machineReports.push({
       name: machine.name,
@@ -390,11 +478,171 @@ export function lintPrepared(prepared: PreparedDocument, options: LintOptions = 
       range: machine.range,
       memory,
       budget: memory === undefined ? undefined : (memory * BigInt(Math.round(mapping.cacheShareOfMemory * 1_000_000))) / 1_000_000n,
-      cacheMemoryTotal: sized.reduce((sum, d) => sum + d.sizing.report.cacheMemoryTotal, 0n),
+      cacheMemoryTotal: total,
       disks: indices,
     });
   }
-  applySuppressions(lint, machines);
-  lint.findings.sort(byPlace);
-  return { path: file.path, disks, machines: machineReports, findings: lint.findings, parsed: true };
+  for (const finding of findings) delete finding.suppressed;
+  applySuppressions(lint, units.machines.map((u) => u.machine), findings);
+  findings.sort(byPlace);
+  return { path: document.path, disks, machines: machineReports, findings, parsed: true };
+}
+
+// ---- re-linting one file as it is edited ----
+
+function shiftOffset(offset: number, change: TextChange): number {
+  return offset >= change.oldEnd ? offset + change.delta : offset;
+}
+
+/** Moves a range that lies outside the edited part: offsets after the edit shift, and their lines and columns are read again. */
+function shiftRange(range: SourceRange, change: TextChange, lines: DefinitionDocument['lines']): SourceRange {
+  const end = range.offset + range.length;
+  if (end < change.oldEnd && range.offset < change.oldEnd) return range;
+  const stop = end >= change.oldEnd ? end + change.delta : end;
+  // Lines move even when the length does not (a line break replaced by a character).
+  if (range.offset >= change.oldEnd) return lines.range(range.offset + change.delta, stop);
+  const to = lines.position(stop);
+  return { ...range, length: stop - range.offset, endLine: to.line, endColumn: to.column };
+}
+
+function shiftFinding(finding: Finding, change: TextChange, lines: DefinitionDocument['lines']): Finding {
+  const shifted: Finding = { ...finding, range: shiftRange(finding.range, change, lines) };
+  if (finding.related) shifted.related = finding.related.map((r) => ({ ...r, range: shiftRange(r.range, change, lines) }));
+  if (finding.fix) shifted.fix = { ...finding.fix, edits: finding.fix.edits.map((e) => ({ ...e, offset: shiftOffset(e.offset, change) })) };
+  return shifted;
+}
+
+function shiftDisk(disk: DiskSpec, change: TextChange, lines: DefinitionDocument['lines']): void {
+  disk.range = shiftRange(disk.range, change, lines);
+  for (const value of Object.values(disk.values) as (Located<unknown> | undefined)[]) if (value) value.range = shiftRange(value.range, change, lines);
+  const backing = disk.backing;
+  if (backing && 'file' in backing) backing.file.range = shiftRange(backing.file.range, change, lines);
+  if (backing && 'disk' in backing) shiftDisk(backing.disk, change, lines);
+}
+
+interface SessionState {
+  text: string;
+  document: DefinitionDocument;
+  machines: MachineSpec[];
+  units: Units;
+  sizeStyle: SizeStyle | undefined;
+  /** Anchors or aliases: then every edit is read in full. */
+  shared: boolean;
+  report: FileReport;
+}
+
+/**
+ * Lints one file again and again as it is edited (the editor's case). An edit inside one disk
+ * re-reads and re-checks that disk alone and moves everything after it; any other edit, or one the
+ * fast path cannot prove equivalent, lints the whole file. The report is always the one
+ * lintDocument would give for the same text.
+ */
+export class LintSession {
+  private state: SessionState | undefined;
+  /** How the last update was done, for tests and benchmarks. */
+  lastUpdate: 'full' | 'incremental' | 'unchanged' = 'full';
+
+  constructor(readonly path: string, readonly mapping: Mapping, readonly options: LintOptions = {}) {}
+
+  update(text: string): FileReport {
+    const previous = this.state;
+    if (previous) {
+      if (previous.text === text) {
+        this.lastUpdate = 'unchanged';
+        return previous.report;
+      }
+      const fast = this.tryIncremental(previous, text);
+      if (fast) return fast;
+    }
+    return this.full(text);
+  }
+
+  private full(text: string): FileReport {
+    this.lastUpdate = 'full';
+    const file = { path: this.path, text };
+    const read = readDefinition(file.path, text);
+    this.state = undefined;
+    if (!read.document) return unparsedReport(file.path, read.problems);
+    const prepared: PreparedDocument = { file, mapping: this.mapping, read, extraction: extractMachines(read.document, this.mapping), imagePaths: [] };
+    const lint = new FileLint(read.document, this.mapping, this.options);
+    const units = lintUnits(lint, prepared.extraction as Extraction);
+    const report = assemble(lint, units);
+    const simpleSelectors = (!this.mapping.machines || this.mapping.machines.steps !== undefined) && this.mapping.disks.steps !== undefined;
+    if (simpleSelectors && read.document.format === 'yaml') {
+      this.state = { text, document: read.document, machines: (prepared.extraction as Extraction).machines, units, sizeStyle: lint.fileSizeStyle((prepared.extraction as Extraction).machines), shared: hasSharedNodes(read.document), report };
+    }
+    return report;
+  }
+
+  private tryIncremental(state: SessionState, text: string): FileReport | undefined {
+    if (state.shared) return undefined;
+    const change = diffTexts(state.text, text);
+    if (!change) return state.report;
+    let target: { machine: MachineUnit; index: number } | undefined;
+    for (const machine of state.units.machines) {
+      const index = machine.disks.findIndex(({ disk }) => {
+        const [start, end] = disk.node.range ?? [0, 0];
+        return start < change.start && change.oldEnd <= end;
+      });
+      if (index !== -1) {
+        target = { machine, index };
+        break;
+      }
+    }
+    if (!target) return undefined;
+    const old = target.machine.disks[target.index] as DiskUnit;
+    const document = reparseItem(state.document, text, change, old.disk.path);
+    // From here on the previous tree has changed: any failure must read the whole file.
+    if (!document) return this.full(text);
+    const { lines } = document;
+    for (const machine of state.machines) {
+      machine.range = shiftRange(machine.range, change, lines);
+      if (machine.memory) machine.memory.range = shiftRange(machine.memory.range, change, lines);
+      for (const disk of machine.disks) if (disk !== old.disk) shiftDisk(disk, change, lines);
+    }
+    const value = valueAtPath(document.data, old.disk.path);
+    const machineSpec = target.machine.machine;
+    const extracted = extractDisk(document, this.mapping, machineSpec, old.disk.path, value, old.disk.fallbackName);
+    if (!extracted.disk) return this.full(text);
+    const position = machineSpec.disks.indexOf(old.disk);
+    machineSpec.disks[position] = extracted.disk;
+
+    const lint = new FileLint(document, this.mapping, this.options);
+    const style = lint.fileSizeStyle(state.machines);
+    if (JSON.stringify(style) !== JSON.stringify(state.sizeStyle)) return this.full(text);
+    // Problems the new disk's values have that belong to one of its scopes.
+    const problems = extracted.problems;
+    const units: Units = {
+      other: state.units.other.map((f) => shiftFinding(f, change, lines)),
+      machines: state.units.machines.map((unit) => ({
+        machine: unit.machine,
+        valueFindings: unit.valueFindings.map((f) => shiftFinding(f, change, lines)),
+        ruleFindings: unit.ruleFindings,
+        disks: unit.disks.map((d) => (d === old ? d : {
+          disk: d.disk,
+          findings: d.findings.map((f) => shiftFinding(f, change, lines)),
+          result: d.result ? { sizing: d.result.sizing, report: { ...d.result.report, range: d.disk.range } } : undefined,
+        })),
+      })),
+    };
+    const unit = units.machines[state.units.machines.indexOf(target.machine)] as MachineUnit;
+    unit.disks[target.index] = lintDiskUnit(lint, extracted.disk, problems, state.machines);
+    for (const other of units.machines) {
+      if (other === unit) machineRuleFindings(lint, other);
+      else other.ruleFindings = other.ruleFindings.map((f) => shiftFinding(f, change, lines));
+    }
+    const report = assemble(lint, units);
+    this.state = { ...state, text, document, units, report };
+    this.lastUpdate = 'incremental';
+    return report;
+  }
+}
+
+function valueAtPath(data: unknown, path: readonly PathSegment[]): unknown {
+  let current = data;
+  for (const segment of path) {
+    if (typeof current !== 'object' || current === null) return undefined;
+    current = (current as Record<string | number, unknown>)[segment];
+  }
+  return current;
 }

@@ -57,8 +57,8 @@ export interface DiskSpec {
   backing?: { disk: DiskSpec } | { file: Located<string> };
   /** Whether the disk is qcow2 (only those are sized). */
   isQcow2: boolean;
-  /** Effective geometry after assumptions; undefined when the size is unknown or a value is invalid. */
-  geometryProblem?: string;
+  /** The name used when the definition gives none ("disk 2"). */
+  fallbackName: string;
 }
 
 export interface MachineSpec {
@@ -141,7 +141,7 @@ class Extractor {
     return machine;
   }
 
-  private disk(machine: MachineSpec, path: PathSegment[], value: Record<string, unknown>, fallbackName: string, depth = 0): DiskSpec | undefined {
+  disk(machine: MachineSpec, path: PathSegment[], value: Record<string, unknown>, fallbackName: string, depth = 0): DiskSpec | undefined {
     const place = this.place(path);
     if (!place) return undefined;
     const f = this.mapping.diskFields;
@@ -197,6 +197,7 @@ class Extractor {
       node: place.node,
       values,
       isQcow2: format.trim().toLowerCase() === 'qcow2',
+      fallbackName,
     };
     const backing = raw('backing');
     if (backing) {
@@ -208,6 +209,14 @@ class Extractor {
     }
     return disk;
   }
+}
+
+/** Extracts one disk again (after an edit inside it), with the problems its values have. */
+export function extractDisk(document: DefinitionDocument, mapping: Mapping, machine: MachineSpec, path: PathSegment[], value: unknown, fallbackName: string): { disk?: DiskSpec; problems: ValueProblem[] } {
+  if (!isRecord(value)) return { problems: [] };
+  const extractor = new Extractor(document, mapping);
+  const disk = extractor.disk(machine, path, value, fallbackName);
+  return { disk, problems: extractor.problems };
 }
 
 export function extractMachines(document: DefinitionDocument, mapping: Mapping): Extraction {
