@@ -542,7 +542,20 @@ export class LintSession {
   /** How the last update was done, for tests and benchmarks. */
   lastUpdate: 'full' | 'incremental' | 'unchanged' = 'full';
 
+  private machines: readonly MachineSpec[] = [];
+
   constructor(readonly path: string, readonly mapping: Mapping, readonly options: LintOptions = {}) {}
+
+  /** Forget what was read: the next update lints the whole file (after image files changed, say). */
+  reset(): void {
+    this.state = undefined;
+  }
+
+  /** Absolute paths of the image files the last text's disks name. */
+  imagePaths(): string[] {
+    const dir = nodePath.dirname(this.path);
+    return this.machines.flatMap((m) => m.disks.flatMap((d) => (d.isQcow2 && d.values.image ? [nodePath.resolve(dir, d.values.image.value)] : [])));
+  }
 
   update(text: string): FileReport {
     const previous = this.state;
@@ -562,8 +575,10 @@ export class LintSession {
     const file = { path: this.path, text };
     const read = readDefinition(file.path, text);
     this.state = undefined;
+    this.machines = [];
     if (!read.document) return unparsedReport(file.path, read.problems);
     const prepared: PreparedDocument = { file, mapping: this.mapping, read, extraction: extractMachines(read.document, this.mapping), imagePaths: [] };
+    this.machines = (prepared.extraction as Extraction).machines;
     const lint = new FileLint(read.document, this.mapping, this.options);
     const units = lintUnits(lint, prepared.extraction as Extraction);
     const report = assemble(lint, units);

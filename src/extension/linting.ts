@@ -5,7 +5,7 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 // Loaded through require so the bundle takes the package's CommonJS build.
 import tinyglobby = require('tinyglobby');
-import { lintPrepared, prepareDocument, type FileReport, type Mapping, type PreparedDocument } from '../lint';
+import { LintSession, type FileReport, type Mapping } from '../lint';
 import { ImageFactsCache } from './images';
 import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
 import { isMappingFileName, Mappings, readText } from './mappings';
@@ -36,6 +36,7 @@ export class Linting implements vscode.Disposable {
   readonly diagnostics = vscode.languages.createDiagnosticCollection('diskwise');
   readonly mappings = new Mappings();
   private readonly results = new Map<string, LintResult>();
+  private readonly sessions = new Map<string, { session: LintSession; severities: string; images: ImageFactsCache | undefined }>();
   private readonly timers = new Map<string, NodeJS.Timeout>();
   private readonly emitter = new vscode.EventEmitter<LintResult>();
   /** Fires after a definition was linted (from an editor or from disk). */
@@ -63,6 +64,7 @@ export class Linting implements vscode.Disposable {
       vscode.workspace.onDidOpenTextDocument((document) => { if (this.isDefinition(document)) this.lintOpen(document); }),
       // Closed without saving: the diagnostics follow the file on disk again.
       vscode.workspace.onDidCloseTextDocument((document) => {
+        this.sessions.delete(document.uri.toString());
         if (this.results.get(document.uri.toString())?.version !== undefined) setTimeout(() => void this.lintFromDisk(document.uri), 0);
       }),
       vscode.workspace.onDidSaveTextDocument((document) => {
@@ -121,18 +123,31 @@ export class Linting implements vscode.Disposable {
     return this.lint(document.uri, document.getText(), document.version, mapping);
   }
 
-  private lint(uri: vscode.Uri, text: string, version: number | undefined, mapping: Mapping, prepared?: PreparedDocument): LintResult {
+  /** One session per file: an edit inside one disk re-checks that disk alone (same report as a full lint). */
+  private sessionFor(uri: vscode.Uri, mapping: Mapping): LintSession {
+    const key = uri.toString();
+    const severities = readSettings(uri).rules;
+    const existing = this.sessions.get(key);
+    if (existing && existing.session.mapping === mapping && existing.severities === JSON.stringify(severities) && existing.images === this.images) return existing.session;
+    const session = new LintSession(uri.fsPath, mapping, { severities, images: this.images?.lookup });
+    this.sessions.set(key, { session, severities: JSON.stringify(severities), images: this.images });
+    return session;
+  }
+
+  private lint(uri: vscode.Uri, text: string, version: number | undefined, mapping: Mapping, imagesChanged = false): LintResult {
     const started = Date.now();
-    const ready = prepared ?? prepareDocument({ path: uri.fsPath, text }, mapping);
+    const session = this.sessionFor(uri, mapping);
+    if (imagesChanged) session.reset();
     const images = this.images;
-    const report = lintPrepared(ready, { severities: readSettings(uri).rules, images: images?.lookup });
+    const report = session.update(text);
     this.timings.lastLintMs = Date.now() - started;
     // Images named for the first time, or whose files changed, are read in the background; then the
     // text is linted again with their facts, if it is still the text the editor holds.
-    if (images && ready.imagePaths.length > 0) {
-      void images.load(ready.imagePaths).then((changed) => {
+    const imagePaths = images ? session.imagePaths() : [];
+    if (images && imagePaths.length > 0) {
+      void images.load(imagePaths).then((changed) => {
         const current = this.results.get(uri.toString());
-        if (changed && current && current.version === version && current.text === text) this.lint(uri, text, version, mapping, ready);
+        if (changed && current && current.version === version && current.text === text) this.lint(uri, text, version, mapping, true);
       }, () => undefined);
     }
     const result: LintResult = { uri, version, text, report, mapping };
@@ -153,7 +168,10 @@ export class Linting implements vscode.Disposable {
     }
     const text = await readText(uri);
     if (text === undefined) return;
+    // Files on disk are linted once; only open editors keep a session (and its parsed tree).
+    this.sessions.delete(uri.toString());
     this.lint(uri, text, undefined, mapping);
+    this.sessions.delete(uri.toString());
   }
 
   async reloadMappings(): Promise<void> {
