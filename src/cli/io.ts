@@ -9,7 +9,20 @@ export interface CommandIO {
   stderrIsTTY: boolean;
 }
 
-export const processIO = (): CommandIO => ({
+/** `diskwise lint | head` closes the pipe early: that ends the command quietly, not with a stack trace. */
+function endQuietlyOnClosedPipe(stream: NodeJS.WriteStream): void {
+  stream.on('error', (error: NodeJS.ErrnoException) => {
+    if (error.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+    throw error;
+  });
+}
+
+export const processIO = (): CommandIO => {
+  endQuietlyOnClosedPipe(process.stdout);
+  return processStreams();
+};
+
+const processStreams = (): CommandIO => ({
   stdout: (text) => process.stdout.write(text),
   stderr: (text) => process.stderr.write(text),
   cwd: process.cwd(),

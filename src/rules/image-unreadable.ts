@@ -10,9 +10,11 @@ export const imageUnreadable: Rule = {
     const problem = image?.facts.problem;
     if (!image || !problem || problem.kind === 'cycle' || problem.kind === 'cancelled') return;
     const layer = problem.layer === 0 ? 'the image' : `backing layer ${problem.layer} of the image`;
+    // Name the file as the definition writes it, not by the absolute path of this machine.
+    const message = problem.message.split(image.path).join(image.written.value);
     report({
       at: image.written,
-      message: `${layer} cannot be used: ${problem.message}${problem.layer === 0 ? '; the disk is sized from its definition alone' : '; layers below it are not counted'}.`,
+      message: `${layer} cannot be used: ${message}${problem.layer === 0 ? '; the disk is sized from its definition alone' : '; layers below it are not counted'}.`,
     });
   },
 };
