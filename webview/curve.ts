@@ -50,8 +50,9 @@ function drawing(chart: ChartModel, titleId: string, tableId: string): SVGSVGEle
   root.append(grid);
   root.append(svg('rect', { class: 'curve-frame', x: left, y: top, width: right - left, height: bottom - top, 'aria-hidden': 'true' }));
 
-  // The curve not in use first, so the one in use is drawn over it.
-  const ordered = [...chart.series].sort((a, b) => Number(a.inUse) - Number(b.inUse));
+  // The curve in use first (solid, wider), the other dashed over it: where the two coincide, as they
+  // do under uniform access, both stay visible.
+  const ordered = [...chart.series].sort((a, b) => Number(b.inUse) - Number(a.inUse));
   for (const series of ordered) {
     root.append(svg('path', {
       class: `curve-series series-${series.id}${series.inUse ? ' in-use' : ''}`,

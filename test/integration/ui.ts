@@ -101,6 +101,32 @@ async function panelFrame(page: Page): Promise<Frame> {
   }, 30_000);
 }
 
+/** The hit-ratio chart's figure in one card (the panel draws it only for the selected disk). */
+const curveIn = (frame: Frame, card: string) => frame.locator(`${card} figure.curve`);
+const LEDGER_CARD = 'section.machine[data-machine="tern-db-01"] article.disk[data-disk="ledger"]';
+const WEB_CARD = 'section.machine[data-machine="tern-web-02"] article.disk[data-disk="root"]';
+
+interface MarkReading { bytes: string; x: number; hitRatio: number; table?: string; slice?: string; shown?: string }
+
+/** A mark as drawn (its SVG group's data) and as the marks table prints it. */
+async function markOf(frame: Frame, card: string, mark: string): Promise<MarkReading | undefined> {
+  const group = curveIn(frame, card).locator(`svg.curve-chart g[data-mark="${mark}"]`);
+  if ((await group.count()) === 0) return undefined;
+  const row = curveIn(frame, card).locator(`table.curve-marks tr[data-mark="${mark}"]`);
+  const cell = async (series: string): Promise<string | undefined> => {
+    const c = row.locator(`td[data-series="${series}"]`);
+    return (await c.count()) > 0 ? ((await c.getAttribute('data-hit-ratio')) ?? undefined) : undefined;
+  };
+  return {
+    bytes: (await group.getAttribute('data-bytes')) ?? '',
+    x: Number(await group.getAttribute('data-x')),
+    hitRatio: Number(await group.getAttribute('data-hit-ratio')),
+    table: await cell('table'),
+    slice: await cell('slice'),
+    shown: ((await row.locator('td.curve-ratio.in-use').first().textContent().catch(() => '')) ?? '').trim(),
+  };
+}
+
 async function cellValue(frame: Frame, disk: { machine: string; name: string }, field: string): Promise<string | undefined> {
   const cell = frame.locator(`section.machine[data-machine="${disk.machine}"] article.disk[data-disk="${disk.name}"] td[data-field="${field}"]`).first();
   if ((await cell.count()) === 0) return undefined;
@@ -223,12 +249,54 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   const bars = await frame.locator('article.disk svg.bar-coverage').count();
   checks.check('each disk\'s coverage is drawn', bars === 4, `${bars} coverage bars`);
 
+  // --- the hit-ratio chart: one, in the selected card, computed in the webview ---
+  const figures = await frame.locator('figure.curve').count();
+  const inSelected = await frame.locator('article.disk.selected figure.curve').count();
+  const chartedName = await frame.locator('article.disk.selected').first().getAttribute('data-disk').catch(() => null);
+  const chartLabel = await frame.locator('article.disk.selected svg.curve-chart').first().getAttribute('aria-label').catch(() => null);
+  const chartTitle = await frame.locator('article.disk.selected svg.curve-chart title').first().textContent().catch(() => null);
+  checks.check('the panel draws one hit-ratio chart, in the selected disk\'s card, with a text summary',
+    figures === 1 && inSelected === 1 && !!chartLabel && chartLabel === chartTitle && /hit ratio/.test(chartLabel),
+    `${figures} chart(s), on ${chartedName}: "${chartLabel}"`);
+
   // --- what-if: try 64M of L2 cache on the ledger; every number follows at once ---
   await frame.locator('article.disk[data-disk="ledger"] [data-action="whatif"]').click();
   const field = frame.locator('article.disk[data-disk="ledger"] vscode-text-field[data-control="l2Cache"] input');
   await waitUntil('the what-if controls', async () => ((await field.count()) > 0 ? true : undefined));
+
+  // Opening the what-if selects the ledger: the chart moves to its card. The quick fix set 128M, full
+  // coverage, so the configured mark sits on the full-coverage mark and both read 100 %.
+  const ledgerChart = await waitUntil('the ledger\'s chart', async () => ((await curveIn(frame, LEDGER_CARD).count()) === 1 ? true : undefined), 5000).catch(() => false);
+  const series = await curveIn(frame, LEDGER_CARD).locator('svg.curve-chart path.curve-series').evaluateAll((paths) => paths.map((p) => `${p.getAttribute('data-series')}:${p.getAttribute('data-entry-size')}`)).catch(() => [] as string[]);
+  checks.check('selecting the ledger draws its chart: whole 64 KiB tables and 4 KiB slices side by side', ledgerChart === true && series.sort().join(' ') === 'slice:4096 table:65536', series.join(' '));
+  const fullMark = await markOf(frame, LEDGER_CARD, 'full');
+  // Full coverage of 1 TiB at 64 KiB clusters: 128 MiB [qcow2 specification, FACTS.md check values].
+  checks.check('the full-coverage mark (128 MiB) reads 100 %',
+    fullMark !== undefined && fullMark.bytes === (128n * MiB).toString() && fullMark.hitRatio === 1 && fullMark.shown === '100 %' && fullMark.table === '1' && fullMark.slice === '1',
+    JSON.stringify(fullMark));
+  const before = await markOf(frame, LEDGER_CARD, 'configured');
+
   await field.fill('64M');
+  const editedAt = Date.now();
   await field.press('Enter');
+  const moved = await waitUntil('the configured mark to move', async () => {
+    const mark = await markOf(frame, LEDGER_CARD, 'configured');
+    return mark && mark.bytes === (64n * MiB).toString() ? mark : undefined;
+  }, 5_000).catch(() => undefined);
+  const seenMs = Date.now() - editedAt;
+  const computeMs = await curveIn(frame, LEDGER_CARD).getAttribute('data-compute-ms').catch(() => null);
+  console.log(`  curve recompute after the what-if edit: ${computeMs ?? '?'} ms in the webview (two 64-point curves and the marks); seen by the test ${seenMs} ms after Enter`);
+  // Uniform access ("random"): the hit ratio is C/N [IRM]. 64 MiB holds 1024 of the 2048 whole tables
+  // (one maps 8192 x 64 KiB = 512 MiB) and 16384 of the 32768 4 KiB slices (one maps 32 MiB) [qcow2 specification].
+  const tablesN = Number(((TiB / (64n * KiB)) * 8n) / (64n * KiB));
+  const slicesN = Number(((TiB / (64n * KiB)) * 8n) / (4n * KiB));
+  const expectedTable = Number((64n * MiB) / (64n * KiB)) / tablesN;
+  const expectedSlice = Number((64n * MiB) / (4n * KiB)) / slicesN;
+  checks.check('what-if: 64M moves the configured mark left of full coverage; it reads C/N = 50 % under uniform access',
+    before !== undefined && moved !== undefined && moved.x < before.x && Number(moved.table) === expectedTable && Number(moved.slice) === expectedSlice && moved.shown === '50 %',
+    `x ${before?.x} -> ${moved?.x}; table ${moved?.table} (C/N ${expectedTable}), slices ${moved?.slice} (C/N ${expectedSlice}), shown ${moved?.shown}`);
+  await curveIn(frame, LEDGER_CARD).scrollIntoViewIfNeeded().catch(() => undefined);
+
   const trial = await waitUntil('the what-if numbers', async () => {
     const value = await cellValue(frame, ledger, 'l2Effective');
     return value === (64n * MiB).toString() ? value : undefined;
@@ -256,6 +324,11 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   }, 5000).catch(() => undefined);
   const expectedSliced = roundUp(((20n * GiB) / (256n * KiB)) * 8n, 4n * KiB);
   checks.check('what-if: 4 KiB slices on 256 KiB clusters need 640 KiB for full coverage', sliced === expectedSliced.toString(), `shown ${sliced}, expected ${expectedSliced}`);
+  const webSeries = await curveIn(frame, WEB_CARD).locator('path.curve-series').evaluateAll((paths) => paths.map((p) => `${p.getAttribute('data-series')}:${p.getAttribute('data-full-coverage')}${p.classList.contains('in-use') ? ':in-use' : ''}`)).catch(() => [] as string[]);
+  const webFull = await markOf(frame, WEB_CARD, 'full');
+  checks.check('the chart follows to tern-web-02: the slice curve (in use) ends at 640 KiB, whole tables at 768 KiB, full coverage reads 100 %',
+    webSeries.sort().join(' ') === `slice:${expectedSliced}:in-use table:${fullCoverage(20n * GiB, 256n * KiB)}` && webFull?.shown === '100 %' && webFull.bytes === expectedSliced.toString(),
+    `${webSeries.join(' ')}; full mark ${JSON.stringify(webFull)}`);
   await webCard.locator('vscode-button[data-action="reset"]').click();
 
   // Apply the trial through the same edits: the definition now says 64M.
@@ -265,6 +338,23 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
     return text.replace(/\u00a0/g, ' ').includes('l2: 64M') ? true : undefined;
   }, 10_000).catch(() => false);
   checks.check('applying the what-if writes "l2: 64M" into the definition', applied === true);
+  // The definition now sets 64M, below full coverage: picking the ledger again, its configured mark
+  // reads C/N from the definition itself [IRM].
+  await frame.locator(`${LEDGER_CARD} .disk-name`).click();
+  // Picking it also reveals it; let the editor settle on the ledger's line before the next pick.
+  const ledgerStart = demo.findIndex((line) => /label: ledger/.test(line)) + 1;
+  await waitUntil('the cursor on the ledger', async () => {
+    const label = (await page.locator('.statusbar-item[id="status.editor.selection"]').textContent().catch(() => '')) ?? '';
+    return new RegExp(`Ln ${ledgerStart}\\b`).test(label) ? true : undefined;
+  }, 10_000).catch(() => undefined);
+  const definitionMark = await waitUntil('the ledger\'s configured mark from the definition', async () => {
+    if ((await frame.locator(`${LEDGER_CARD}.trying`).count()) > 0) return undefined;
+    const mark = await markOf(frame, LEDGER_CARD, 'configured');
+    return mark && mark.bytes === (64n * MiB).toString() ? mark : undefined;
+  }, 10_000).catch(() => undefined);
+  checks.check('with "l2: 64M" in the definition the ledger\'s configured mark reads C/N (1024 of 2048 tables, 16384 of 32768 slices)',
+    definitionMark !== undefined && Number(definitionMark.table) === expectedTable && Number(definitionMark.slice) === expectedSlice,
+    JSON.stringify(definitionMark));
 
   // Selecting a disk reveals its definition: the cursor moves to the archive disk's first line.
   const archiveLine = demo.findIndex((line) => /label: archive/.test(line)) + 1;
@@ -275,6 +365,10 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
     return new RegExp(`Ln ${archiveLine}\\b`).test(lastLabel) ? lastLabel : undefined;
   }, 10_000).catch(() => undefined);
   checks.check('selecting a disk in the panel reveals it in the editor', revealed !== undefined, revealed ?? `cursor at "${lastLabel}"`);
+  const archiveCurve = waitUntil('the archive\'s chart', async () => ((await frame.locator('article.disk[data-disk="archive"] figure.curve').count()) === 1 ? true : undefined), 5000).catch(() => false);
+  checks.check('and moves the chart to it', (await archiveCurve) === true && (await frame.locator('figure.curve').count()) === 1);
+  // The theme screenshots below show the chart.
+  await frame.locator('article.disk[data-disk="archive"] figure.curve').scrollIntoViewIfNeeded().catch(() => undefined);
 
   checks.check('the panel loads under its content security policy with no violation', cspViolations.length === 0, cspViolations.slice(0, 3).join(' | '));
   const status = await page.locator('.statusbar-item[id="diskwise-dev.diskwise.diskwise.cacheMemory"], .statusbar-item:has-text("cache")').first().textContent().catch(() => null);

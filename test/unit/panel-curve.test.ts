@@ -97,6 +97,15 @@ describe('panel curve: the chart model', () => {
     assert.equal(after.ratios.slice, 16384 / 32768);
   });
 
+  it('a what-if cluster change redraws both curves: 1 TiB at 1 MiB clusters needs 8 MiB of whole tables, so 8 MiB reads 100 % [SPEC; FACTS.md check values]', () => {
+    const model = chart({ ...ledger, clusterSize: MiB, fullCoverage: 8n * MiB });
+    assert.equal(model.series.find((s) => s.id === 'table')?.fullCoverageBytes, 8n * MiB);
+    assert.equal(model.series.find((s) => s.id === 'table')?.points.length, 7, 'a 1 MiB table maps 128 GiB: 8 tables, curve from 2 to 8 entries');
+    assert.equal(model.marks.find((m) => m.id === 'configured')?.ratios.table, 1);
+    assert.equal(model.maxBytes, 8n * MiB);
+    assert.equal(model.marks.find((m) => m.id === 'full')?.x, RIGHT);
+  });
+
   it('a configured size above full coverage widens the axis; the curve stays flat at 100 % beyond full coverage', () => {
     const model = chart({ ...ledger, configured: 512n * MiB, effective: 128n * MiB });
     assert.equal(model.maxBytes, 512n * MiB);
