@@ -55,7 +55,10 @@ window.addEventListener('message', (event: MessageEvent<unknown>) => {
   switch (message.type) {
     case 'show':
       // Trials belong to one file's disks; another file starts clean.
-      if (message.view.uri !== lastUri) trials.clear();
+      if (message.view.uri !== lastUri) {
+        trials.clear();
+        selected = undefined;
+      }
       lastUri = message.view.uri;
       for (const pointer of [...trials.keys()]) {
         if (!message.view.machines.some((m) => m.disks.some((d) => d.pointer === pointer))) trials.delete(pointer);
