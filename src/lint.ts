@@ -4,7 +4,8 @@ import { sizeChain, type CacheSettings, type DiskSizing, type LayerCache, type L
 import type { Finding, Fix, RelatedLocation, Severity, SourceRange } from './core/results';
 import { DEFAULT_REFCOUNT_BITS } from './core/sizing';
 import { nodeAt, readDefinition, type DefinitionDocument } from './model/document';
-import { documentSizeStyle, insertFieldEdit, replaceValueEdit, type NewValue } from './model/edits';
+import type { NewValue } from './model/edits';
+import { setDiskFieldEdit, sizeStyleOfMachines } from './model/diskEdits';
 import { extractDisk, extractMachines, type DiskSpec, type Extraction, type Located, type MachineSpec, type ValueProblem } from './model/disks';
 import { loadMapping as loadMappingFile, type Mapping, type MappingLoad } from './model/mapping';
 import { readSuppressions } from './model/suppressions';
@@ -109,36 +110,14 @@ class FileLint {
   }
 
   fileSizeStyle(machines: readonly MachineSpec[]): SizeStyle | undefined {
-    if (this.sizeStyle) return this.sizeStyle;
-    const raws: unknown[] = [];
-    for (const machine of machines) {
-      for (const disk of machine.disks) {
-        for (const key of ['l2Cache', 'refcountCache', 'totalCache', 'size', 'clusterSize'] as const) {
-          const value = disk.values[key];
-          if (value) raws.push(value.raw);
-        }
-      }
-    }
-    this.sizeStyle = documentSizeStyle(raws);
+    if (!this.sizeStyle) this.sizeStyle = sizeStyleOfMachines(machines);
     return this.sizeStyle;
   }
 
   fixHelpers(disk: DiskSpec, style: () => SizeStyle | undefined): FixHelpers {
     const set = (field: SizeField | 'cleanupInterval', value: NewValue, title: string): Fix | undefined => {
-      const existing = disk.values[field] as Located<unknown> | undefined;
-      if (existing) {
-        if (existing.viaAlias) return undefined;
-        const edit = replaceValueEdit(this.document, existing.node, existing.raw, value, style());
-        return edit ? { title, edits: [edit] } : undefined;
-      }
-      const chain = this.mapping.diskFields[field]?.memberChain;
-      if (!chain || chain.length === 0) return undefined;
-      // Written but unreadable: invalid-value reports it; inserting would duplicate the key.
-      if (nodeAt(this.document, [...disk.path, ...chain])) return undefined;
-      const base = nodeAt(this.document, disk.path);
-      if (!base || base.viaAlias) return undefined;
-      const edit = insertFieldEdit(this.document, base.node, chain, value, style());
-      return edit ? { title, edits: [edit] } : undefined;
+      const result = setDiskFieldEdit(this.document, this.mapping, disk, field, value, style());
+      return result.ok ? { title, edits: [result.edit] } : undefined;
     };
     return {
       setSize: (field, bytes, title) => set(field, { kind: 'size', bytes }, title),
