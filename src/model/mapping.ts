@@ -113,6 +113,22 @@ function describeIssue(issue: ZodIssue, data: unknown): string {
   }
 }
 
+/** The selector strings a mapping file writes, wherever its schema problems are. */
+function writtenSelectors(data: unknown): [PathSegment[], string][] {
+  const found: [PathSegment[], string][] = [];
+  const at = (path: PathSegment[]) => valueAt(data, path);
+  for (const key of ['machines', 'disks']) {
+    const value = at([key]);
+    if (typeof value === 'string' && value !== '') found.push([[key], value]);
+  }
+  for (const group of ['machine', 'disk']) {
+    const fields = at(['fields', group]);
+    if (typeof fields !== 'object' || fields === null) continue;
+    for (const [name, value] of Object.entries(fields)) if (typeof value === 'string' && value !== '') found.push([['fields', group, name], value]);
+  }
+  return found;
+}
+
 const byPosition = (problems: MappingProblem[]): MappingProblem[] => problems.sort((a, b) => a.range.offset - b.range.offset);
 
 export function loadMapping(text: string, path: string, knownRuleIds: readonly string[] = []): MappingLoad {
@@ -131,6 +147,11 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
       } else {
         problems.push({ message: describeIssue(issue, doc.data), ...locate(doc, path) });
       }
+    }
+    // Selectors are checked too, so one run names every problem of both kinds.
+    for (const [path, expression] of writtenSelectors(doc.data)) {
+      const compiled = compileSelector(expression);
+      if (!compiled.ok) problems.push({ message: compiled.error, ...locate(doc, path) });
     }
     return { problems: byPosition(problems) };
   }
