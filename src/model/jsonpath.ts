@@ -51,6 +51,8 @@ export function compileSelector(expression: string): Outcome<Selector> {
     const message = error instanceof Error ? error.message : String(error);
     return fail(`"${expression}" is not an RFC 9535 JSONPath selector: ${message}`);
   }
+  const typeProblem = wellTypedness(ast);
+  if (typeProblem) return fail(`"${expression}" is not a well-typed RFC 9535 JSONPath selector: ${typeProblem}`);
   const steps: Step[] = [];
   for (const segment of ast.segments ?? []) {
     const step = stepOf(segment);
@@ -68,6 +70,84 @@ function unescapeName(segment: string | number): string | number {
     if (code.length === 5) return String.fromCharCode(parseInt(code.slice(1), 16));
     return ({ b: '\b', f: '\f', n: '\n', r: '\r', t: '\t' } as Record<string, string>)[code] ?? code;
   });
+}
+
+// ---- RFC 9535 §2.4.3 type system for function extensions (the library parses but does not check it) ----
+
+type FunctionType = 'ValueType' | 'LogicalType' | 'NodesType';
+const FUNCTIONS: Record<string, { params: FunctionType[]; result: FunctionType }> = {
+  length: { params: ['ValueType'], result: 'ValueType' },
+  count: { params: ['NodesType'], result: 'ValueType' },
+  match: { params: ['ValueType', 'ValueType'], result: 'LogicalType' },
+  search: { params: ['ValueType', 'ValueType'], result: 'LogicalType' },
+  value: { params: ['NodesType'], result: 'ValueType' },
+};
+
+interface TypedNode {
+  type?: string;
+  name?: string;
+  arguments?: TypedNode[];
+  value?: unknown;
+  segments?: TypedNode[];
+  node?: TypedNode;
+  selectors?: TypedNode[];
+  left?: TypedNode;
+  right?: TypedNode;
+  expression?: TypedNode;
+}
+
+/** A query of name and index selectors in child segments selects at most one node [RFC 9535 §2.3.5.1]. */
+function isSingular(query: TypedNode | undefined): boolean {
+  if (!query) return false;
+  if (query.type === 'RelSingularQuery' || query.type === 'AbsSingularQuery') return true;
+  if (query.type === 'FilterQuery') return isSingular(query.value as TypedNode);
+  return (query.segments ?? []).every((segment) => {
+    if (segment.type === 'SingularQuerySegment') return true;
+    if (segment.type !== 'ChildSegment' || !segment.node) return false;
+    const n = segment.node;
+    if (n.type === 'MemberNameShorthand') return true;
+    return n.type === 'BracketedSelection' && n.selectors?.length === 1 && ['NameSelector', 'IndexSelector'].includes(n.selectors[0]?.type ?? '');
+  });
+}
+
+const isQuery = (node: TypedNode): boolean => ['FilterQuery', 'RelQuery', 'JsonPathQuery', 'RelSingularQuery', 'AbsSingularQuery'].includes(node.type ?? '');
+const resultOf = (node: TypedNode): FunctionType | undefined => (node.type === 'FunctionExpr' ? FUNCTIONS[node.name ?? '']?.result : undefined);
+
+/** Whether `node` may stand where `wanted` is expected. */
+function fits(node: TypedNode, wanted: FunctionType): boolean {
+  const result = resultOf(node);
+  if (wanted === 'ValueType') return node.type === 'Literal' || (isQuery(node) && isSingular(node)) || result === 'ValueType';
+  if (wanted === 'NodesType') return isQuery(node) || result === 'NodesType';
+  return isQuery(node) || result === 'LogicalType' || result === 'NodesType' || /Logical|Comparison|Test/.test(node.type ?? '');
+}
+
+function wellTypedness(root: unknown): string | undefined {
+  const stack: unknown[] = [root];
+  while (stack.length > 0) {
+    const current = stack.pop();
+    if (typeof current !== 'object' || current === null) continue;
+    if (Array.isArray(current)) {
+      stack.push(...current);
+      continue;
+    }
+    const node = current as TypedNode;
+    if (node.type === 'FunctionExpr') {
+      const signature = FUNCTIONS[node.name ?? ''];
+      if (!signature) return `unknown function ${node.name}() (RFC 9535 defines length, count, match, search and value)`;
+      const args = node.arguments ?? [];
+      if (args.length !== signature.params.length) return `${node.name}() takes ${signature.params.length} argument(s)`;
+      const bad = args.findIndex((arg, i) => !fits(arg, signature.params[i] as FunctionType));
+      if (bad !== -1) return `argument ${bad + 1} of ${node.name}() must be of ${signature.params[bad]}${signature.params[bad] === 'ValueType' ? ' (a literal, a singular query or a value function)' : ''}`;
+    } else if (node.type === 'ComparisonExpr') {
+      for (const side of [node.left, node.right]) {
+        if (side && !fits(side, 'ValueType')) return 'both sides of a comparison must be a literal, a singular query or a function of ValueType';
+      }
+    } else if (node.type === 'TestExpr' && node.expression && resultOf(node.expression) === 'ValueType') {
+      return `${node.expression.name}() gives a value, which cannot be tested on its own; compare it instead`;
+    }
+    for (const value of Object.values(node)) if (typeof value === 'object' && value !== null) stack.push(value);
+  }
+  return undefined;
 }
 
 const isObject = (value: unknown): value is Record<string, unknown> =>
