@@ -15,7 +15,7 @@ import type { SizeStyle } from './core/units';
 import type { ImageChainFacts, ImageLookup } from './model/images';
 import * as nodePath from 'node:path';
 import { diffTexts, hasSharedNodes, reparseItem, type TextChange } from './model/incremental';
-import type { PathSegment } from './model/jsonpath';
+import { valueAtPath } from './model/jsonpath';
 
 export type { Finding, Fix, Severity, SourceRange } from './core/results';
 export type { Mapping, MappingProblem } from './model/mapping';
@@ -630,13 +630,4 @@ export class LintSession {
     this.lastUpdate = 'incremental';
     return report;
   }
-}
-
-function valueAtPath(data: unknown, path: readonly PathSegment[]): unknown {
-  let current = data;
-  for (const segment of path) {
-    if (typeof current !== 'object' || current === null) return undefined;
-    current = (current as Record<string | number, unknown>)[segment];
-  }
-  return current;
 }

@@ -182,6 +182,16 @@ export function select(selector: Selector, root: unknown): Match[] {
   return current;
 }
 
+/** The plain value at a path of keys and indices, or undefined. */
+export function valueAtPath(data: unknown, path: readonly PathSegment[]): unknown {
+  let current = data;
+  for (const segment of path) {
+    if (typeof current !== 'object' || current === null) return undefined;
+    current = (current as Record<string | number, unknown>)[segment];
+  }
+  return current;
+}
+
 /** RFC 6901: "~" is written "~0" and "/" is written "~1". */
 export function toJsonPointer(path: readonly PathSegment[]): string {
   return path.map((segment) => `/${String(segment).replace(/~/g, '~0').replace(/\//g, '~1')}`).join('');

@@ -10,7 +10,7 @@ import { checkClusterSize, checkRefcountBits, DEFAULT_CLUSTER, DEFAULT_REFCOUNT_
 import { parseSize } from '../core/units';
 import { accessOfPattern } from '../core/workload';
 import { nodeAt, rangeOfNode, readDefinition, type DefinitionDocument } from './document';
-import { compileSelector, parseJsonPointer, toJsonPointer, type PathSegment, type Selector } from './jsonpath';
+import { compileSelector, parseJsonPointer, toJsonPointer, valueAtPath, type PathSegment, type Selector } from './jsonpath';
 import { DISK_FIELDS, MACHINE_FIELDS, mappingSchema, type DiskField, type MachineField, type MappingFile } from './mappingSchema';
 import type { Severity } from '../core/results';
 
@@ -89,18 +89,9 @@ function locate(doc: DefinitionDocument, path: readonly PathSegment[], key?: str
   return { pointer: '', range: doc.lines.range(0, 0) };
 }
 
-function valueAt(data: unknown, path: readonly PathSegment[]): unknown {
-  let current = data;
-  for (const segment of path) {
-    if (typeof current !== 'object' || current === null) return undefined;
-    current = (current as Record<string, unknown>)[String(segment)];
-  }
-  return current;
-}
-
 function describeIssue(issue: ZodIssue, data: unknown): string {
   const where = issue.path.length ? `"${issue.path.join('.')}"` : 'the mapping file';
-  if (issue.code !== 'unrecognized_keys' && issue.path.length > 0 && valueAt(data, issue.path as PathSegment[]) === undefined) return `${where} is required`;
+  if (issue.code !== 'unrecognized_keys' && issue.path.length > 0 && valueAtPath(data, issue.path as PathSegment[]) === undefined) return `${where} is required`;
   switch (issue.code) {
     case 'unrecognized_keys':
       return `unknown key${issue.keys.length > 1 ? 's' : ''} ${issue.keys.map((k) => `"${k}"`).join(', ')} in ${where}`;
@@ -116,7 +107,7 @@ function describeIssue(issue: ZodIssue, data: unknown): string {
 /** The selector strings a mapping file writes, wherever its schema problems are. */
 function writtenSelectors(data: unknown): [PathSegment[], string][] {
   const found: [PathSegment[], string][] = [];
-  const at = (path: PathSegment[]) => valueAt(data, path);
+  const at = (path: PathSegment[]) => valueAtPath(data, path);
   for (const key of ['machines', 'disks']) {
     const value = at([key]);
     if (typeof value === 'string' && value !== '') found.push([[key], value]);
