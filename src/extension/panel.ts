@@ -1,7 +1,7 @@
 // Hosts the sizing panel's webview beside the editor: a strict content security policy (the
 // extension's own resources only, scripts with a nonce), and the typed protocol for every message.
-import { randomBytes } from 'node:crypto';
 import * as vscode from 'vscode';
+import { webviewHtml } from './webviewPage';
 import {
   decodePanelMessage, encodeMessage, type HostMessage, type PanelView, type WhatIfValues,
 } from '../../webview/protocol';
@@ -111,32 +111,13 @@ export class SizingPanel implements vscode.Disposable {
   }
 
   private html(webview: vscode.Webview): string {
-    const nonce = randomBytes(16).toString('base64');
-    const script = webview.asWebviewUri(vscode.Uri.joinPath(this.extensionUri, 'dist', 'webview.js'));
-    const style = webview.asWebviewUri(vscode.Uri.joinPath(this.extensionUri, 'media', 'panel.css'));
-    const csp = [
-      "default-src 'none'",
-      `img-src ${webview.cspSource}`,
-      `font-src ${webview.cspSource}`,
-      // The toolkit probes the browser with a <style> element it tags with the page's nonce.
-      `style-src ${webview.cspSource} 'nonce-${nonce}'`,
-      `script-src 'nonce-${nonce}'`,
-    ].join('; ');
-    return `<!DOCTYPE html>
-<html lang="en">
-<head>
-<meta charset="UTF-8">
-<meta http-equiv="Content-Security-Policy" content="${csp}">
-<meta property="csp-nonce" content="${nonce}">
-<meta name="viewport" content="width=device-width, initial-scale=1.0">
-<link rel="stylesheet" href="${style.toString()}">
-<title>diskwise: cache sizing</title>
-</head>
-<body>
-<div id="root"><p class="none">Reading the definition…</p></div>
-<script nonce="${nonce}" src="${script.toString()}"></script>
-</body>
-</html>`;
+    return webviewHtml(webview, this.extensionUri, {
+      script: 'webview.js',
+      style: 'panel.css',
+      title: 'diskwise: cache sizing',
+      body: '<div id="root"><p class="none">Reading the definition…</p></div>',
+      styleNonce: true,
+    });
   }
 
   dispose(): void {

@@ -1,8 +1,8 @@
 // The read-only custom editor for qcow2 images: one ImageDocument per file, any number of webviews
 // on it. The webview gets a strict content security policy (the extension's own resources only,
 // its script by nonce) and talks to the host only through ./protocol.
-import { randomBytes } from 'node:crypto';
 import * as vscode from 'vscode';
+import { webviewHtml } from '../webviewPage';
 import { ImageDocument } from './document';
 import {
   decodeViewerWebviewMessage, encodeViewerMessage, type ProfileChoice, type ViewerHostMessage, type ViewerSnapshot,
@@ -127,29 +127,11 @@ export class ImageViewerProvider implements vscode.CustomReadonlyEditorProvider<
   }
 
   private html(webview: vscode.Webview): string {
-    const nonce = randomBytes(16).toString('base64');
-    const script = webview.asWebviewUri(vscode.Uri.joinPath(this.extensionUri, 'dist', 'imageViewer.js'));
-    const style = webview.asWebviewUri(vscode.Uri.joinPath(this.extensionUri, 'media', 'imageViewer.css'));
-    const csp = [
-      "default-src 'none'",
-      `img-src ${webview.cspSource}`,
-      `font-src ${webview.cspSource}`,
-      `style-src ${webview.cspSource}`,
-      `script-src 'nonce-${nonce}'`,
-    ].join('; ');
-    return `<!DOCTYPE html>
-<html lang="en">
-<head>
-<meta charset="UTF-8">
-<meta http-equiv="Content-Security-Policy" content="${csp}">
-<meta name="viewport" content="width=device-width, initial-scale=1.0">
-<link rel="stylesheet" href="${style.toString()}">
-<title>qcow2 image</title>
-</head>
-<body>
-<main id="root" aria-live="polite"><p class="muted">Reading the image header…</p></main>
-<script nonce="${nonce}" src="${script.toString()}"></script>
-</body>
-</html>`;
+    return webviewHtml(webview, this.extensionUri, {
+      script: 'imageViewer.js',
+      style: 'imageViewer.css',
+      title: 'qcow2 image',
+      body: '<main id="root" aria-live="polite"><p class="muted">Reading the image header…</p></main>',
+    });
   }
 }
