@@ -20,7 +20,8 @@ export const clusterCowAmplification: Rule = {
     if (amplification.unit <= LARGE_UNIT || requestSize >= amplification.unit) return;
     const unitName = extendedL2 ? `subclusters of ${size(amplification.unit)}` : `${size(clusterSize)} clusters`;
     report({
-      at: disk.values.clusterSize ? 'clusterSize' : undefined,
+      // Point at what sets the cluster: the definition's value, or the image file when that is where it comes from.
+      at: disk.values.clusterSize?.value === clusterSize ? 'clusterSize' : disk.values.image ? 'image' : undefined,
       message: `${pattern} ${size(requestSize)} writes on ${unitName}: each first write into unallocated space fills ${size(amplification.bytesMoved)} (${amplification.ratio}x the data written). ${extendedL2 ? 'A smaller cluster' : 'A smaller cluster, or extended L2 (32 subclusters per cluster),'} keeps first writes small. ${CAUTIONS.fixedAtCreation}`,
     });
   },
