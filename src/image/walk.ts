@@ -4,7 +4,7 @@
 import { ImageError, throwIfAborted } from './errors';
 import type { Qcow2Header } from './header';
 import type { ByteSource } from './source';
-import { L2Counter } from './l2-counter';
+import { L2Counter, type Tally } from './l2-counter';
 import { acquireBlockScanner, releaseBlockScanner, type BlockScanner } from './zero-scan';
 
 export interface WalkProgress {
@@ -32,17 +32,10 @@ export interface AllocationMap {
   zero: number[];
 }
 
-export interface MetadataSummary {
+/** The counts of src/image/l2-counter's Tally (data clusters: standard + compressed, + standard with any
+ * subcluster allocated; zero clusters: zero flag set; subclusters: extended L2 only), plus the table count. */
+export interface MetadataSummary extends Tally {
   l2TablesAllocated: number;
-  /** Guest clusters with data in this layer: standard + compressed (+ standard with any subcluster allocated). */
-  dataClustersAllocated: number;
-  standardClusters: number;
-  compressedClusters: number;
-  /** Clusters whose zero flag is set (version 3, standard L2 entries). */
-  zeroClusters: number;
-  /** Extended L2 only: subclusters allocated, and subclusters marked as reading zeros. */
-  subclustersAllocated: number;
-  subclustersZero: number;
   /** Guest bytes stored in this layer, and guest bytes reading as zeros through flags. */
   allocatedBytes: bigint;
   zeroBytes: bigint;
