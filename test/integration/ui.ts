@@ -161,8 +161,14 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   // The list is virtual (only rows in view exist): filter it by each rule id, as a person would.
   const problemRules = ['l2-cache-undersized', 'cluster-cow-amplification', 'cache-not-aligned', 'cache-options-conflict', 'image-unreadable'];
   const filter = page.locator('.viewpane-filter-container .viewpane-filter input, .viewpane-filter-container .viewpane-filter textarea').first();
+  // Keys go to whatever has focus: typing only once the filter box has it, or Control+A and
+  // Backspace would empty the definition in the editor instead.
   const setFilter = async (text: string): Promise<void> => {
-    await filter.click();
+    await waitUntil('the Problems filter to take focus', async () => {
+      await filter.click().catch(() => undefined);
+      if (!(await filter.evaluate((el) => el === document.activeElement).catch(() => false))) await filter.focus().catch(() => undefined);
+      return (await filter.evaluate((el) => el === document.activeElement).catch(() => false)) ? true : undefined;
+    }, 10000);
     await page.keyboard.press('Control+A');
     if (text) await page.keyboard.type(text); else await page.keyboard.press('Backspace');
   };
