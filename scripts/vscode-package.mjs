@@ -1,4 +1,4 @@
-// npm run package: builds the release bundles and packs the extension into diskwise-VERSION.vsix.
+// npm run package: builds the release bundles and packs the extension into cachewright-VERSION.vsix.
 // vsce runs with no standard input (it would stop to ask about a missing LICENSE or repository).
 import { execFileSync } from 'node:child_process';
 import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
@@ -11,7 +11,7 @@ try {
   console.error('package: the build failed (its message is above)');
   process.exit(1);
 }
-for (const needed of ['dist/extension.js', 'dist/webview.js', 'schema/diskwise.schema.json']) {
+for (const needed of ['dist/extension.js', 'dist/webview.js', 'schema/cachewright.schema.json']) {
   if (!existsSync(needed)) {
     console.error(`package: ${needed} is missing`);
     process.exit(1);

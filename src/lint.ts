@@ -131,8 +131,8 @@ function settingsOf(disk: DiskSpec): CacheSettings {
   return {
     l2Cache: v.l2Cache?.value,
     refcountCache: v.refcountCache?.value,
-    totalCache: v.totalCache?.value,
-    entrySize: v.l2Slice?.value,
+    combinedCache: v.combinedCache?.value,
+    entrySize: v.cacheEntrySize?.value,
     cleanupInterval: v.cleanupInterval?.value,
   };
 }
@@ -232,7 +232,7 @@ function lintDisk(lint: FileLint, disk: DiskSpec, machines: readonly MachineSpec
     rule.checkDisk(check);
   }
   const configured: DiskReport['configured'] = {};
-  for (const key of ['l2Cache', 'refcountCache', 'totalCache', 'l2Slice', 'cleanupInterval'] as const) {
+  for (const key of ['l2Cache', 'refcountCache', 'combinedCache', 'cacheEntrySize', 'cleanupInterval'] as const) {
     const value = disk.values[key];
     if (value) configured[key] = { raw: value.raw, pointer: value.pointer };
   }
@@ -276,13 +276,13 @@ function applySuppressions(lint: FileLint, machines: readonly MachineSpec[], fin
       continue;
     }
     for (const finding of findings) {
-      if (!finding.suppressed && comment.rules.includes(finding.rule) && within(finding.pointer, scope.pointer)) finding.suppressed = { reason: comment.reason };
+      if (!finding.accepted && comment.rules.includes(finding.rule) && within(finding.pointer, scope.pointer)) finding.accepted = { reason: comment.reason };
     }
   }
-  for (const entry of mapping.ignore) {
+  for (const entry of mapping.accept) {
     if (entry.file !== undefined && entry.file !== document.path) continue;
     for (const finding of findings) {
-      if (!finding.suppressed && finding.rule === entry.rule && within(finding.pointer, entry.pointer)) finding.suppressed = { reason: entry.reason };
+      if (!finding.accepted && finding.rule === entry.rule && within(finding.pointer, entry.pointer)) finding.accepted = { reason: entry.reason };
     }
   }
 }
@@ -461,7 +461,7 @@ function assemble(lint: FileLint, units: Units): FileReport {
       disks: indices,
     });
   }
-  for (const finding of findings) delete finding.suppressed;
+  for (const finding of findings) delete finding.accepted;
   applySuppressions(lint, units.machines.map((u) => u.machine), findings);
   findings.sort(byPlace);
   return { path: document.path, disks, machines: machineReports, findings, parsed: true };

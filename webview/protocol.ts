@@ -10,7 +10,7 @@ export interface FindingView {
   message: string;
   pointer: string;
   range: SourceRange;
-  suppressed?: string;
+  accepted?: string;
   fixTitle?: string;
 }
 
@@ -18,8 +18,8 @@ export interface FindingView {
 export interface ConfiguredCache {
   l2Cache?: bigint;
   refcountCache?: bigint;
-  totalCache?: bigint;
-  l2Slice?: bigint;
+  combinedCache?: bigint;
+  cacheEntrySize?: bigint;
   cleanupInterval?: number;
 }
 
@@ -70,7 +70,7 @@ export interface PanelView {
 export interface WhatIfValues {
   clusterSize?: bigint;
   l2Cache?: bigint;
-  l2Slice?: bigint;
+  cacheEntrySize?: bigint;
 }
 
 export type HostMessage =

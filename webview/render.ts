@@ -107,7 +107,7 @@ function numbersTable(rows: Row[]): HTMLElement {
 function findingList(findings: FindingView[], actions: PanelActions): HTMLElement {
   const list = el('ul', 'findings');
   for (const finding of findings) {
-    const item = el('li', `finding severity-${finding.severity}${finding.suppressed ? ' suppressed' : ''}`);
+    const item = el('li', `finding severity-${finding.severity}${finding.accepted ? ' suppressed' : ''}`);
     item.dataset.rule = finding.rule;
     // Plain elements rather than the toolkit's tag/badge, whose templates write style attributes
     // that the panel's content security policy refuses.
@@ -117,7 +117,7 @@ function findingList(findings: FindingView[], actions: PanelActions): HTMLElemen
     message.title = `${finding.severity} at line ${finding.range.line}, column ${finding.range.column}${finding.fixTitle ? ` — fix: ${finding.fixTitle}` : ''}`;
     message.addEventListener('click', () => actions.reveal(finding));
     item.append(el('span', 'severity', finding.severity), tag, message);
-    if (finding.suppressed) item.append(el('span', 'suppressed-reason', `accepted: ${finding.suppressed}`));
+    if (finding.accepted) item.append(el('span', 'suppressed-reason', `accepted: ${finding.accepted}`));
     list.append(item);
   }
   return list;
@@ -128,7 +128,7 @@ function diskRows(disk: DiskView, sizing: SizingReport, entrySize: bigint, was?:
   const coverage = el('div', 'coverage');
   coverage.append(bar(covered, 'coverage', covered < 1), el('span', 'coverage-of', `${formatSize(sizing.l2CoveredBytes)} of ${formatSize(sizing.virtualSize)}`));
   const wholeTable = entrySize === sizing.clusterSize;
-  const combined = disk.configured.totalCache;
+  const combined = disk.configured.combinedCache;
   const l2Text = (value: bigint | undefined): string | bigint =>
     value ?? (combined !== undefined ? `not set: taken from the ${formatSize(combined)} combined cache` : 'not set: the driver\'s default');
   return [
@@ -163,17 +163,17 @@ function whatIfControls(disk: DiskView, values: WhatIfValues, result: WhatIfResu
   clusterPick.addEventListener('change', () => {
     const picked = BigInt((clusterPick as HTMLSelectElement).value);
     const next: WhatIfValues = { ...values, clusterSize: picked };
-    if (next.l2Slice !== undefined && next.l2Slice > picked) next.l2Slice = picked;
+    if (next.cacheEntrySize !== undefined && next.cacheEntrySize > picked) next.cacheEntrySize = picked;
     update(next);
   });
 
-  const currentSlice = 'l2Slice' in values ? values.l2Slice : top?.settings.entrySize;
-  const slicePick = custom('vscode-dropdown', { 'data-control': 'l2Slice', 'aria-label': 'Cache entry size' });
+  const currentSlice = 'cacheEntrySize' in values ? values.cacheEntrySize : top?.settings.entrySize;
+  const slicePick = custom('vscode-dropdown', { 'data-control': 'cacheEntrySize', 'aria-label': 'Cache entry size' });
   slicePick.append(option('table', 'whole L2 table', currentSlice === undefined));
   for (const choice of sliceChoices(cluster)) slicePick.append(option(choice.toString(), formatSize(choice), choice === currentSlice));
   slicePick.addEventListener('change', () => {
     const raw = (slicePick as HTMLSelectElement).value;
-    update({ ...values, l2Slice: raw === 'table' ? undefined : BigInt(raw) });
+    update({ ...values, cacheEntrySize: raw === 'table' ? undefined : BigInt(raw) });
   });
 
   const l2Shown = values.l2Cache ?? disk.configured.l2Cache;
@@ -223,7 +223,7 @@ export function pendingValues(disk: DiskView, values: WhatIfValues): WhatIfValue
   const out: WhatIfValues = {};
   if (values.clusterSize !== undefined && values.clusterSize !== top?.geometry.clusterSize) out.clusterSize = values.clusterSize;
   if (values.l2Cache !== undefined && values.l2Cache !== disk.configured.l2Cache) out.l2Cache = values.l2Cache;
-  if ('l2Slice' in values && values.l2Slice !== disk.configured.l2Slice && values.l2Slice !== undefined) out.l2Slice = values.l2Slice;
+  if ('cacheEntrySize' in values && values.cacheEntrySize !== disk.configured.cacheEntrySize && values.cacheEntrySize !== undefined) out.cacheEntrySize = values.cacheEntrySize;
   return out;
 }
 
@@ -242,7 +242,7 @@ function diskCard(view: PanelView, disk: DiskView, state: WhatIfState, actions: 
     actions.changed();
   });
   head.append(title);
-  const active = disk.findings.filter((f) => !f.suppressed);
+  const active = disk.findings.filter((f) => !f.accepted);
   if (active.length > 0) {
     const count = el('span', 'finding-count', String(active.length));
     count.title = `${active.length} finding${active.length > 1 ? 's' : ''}`;

@@ -24,7 +24,7 @@ export function whatIf(disk: DiskView, profile: PanelView['profile'], values: Wh
   const extendedOk = checkExtendedL2(cluster, top.geometry.extendedL2);
   if (!extendedOk.ok) problems.push(extendedOk.error);
   // A slice chosen for the old cluster may not fit the new one; "whole table" follows the cluster.
-  const slice = 'l2Slice' in values ? values.l2Slice : top.settings.entrySize;
+  const slice = 'cacheEntrySize' in values ? values.cacheEntrySize : top.settings.entrySize;
   if (slice !== undefined) {
     const sliceOk = checkSlice(slice, cluster);
     if (!sliceOk.ok) problems.push(sliceOk.error);

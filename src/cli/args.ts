@@ -1,4 +1,4 @@
-// A small argument reader for the diskwise commands: options are declared per command, so an
+// A small argument reader for the cachewright commands: options are declared per command, so an
 // unknown or malformed option is a usage error (exit 2) with a message, never an exception.
 import { fail, ok, type Outcome } from '../core/result';
 

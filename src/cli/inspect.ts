@@ -1,4 +1,4 @@
-// `diskwise inspect IMAGE... [--format text|json] [--no-chain]` (CONTRACTS.md §2, §3): reads qcow2
+// `cachewright inspect IMAGE... [--format text|json] [--no-chain]` (CONTRACTS.md §2, §3): reads qcow2
 // images read-only, walks their metadata and backing chains. Exit 0 when every image and layer was
 // read, 2 when any failed or the command line is wrong; a bad file is a message, never a trace.
 import { isAbsolute, relative, resolve } from 'node:path';
@@ -15,7 +15,7 @@ const OPTIONS: Record<string, OptionSpec> = {
   help: { value: false },
 };
 
-export const INSPECT_USAGE = `usage: diskwise inspect IMAGE... [--format text|json] [--no-chain]
+export const INSPECT_USAGE = `usage: cachewright inspect IMAGE... [--format text|json] [--no-chain]
 
   Reads qcow2 images (never writes them): header facts, allocated L2 tables and data clusters,
   the L2 cache that holds every allocated table now and the one that maps the whole disk, an
@@ -55,7 +55,7 @@ export async function runInspect(args: string[], io: InspectIO): Promise<number>
 }
 
 function usage(io: InspectIO, message: string): number {
-  io.stderr(`diskwise inspect: ${message}\n\n${INSPECT_USAGE}`);
+  io.stderr(`cachewright inspect: ${message}\n\n${INSPECT_USAGE}`);
   return EXIT_USAGE;
 }
 

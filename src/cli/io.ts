@@ -9,7 +9,7 @@ export interface CommandIO {
   stderrIsTTY: boolean;
 }
 
-/** `diskwise lint | head` closes the pipe early: that ends the command quietly, not with a stack trace. */
+/** `cachewright lint | head` closes the pipe early: that ends the command quietly, not with a stack trace. */
 function endQuietlyOnClosedPipe(stream: NodeJS.WriteStream): void {
   stream.on('error', (error: NodeJS.ErrnoException) => {
     if (error.code === 'EPIPE') process.exit(process.exitCode ?? 0);

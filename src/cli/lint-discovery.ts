@@ -1,4 +1,4 @@
-// Where `diskwise lint` finds its mapping file and the definition files to check. Everything that
+// Where `cachewright lint` finds its mapping file and the definition files to check. Everything that
 // can go wrong here (no mapping file, a broken one, a path that does not exist) comes back as
 // messages for stderr, never as an exception.
 import * as fs from 'node:fs';
@@ -63,7 +63,7 @@ export function ioMessage(error: unknown): string {
 
 /**
  * Reads and checks the mapping file: `--config` when given, else the nearest one above the working
- * directory, else the nearest one above the first named path (so `diskwise lint other/repo/x.yaml`
+ * directory, else the nearest one above the first named path (so `cachewright lint other/repo/x.yaml`
  * finds that repository's mapping). Problems come back as `path:line:col: message` lines.
  */
 export function resolveMapping(cwd: string, config: string | undefined, paths: readonly string[]): Outcome<Mapping> {

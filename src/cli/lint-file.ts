@@ -1,4 +1,4 @@
-// One definition file through `diskwise lint`: read it, lint it, fix it with --fix and write it
+// One definition file through `cachewright lint`: read it, lint it, fix it with --fix and write it
 // back. Shared by the command's own loop and its worker threads; never throws.
 import * as fs from 'node:fs';
 import { lintPrepared, prepareDocument, type FileReport, type LintOptions, type Mapping } from '../lint';
@@ -40,7 +40,7 @@ export async function lintFile(path: string, mapping: Mapping, request: LintRequ
   } catch (error) {
     return { path, error: `internal error while linting: ${error instanceof Error ? error.message : String(error)}`, fixed: 0 };
   }
-  if (!request.fix || !report.parsed || !report.findings.some((f) => f.fix && !f.suppressed)) return { path, report: viewOf(report), fixed: 0 };
+  if (!request.fix || !report.parsed || !report.findings.some((f) => f.fix && !f.accepted)) return { path, report: viewOf(report), fixed: 0 };
   if (!encodeLike(text, hadBom).equals(bytes)) {
     notes.push(`${displayPath(path, cwd)}: left unchanged by --fix: the file is not valid UTF-8, so writing it back would change bytes the fixes do not touch`);
     return { path, report: viewOf(report), fixed: 0 };

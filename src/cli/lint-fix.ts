@@ -1,4 +1,4 @@
-// `diskwise lint --fix`: apply the engine's fix edits to a file's text, pass after pass, and write
+// `cachewright lint --fix`: apply the engine's fix edits to a file's text, pass after pass, and write
 // the result atomically. The edits are the engine's own; this module only decides which of them
 // can go together and makes sure nothing else in the file changes.
 import * as fs from 'node:fs';
@@ -22,7 +22,7 @@ export interface FixOutcome {
 }
 
 /** A suppressed finding was reviewed and accepted as it is: fixing it would undo that decision. */
-const wantsFix = (finding: Finding): boolean => finding.fix !== undefined && finding.fix.edits.length > 0 && !finding.suppressed;
+const wantsFix = (finding: Finding): boolean => finding.fix !== undefined && finding.fix.edits.length > 0 && !finding.accepted;
 
 /**
  * Lints `text`, applies a non-overlapping set of fixes, lints again, and repeats until no fix is
@@ -60,7 +60,7 @@ export function fixText(path: string, text: string, mapping: Mapping, first?: Fi
 export function writeFileAtomic(path: string, data: Buffer): void {
   const target = fs.realpathSync(path);
   const mode = fs.statSync(target).mode & 0o7777;
-  const temp = nodePath.join(nodePath.dirname(target), `.${nodePath.basename(target)}.${process.pid}.${randomBytes(4).toString('hex')}.diskwise-tmp`);
+  const temp = nodePath.join(nodePath.dirname(target), `.${nodePath.basename(target)}.${process.pid}.${randomBytes(4).toString('hex')}.cachewright-tmp`);
   try {
     fs.writeFileSync(temp, data, { mode, flag: 'wx' });
     // The umask may have narrowed the mode the file was created with.

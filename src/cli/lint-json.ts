@@ -1,4 +1,4 @@
-// `diskwise lint --format json` (CONTRACTS.md §3): one document for the whole run, byte counts as
+// `cachewright lint --format json` (CONTRACTS.md §3): one document for the whole run, byte counts as
 // exact integers, paths relative to the mapping file's folder, positions 1-based.
 import { CAUTIONS } from '../core/cautions';
 import { stringifyJson } from '../core/json';
@@ -32,7 +32,7 @@ function findingJson(finding: Finding) {
     ...position(finding.range),
     fix: finding.fix ? { title: finding.fix.title, edits: finding.fix.edits.map((e) => ({ offset: e.offset, length: e.length, text: e.text })) } : undefined,
     related: finding.related?.map((r) => ({ message: r.message, pointer: r.pointer, ...position(r.range) })),
-    suppressed: finding.suppressed ? { reason: finding.suppressed.reason } : undefined,
+    accepted: finding.accepted ? { reason: finding.accepted.reason } : undefined,
   };
 }
 
@@ -59,7 +59,7 @@ export function renderJson(run: LintRun): string {
     findings: file.report ? shownFindings(run, file.report).map(findingJson) : [],
   }));
   const document = {
-    tool: 'diskwise',
+    tool: 'cachewright',
     version: run.version,
     files,
     summary: {
@@ -68,7 +68,7 @@ export function renderJson(run: LintRun): string {
       errors: summary.errors,
       warnings: summary.warnings,
       infos: summary.infos,
-      suppressed: summary.suppressed,
+      accepted: summary.accepted,
       fixable: summary.fixable,
       fixed: run.fix ? summary.fixed : undefined,
       unreadable: summary.failed > 0 ? summary.failed : undefined,

@@ -1,4 +1,4 @@
-// Large runs of `diskwise lint` spread over worker threads: each thread loads the mapping file
+// Large runs of `cachewright lint` spread over worker threads: each thread loads the mapping file
 // itself, lints an interleaved share of the files (fixing them with --fix) and sends back what the
 // outputs need. The command's own thread takes a share too. Small runs, a single core, or sources
 // run without the built bundle stay on one thread; a thread that fails hands its share back.
@@ -11,7 +11,7 @@ import { ImageFacts } from './lint-images';
 import type { Progress } from './lint-progress';
 import type { LintedFile } from './lint-results';
 
-const WORKER_KIND = 'diskwise-lint-share';
+const WORKER_KIND = 'cachewright-lint-share';
 /** Below this many files a thread's start-up (loading the bundle and the mapping) costs more than it saves. */
 export const PARALLEL_MIN_FILES = 256;
 const FILES_PER_THREAD = 128;
@@ -29,9 +29,9 @@ type ShareMessage =
   | { type: 'done'; files: LintedFile[]; notes: string[] }
   | { type: 'failed'; message: string };
 
-/** Threads for a run: DISKWISE_JOBS when set (1 = one thread), else by the file count and the cores. */
+/** Threads for a run: CACHEWRIGHT_JOBS when set (1 = one thread), else by the file count and the cores. */
 export function threadCount(files: number, env: NodeJS.ProcessEnv = process.env, cores: number = availableParallelism()): number {
-  const asked = env.DISKWISE_JOBS;
+  const asked = env.CACHEWRIGHT_JOBS;
   if (asked !== undefined && /^\d+$/.test(asked) && Number(asked) >= 1) return Math.max(1, Math.min(Number(asked), MAX_THREADS, files));
   if (files < PARALLEL_MIN_FILES) return 1;
   return Math.max(1, Math.min(cores, MAX_THREADS, Math.floor(files / FILES_PER_THREAD)));

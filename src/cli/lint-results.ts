@@ -1,4 +1,4 @@
-// What one `diskwise lint` run produced, in the shape every output format reads: the files with
+// What one `cachewright lint` run produced, in the shape every output format reads: the files with
 // their reports, and the counts the summary line and the exit code are computed from.
 import * as nodePath from 'node:path';
 import type { FileReport, Finding, Mapping } from '../lint';
@@ -48,7 +48,7 @@ export interface LintSummary {
   errors: number;
   warnings: number;
   infos: number;
-  suppressed: number;
+  accepted: number;
   /** Unsuppressed findings that carry a fix. */
   fixable: number;
   fixed: number;
@@ -57,7 +57,7 @@ export interface LintSummary {
 }
 
 export function summarize(run: LintRun): LintSummary {
-  const summary: LintSummary = { files: 0, disks: 0, errors: 0, warnings: 0, infos: 0, suppressed: 0, fixable: 0, fixed: 0, failed: 0 };
+  const summary: LintSummary = { files: 0, disks: 0, errors: 0, warnings: 0, infos: 0, accepted: 0, fixable: 0, fixed: 0, failed: 0 };
   for (const file of run.files) {
     summary.fixed += file.fixed;
     if (file.error !== undefined) summary.failed++;
@@ -65,8 +65,8 @@ export function summarize(run: LintRun): LintSummary {
     summary.files++;
     summary.disks += file.report.disks.length;
     for (const finding of file.report.findings) {
-      if (finding.suppressed) {
-        summary.suppressed++;
+      if (finding.accepted) {
+        summary.accepted++;
         continue;
       }
       if (finding.severity === 'error') summary.errors++;
@@ -80,7 +80,7 @@ export function summarize(run: LintRun): LintSummary {
 
 /** The findings an output shows: everything, or under --quiet the unsuppressed errors only. */
 export function shownFindings(run: LintRun, report: ReportView): Finding[] {
-  return run.quiet ? report.findings.filter((f) => f.severity === 'error' && !f.suppressed) : report.findings;
+  return run.quiet ? report.findings.filter((f) => f.severity === 'error' && !f.accepted) : report.findings;
 }
 
 /** A definition file's path relative to the mapping file's folder, with forward slashes. */
@@ -89,13 +89,13 @@ export function mappingRelative(mapping: Mapping, absolutePath: string): string 
 }
 
 /**
- * Whether a suppression came from the mapping file's ignore list (rather than a comment in the
+ * Whether a suppression came from the mapping file's accept list (rather than a comment in the
  * definition): the engine records only the reason, so the CLI matches the list the same way.
  */
 export function suppressedByMapping(mapping: Mapping, path: string, finding: Finding): boolean {
-  if (!finding.suppressed) return false;
+  if (!finding.accepted) return false;
   const within = (pointer: string, scope: string) => scope === '' || pointer === scope || pointer.startsWith(`${scope}/`);
-  return mapping.ignore.some(
-    (entry) => entry.rule === finding.rule && entry.reason === finding.suppressed?.reason && (entry.file === undefined || entry.file === path) && within(finding.pointer, entry.pointer),
+  return mapping.accept.some(
+    (entry) => entry.rule === finding.rule && entry.reason === finding.accepted?.reason && (entry.file === undefined || entry.file === path) && within(finding.pointer, entry.pointer),
   );
 }

@@ -1,4 +1,4 @@
-// `diskwise lint --format sarif`: one SARIF 2.1.0 log with one run. Locations are relative to the
+// `cachewright lint --format sarif`: one SARIF 2.1.0 log with one run. Locations are relative to the
 // mapping file's folder (a base id the log resolves itself), columns and character offsets are
 // UTF-16 code units, fixes carry the engine's own edits, and suppressed findings stay in the log
 // with their justification.
@@ -67,8 +67,8 @@ function result(run: LintRun, path: string, finding: Finding) {
             }],
           }]
         : undefined,
-    suppressions: finding.suppressed
-      ? [{ kind: suppressedByMapping(run.mapping, path, finding) ? 'external' : 'inSource', status: 'accepted', justification: finding.suppressed.reason }]
+    suppressions: finding.accepted
+      ? [{ kind: suppressedByMapping(run.mapping, path, finding) ? 'external' : 'inSource', status: 'accepted', justification: finding.accepted.reason }]
       : undefined,
   };
 }
@@ -88,13 +88,13 @@ export function renderSarif(run: LintRun): string {
     runs: [{
       tool: {
         driver: {
-          name: 'diskwise',
+          name: 'cachewright',
           version: run.version,
           semanticVersion: run.version,
           rules: RULES.map((rule) => ({
             id: rule.id,
             shortDescription: { text: rule.description },
-            help: { text: `${rule.description} See ${rule.docs} in the diskwise package.`, markdown: `${rule.description} See [${rule.docs}](${rule.docs}).` },
+            help: { text: `${rule.description} See ${rule.docs} in the cachewright package.`, markdown: `${rule.description} See [${rule.docs}](${rule.docs}).` },
             defaultConfiguration: { level: LEVEL[rule.severity] },
             properties: { fixable: rule.fixable },
           })),

@@ -1,4 +1,4 @@
-// `diskwise lint` for people: findings grouped by file, one line each that terminals and editors
+// `cachewright lint` for people: findings grouped by file, one line each that terminals and editors
 // turn into a link (`path:line:col`), a hint under each fixable one, and one closing summary.
 // Suppressed findings are not shown; the summary counts them.
 import { CAUTIONS } from '../core/cautions';
@@ -16,7 +16,7 @@ export function summaryLine(summary: LintSummary, run: Pick<LintRun, 'fix'>): st
   const checked = `Checked ${plural(summary.files, 'file')} with ${plural(summary.disks, 'qcow2 disk')}`;
   const counts = [plural(summary.errors, 'error'), plural(summary.warnings, 'warning'), `${summary.infos} info`];
   const extras: string[] = [];
-  if (summary.suppressed > 0) extras.push(`${summary.suppressed} accepted by a suppression`);
+  if (summary.accepted > 0) extras.push(`${summary.accepted} accepted by a suppression`);
   if (run.fix && summary.fixed > 0) extras.push(`${plural(summary.fixed, 'fix', 'fixes')} applied`);
   if (summary.fixable > 0) extras.push(run.fix ? `${summary.fixable} fixable still open` : `${summary.fixable} fixable with --fix`);
   if (summary.failed > 0) extras.push(`${plural(summary.failed, 'file')} could not be read`);
@@ -27,7 +27,7 @@ export function renderText(run: LintRun): string {
   const out: string[] = [];
   for (const file of run.files) {
     if (!file.report) continue;
-    const findings = shownFindings(run, file.report).filter((f) => !f.suppressed);
+    const findings = shownFindings(run, file.report).filter((f) => !f.accepted);
     if (findings.length === 0) continue;
     const path = displayPath(file.path, run.cwd);
     const place = (f: Finding) => `${path}:${f.range.line}:${f.range.column}`;

@@ -1,4 +1,4 @@
-// `diskwise lint` (CONTRACTS.md §2): find the mapping file, pick the definition files, lint each
+// `cachewright lint` (CONTRACTS.md §2): find the mapping file, pick the definition files, lint each
 // one (and fix it with --fix), print text, JSON or SARIF, and exit 0, 1 or 2 as the contract says.
 import { lastOption, parseArgs, type OptionSpec } from './args';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
@@ -23,12 +23,12 @@ const OPTIONS: Record<string, OptionSpec> = {
 
 const FORMATS: readonly LintFormat[] = ['text', 'json', 'sarif'];
 
-export const LINT_USAGE = `usage: diskwise lint [PATH...] [--config FILE] [--format text|json|sarif]
+export const LINT_USAGE = `usage: cachewright lint [PATH...] [--config FILE] [--format text|json|sarif]
                      [--fix] [--max-warnings N] [--quiet] [--no-images]
 
   PATH            files or folders to check (default: every file the mapping file includes);
                   a named file is always checked, a folder only for the files the mapping includes
-  --config        the mapping file (default: diskwise.yaml, diskwise.yml or diskwise.json in
+  --config        the mapping file (default: cachewright.yaml, cachewright.yml or cachewright.json in
                   this folder or the nearest folder above it)
   --format        text (default), json or sarif (SARIF 2.1.0)
   --fix           apply every fix in place, changing nothing else in the files
@@ -38,12 +38,12 @@ export const LINT_USAGE = `usage: diskwise lint [PATH...] [--config FILE] [--for
 
 exit status: 0 no errors and warnings within --max-warnings; 1 errors, or too many warnings;
              2 usage, mapping file or file read/write problems
-environment: DISKWISE_JOBS=N lints on N threads (default: one per core for large runs)
+environment: CACHEWRIGHT_JOBS=N lints on N threads (default: one per core for large runs)
 `;
 
 
 function usageError(io: CommandIO, message: string): number {
-  io.stderr(`diskwise lint: ${message}\n\n${LINT_USAGE}`);
+  io.stderr(`cachewright lint: ${message}\n\n${LINT_USAGE}`);
   return EXIT_USAGE;
 }
 

@@ -1,21 +1,21 @@
-// The diskwise command: dispatches to lint, size and inspect. Whatever happens inside, a user sees a
+// The cachewright command: dispatches to lint, size and inspect. Whatever happens inside, a user sees a
 // message and an exit code, never a stack trace.
 import { runLint } from './lint';
 import { runInspect } from './inspect';
 import { runSize } from './size';
 import { EXIT_USAGE, processIO, type CommandIO } from './io';
 
-declare const DISKWISE_VERSION: string | undefined;
-const VERSION = typeof DISKWISE_VERSION === 'string' ? DISKWISE_VERSION : '0.1.0';
+declare const CACHEWRIGHT_VERSION: string | undefined;
+const VERSION = typeof CACHEWRIGHT_VERSION === 'string' ? CACHEWRIGHT_VERSION : '0.2.0';
 
-export const MAIN_USAGE = `usage: diskwise <command> [options]
+export const MAIN_USAGE = `usage: cachewright <command> [options]
 
 commands:
   lint [PATH...]     check the qcow2 cache settings of VM definition files
   size --size SIZE   the cache sizing numbers of one disk
   inspect IMAGE...   read qcow2 images and their backing chains (read-only)
 
-Run "diskwise <command> --help" for a command's options.
+Run "cachewright <command> --help" for a command's options.
 `;
 
 export async function runCommand(argv: readonly string[], io: CommandIO): Promise<number> {
@@ -38,7 +38,7 @@ export async function runCommand(argv: readonly string[], io: CommandIO): Promis
       io.stdout(MAIN_USAGE);
       return command === undefined ? EXIT_USAGE : 0;
     default:
-      io.stderr(`diskwise: unknown command "${command}"\n\n${MAIN_USAGE}`);
+      io.stderr(`cachewright: unknown command "${command}"\n\n${MAIN_USAGE}`);
       return EXIT_USAGE;
   }
 }
@@ -51,8 +51,8 @@ if (require.main === module) {
     },
     (error: unknown) => {
       const message = error instanceof Error ? error.message : String(error);
-      io.stderr(`diskwise: internal error: ${message}\n`);
-      if (process.env.DISKWISE_DEBUG && error instanceof Error && error.stack) io.stderr(`${error.stack}\n`);
+      io.stderr(`cachewright: internal error: ${message}\n`);
+      if (process.env.CACHEWRIGHT_DEBUG && error instanceof Error && error.stack) io.stderr(`${error.stack}\n`);
       process.exitCode = EXIT_USAGE;
     },
   );

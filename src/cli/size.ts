@@ -1,4 +1,4 @@
-// `diskwise size`: the sizing numbers of one disk, from flags alone (CONTRACTS.md §2, §3).
+// `cachewright size`: the sizing numbers of one disk, from flags alone (CONTRACTS.md §2, §3).
 import { layerCache, sizeChain, type CacheSettings } from '../core/cache';
 import { CAUTIONS } from '../core/cautions';
 import { stringifyJson } from '../core/json';
@@ -30,7 +30,7 @@ const OPTIONS: Record<string, OptionSpec> = {
   help: { value: false },
 };
 
-export const SIZE_USAGE = `usage: diskwise size --size SIZE [--cluster-size 64K] [--extended-l2] [--slice SIZE]
+export const SIZE_USAGE = `usage: cachewright size --size SIZE [--cluster-size 64K] [--extended-l2] [--slice SIZE]
                      [--refcount-bits 16] [--cache SIZE] [--request-size 4K]
                      [--access uniform|zipf:S|hotspot:P/Q|sequential] [--working-set SIZE]
                      [--driver current|legacy] [--platform linux|other] [--format text|json]
@@ -136,7 +136,7 @@ export function runSize(argv: readonly string[], io: CommandIO): number {
   }
   const request = args.ok ? readRequest(args.value) : args;
   if (!request.ok) {
-    io.stderr(`diskwise size: ${request.error}\n\n${SIZE_USAGE}`);
+    io.stderr(`cachewright size: ${request.error}\n\n${SIZE_USAGE}`);
     return EXIT_USAGE;
   }
   const r = request.value;
@@ -151,7 +151,7 @@ export function runSize(argv: readonly string[], io: CommandIO): number {
     ...(r.workingSet !== undefined ? { workingSet: { offset: 0n, length: r.workingSet } } : {}),
   });
   if (!predicted.ok) {
-    io.stderr(`diskwise size: ${predicted.problem.field}: ${predicted.problem.message}\n`);
+    io.stderr(`cachewright size: ${predicted.problem.field}: ${predicted.problem.message}\n`);
     return EXIT_USAGE;
   }
   const m = predicted.value;

@@ -19,7 +19,7 @@ export interface LayerGeometry {
 export interface CacheSettings {
   l2Cache?: bigint;
   refcountCache?: bigint;
-  totalCache?: bigint;
+  combinedCache?: bigint;
   /** L2 cache entry size (slice); absent means whole L2 tables. */
   entrySize?: bigint;
   cleanupInterval?: number;
@@ -45,14 +45,14 @@ export interface LayerCache {
 
 /** Of L2, refcount and combined cache at most two may be set together. */
 export function checkCacheOptions(settings: CacheSettings): Outcome<CacheSettings> {
-  const { l2Cache, refcountCache, totalCache } = settings;
-  if (l2Cache !== undefined && refcountCache !== undefined && totalCache !== undefined) {
+  const { l2Cache, refcountCache, combinedCache } = settings;
+  if (l2Cache !== undefined && refcountCache !== undefined && combinedCache !== undefined) {
     return fail('L2, refcount and combined cache sizes are all set; at most two of the three may be set together');
   }
-  if (totalCache !== undefined && l2Cache !== undefined && l2Cache > totalCache) {
+  if (combinedCache !== undefined && l2Cache !== undefined && l2Cache > combinedCache) {
     return fail('the L2 cache is larger than the combined cache size');
   }
-  if (totalCache !== undefined && refcountCache !== undefined && refcountCache > totalCache) {
+  if (combinedCache !== undefined && refcountCache !== undefined && refcountCache > combinedCache) {
     return fail('the refcount cache is larger than the combined cache size');
   }
   return ok(settings);
@@ -74,30 +74,30 @@ export function layerCache(geometry: LayerGeometry, settings: CacheSettings, pro
   let l2Source: CacheSource;
   let refcount: bigint | undefined;
   let refcountSource: CacheSource = 'default';
-  const { l2Cache, refcountCache, totalCache } = settings;
+  const { l2Cache, refcountCache, combinedCache } = settings;
   if (l2Cache !== undefined) {
     l2 = l2Cache;
     l2Source = 'configured';
     if (refcountCache !== undefined) {
       refcount = refcountCache;
       refcountSource = 'configured';
-    } else if (totalCache !== undefined) {
-      refcount = totalCache - l2Cache;
+    } else if (combinedCache !== undefined) {
+      refcount = combinedCache - l2Cache;
       refcountSource = 'combined';
     }
-  } else if (totalCache !== undefined) {
+  } else if (combinedCache !== undefined) {
     if (refcountCache !== undefined) {
-      l2 = totalCache - refcountCache;
+      l2 = combinedCache - refcountCache;
       refcount = refcountCache;
       refcountSource = 'configured';
-    } else if (totalCache > usableL2 + minRefcount) {
+    } else if (combinedCache > usableL2 + minRefcount) {
       // The L2 cache takes what it can use; the refcount cache grows only after that.
       l2 = usableL2;
-      refcount = totalCache - usableL2;
+      refcount = combinedCache - usableL2;
       refcountSource = 'combined';
     } else {
       refcount = minRefcount;
-      l2 = totalCache - minRefcount;
+      l2 = combinedCache - minRefcount;
       refcountSource = 'combined';
     }
     l2Source = 'combined';

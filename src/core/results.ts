@@ -40,7 +40,7 @@ export interface Finding {
   range: SourceRange;
   fix?: Fix;
   related?: RelatedLocation[];
-  suppressed?: { reason: string };
+  accepted?: { reason: string };
 }
 
 /** The sizing numbers of one disk (CONTRACTS.md §3). Byte counts are exact integers. */

@@ -6,18 +6,18 @@ import { SOURCE, ruleOf } from './diagnostics';
 import { toRange, workspaceEdit } from './edits';
 import type { Linting } from './linting';
 
-export const FIX_ALL_KIND = vscode.CodeActionKind.SourceFixAll.append('diskwise');
+export const FIX_ALL_KIND = vscode.CodeActionKind.SourceFixAll.append('cachewright');
 
 const sameRange = (a: vscode.Range, b: vscode.Range): boolean => a.isEqual(b);
 
 /** Fixes of every active finding that can be applied together in one pass. */
 export function fixAllEdits(findings: readonly Finding[]): { fixes: Fix[]; deferred: number } {
-  const fixes = findings.filter((f) => f.fix && !f.suppressed).map((f) => f.fix as Fix);
+  const fixes = findings.filter((f) => f.fix && !f.accepted).map((f) => f.fix as Fix);
   const { chosen, deferred } = nonOverlapping(fixes);
   return { fixes: chosen, deferred: deferred.length };
 }
 
-export class DiskwiseCodeActions implements vscode.CodeActionProvider {
+export class CachewrightCodeActions implements vscode.CodeActionProvider {
   static readonly kinds = [vscode.CodeActionKind.QuickFix, FIX_ALL_KIND];
 
   constructor(private readonly linting: Linting) {}
@@ -31,7 +31,7 @@ export class DiskwiseCodeActions implements vscode.CodeActionProvider {
     if (!context.only || context.only.intersects(vscode.CodeActionKind.QuickFix)) {
       const ours = context.diagnostics.filter((d) => d.source === SOURCE);
       for (const finding of result.report.findings) {
-        if (!finding.fix || finding.suppressed) continue;
+        if (!finding.fix || finding.accepted) continue;
         const at = toRange(finding.range);
         const diagnostic = ours.find((d) => ruleOf(d) === finding.rule && sameRange(d.range, at));
         if (!diagnostic && !at.intersection(range)) continue;
@@ -45,7 +45,7 @@ export class DiskwiseCodeActions implements vscode.CodeActionProvider {
     if (!context.only || wantsFixAll || context.only.contains(vscode.CodeActionKind.Source)) {
       const { fixes } = fixAllEdits(result.report.findings);
       if (fixes.length > 0) {
-        const action = new vscode.CodeAction(`diskwise: apply ${fixes.length} safe fix${fixes.length > 1 ? 'es' : ''} in this file`, FIX_ALL_KIND);
+        const action = new vscode.CodeAction(`cachewright: apply ${fixes.length} safe fix${fixes.length > 1 ? 'es' : ''} in this file`, FIX_ALL_KIND);
         action.edit = workspaceEdit(document, fixes.flatMap((f) => f.edits));
         actions.push(action);
       }

@@ -5,7 +5,7 @@ import type { Finding, MappingProblem } from '../lint';
 import { ruleById } from '../rules';
 import { toRange } from './edits';
 
-export const SOURCE = 'diskwise';
+export const SOURCE = 'cachewright';
 /** The code of a mapping file's own problems, which no rule reports. */
 export const MAPPING_PROBLEM_CODE = 'mapping-file';
 
@@ -34,7 +34,7 @@ export function findingDiagnostic(extensionUri: vscode.Uri, uri: vscode.Uri, fin
 
 /** Suppressed findings are reviewed exceptions: the panel lists them, the editor does not flag them. */
 export function fileDiagnostics(extensionUri: vscode.Uri, uri: vscode.Uri, findings: readonly Finding[]): vscode.Diagnostic[] {
-  return findings.filter((f) => !f.suppressed).map((f) => findingDiagnostic(extensionUri, uri, f));
+  return findings.filter((f) => !f.accepted).map((f) => findingDiagnostic(extensionUri, uri, f));
 }
 
 export function mappingDiagnostics(problems: readonly MappingProblem[]): vscode.Diagnostic[] {

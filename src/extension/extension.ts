@@ -5,7 +5,7 @@ import * as vscode from 'vscode';
 import { parse as parseYaml } from 'yaml';
 import type { SourceRange } from '../core/results';
 import { CAUTIONS } from '../core/cautions';
-import { DiskwiseCodeActions, fixAllInDocument } from './codeActions';
+import { CachewrightCodeActions, fixAllInDocument } from './codeActions';
 import { toRange, workspaceEdit } from './edits';
 import { Linting, type LintResult, type Timings } from './linting';
 import { SizingPanel } from './panel';
@@ -17,7 +17,7 @@ import { registerImageViewer } from './imageViewer';
 import type { WhatIfValues } from '../../webview/protocol';
 
 /** What the extension exports: read by the integration tests, useful to other extensions. */
-export interface DiskwiseApi {
+export interface CachewrightApi {
   timings(): Timings & { panelUpdateMs?: number; panelUpdates: number; panelRenderMs?: number };
   result(uri: vscode.Uri): LintResult | undefined;
   panelShows(): string | undefined;
@@ -32,7 +32,7 @@ const DEFINITION_SELECTOR: vscode.DocumentSelector = [
   { language: 'yaml', scheme: 'file' }, { language: 'json', scheme: 'file' }, { language: 'jsonc', scheme: 'file' },
 ];
 
-export function activate(context: vscode.ExtensionContext): DiskwiseApi {
+export function activate(context: vscode.ExtensionContext): CachewrightApi {
   const timings: Timings = { activatedAt: Date.now() };
   const linting = new Linting(context.extensionUri, timings);
   const status = new CacheStatus();
@@ -76,14 +76,14 @@ export function activate(context: vscode.ExtensionContext): DiskwiseApi {
     if (!target) return panel.empty('Open a definition file that the mapping file includes to see its disks here.');
     const document = vscode.workspace.textDocuments.find((d) => d.uri.toString() === target.toString());
     const result = document ? linting.fresh(document) : linting.result(target);
-    if (!result) return panel.empty(`${path.basename(target.fsPath)} is not included by a mapping file (diskwise.yaml), so it has no disks to show.`);
+    if (!result) return panel.empty(`${path.basename(target.fsPath)} is not included by a mapping file (cachewright.yaml), so it has no disks to show.`);
     return panel.show(panelView(result.uri.toString(), result.version ?? 0, result.report, result.mapping));
   };
 
   const followEditor = (editor: vscode.TextEditor | undefined): void => {
     const document = editor?.document;
     const included = document !== undefined && linting.isDefinition(document);
-    void vscode.commands.executeCommand('setContext', 'diskwise.activeFileIncluded', included);
+    void vscode.commands.executeCommand('setContext', 'cachewright.activeFileIncluded', included);
     if (!document || !included) {
       // A panel or an output view is focused, or another file: keep showing the last definition.
       if (document && document.uri.scheme === 'file' && !included) status.show(undefined);
@@ -104,8 +104,8 @@ export function activate(context: vscode.ExtensionContext): DiskwiseApi {
     linting,
     status,
     panel,
-    vscode.languages.registerCodeActionsProvider(DEFINITION_SELECTOR, new DiskwiseCodeActions(linting), {
-      providedCodeActionKinds: DiskwiseCodeActions.kinds,
+    vscode.languages.registerCodeActionsProvider(DEFINITION_SELECTOR, new CachewrightCodeActions(linting), {
+      providedCodeActionKinds: CachewrightCodeActions.kinds,
     }),
     linting.onDidLint((result) => {
       const active = vscode.window.activeTextEditor?.document.uri.toString();
@@ -128,33 +128,33 @@ export function activate(context: vscode.ExtensionContext): DiskwiseApi {
       if (disk) panel.focusDisk(disk.pointer);
     }),
 
-    vscode.commands.registerCommand('diskwise.showSizingPanel', async () => {
+    vscode.commands.registerCommand('cachewright.showSizingPanel', async () => {
       const document = activeDocument();
       if (document && linting.isDefinition(document)) lastDefinition = document.uri;
       panel.open(true);
       return updatePanel();
     }),
-    vscode.commands.registerCommand('diskwise.lintWorkspace', async () => {
+    vscode.commands.registerCommand('cachewright.lintWorkspace', async () => {
       await linting.reloadMappings();
       const summary = await linting.lintWorkspace(true);
       if (linting.mappings.all().length === 0) {
-        void vscode.window.showWarningMessage('diskwise: no mapping file (diskwise.yaml or diskwise.json) at the root of a workspace folder. Create one with "diskwise: Create a starter mapping file from this definition".');
+        void vscode.window.showWarningMessage('cachewright: no mapping file (cachewright.yaml or cachewright.json) at the root of a workspace folder. Create one with "cachewright: Create a starter mapping file from this definition".');
       } else {
-        void vscode.window.setStatusBarMessage(`diskwise: ${summary.files} definition${summary.files === 1 ? '' : 's'} linted, ${summary.findings} finding${summary.findings === 1 ? '' : 's'}`, 5000);
+        void vscode.window.setStatusBarMessage(`cachewright: ${summary.files} definition${summary.files === 1 ? '' : 's'} linted, ${summary.findings} finding${summary.findings === 1 ? '' : 's'}`, 5000);
       }
       return summary;
     }),
-    vscode.commands.registerCommand('diskwise.fixAllInFile', async () => {
+    vscode.commands.registerCommand('cachewright.fixAllInFile', async () => {
       const document = activeDocument();
       if (!document || !linting.isDefinition(document)) {
-        void vscode.window.showInformationMessage('diskwise: the active file is not a definition the mapping file includes.');
+        void vscode.window.showInformationMessage('cachewright: the active file is not a definition the mapping file includes.');
         return 0;
       }
       const applied = await fixAllInDocument(linting, document);
-      void vscode.window.setStatusBarMessage(`diskwise: applied ${applied} fix${applied === 1 ? '' : 'es'} (not saved)`, 5000);
+      void vscode.window.setStatusBarMessage(`cachewright: applied ${applied} fix${applied === 1 ? '' : 'es'} (not saved)`, 5000);
       return applied;
     }),
-    vscode.commands.registerCommand('diskwise.createStarterMapping', (options?: { confirm?: boolean }) =>
+    vscode.commands.registerCommand('cachewright.createStarterMapping', (options?: { confirm?: boolean }) =>
       createStarterMapping(linting, activeDocument(), options?.confirm !== false)),
   );
 
@@ -174,39 +174,39 @@ export function activate(context: vscode.ExtensionContext): DiskwiseApi {
 
 async function createStarterMapping(linting: Linting, document: vscode.TextDocument | undefined, confirm: boolean): Promise<vscode.Uri | undefined> {
   if (!document || !['yaml', 'json', 'jsonc'].includes(document.languageId)) {
-    void vscode.window.showInformationMessage('diskwise: open a YAML or JSON VM definition first; the starter mapping is proposed from it.');
+    void vscode.window.showInformationMessage('cachewright: open a YAML or JSON VM definition first; the starter mapping is proposed from it.');
     return undefined;
   }
   const folder = vscode.workspace.getWorkspaceFolder(document.uri);
   if (!folder) {
-    void vscode.window.showInformationMessage('diskwise: the definition must be inside a workspace folder, where the mapping file will be written.');
+    void vscode.window.showInformationMessage('cachewright: the definition must be inside a workspace folder, where the mapping file will be written.');
     return undefined;
   }
   let data: unknown;
   try {
     data = parseYaml(document.getText());
   } catch (error) {
-    void vscode.window.showErrorMessage(`diskwise: ${path.basename(document.uri.fsPath)} cannot be read: ${error instanceof Error ? error.message.split('\n')[0] : String(error)}`);
+    void vscode.window.showErrorMessage(`cachewright: ${path.basename(document.uri.fsPath)} cannot be read: ${error instanceof Error ? error.message.split('\n')[0] : String(error)}`);
     return undefined;
   }
   const relative = path.relative(folder.uri.fsPath, document.uri.fsPath).split(path.sep).join('/');
   const proposal = proposeMapping(data, relative);
   if (!proposal) {
-    void vscode.window.showWarningMessage('diskwise: no list of disk-like objects (with size, cluster or cache keys) found in this file; write the mapping file by hand.');
+    void vscode.window.showWarningMessage('cachewright: no list of disk-like objects (with size, cluster or cache keys) found in this file; write the mapping file by hand.');
     return undefined;
   }
-  const target = vscode.Uri.joinPath(folder.uri, 'diskwise.yaml');
+  const target = vscode.Uri.joinPath(folder.uri, 'cachewright.yaml');
   if (linting.mappings.all().some((s) => s.folder.uri.toString() === folder.uri.toString())) {
-    void vscode.window.showWarningMessage(`diskwise: ${folder.name} already has a mapping file; it was left as it is.`);
+    void vscode.window.showWarningMessage(`cachewright: ${folder.name} already has a mapping file; it was left as it is.`);
     return undefined;
   }
   if (confirm) {
     const choice = await vscode.window.showInformationMessage(
-      `Write diskwise.yaml with these selectors? ${proposal.summary}`,
+      `Write cachewright.yaml with these selectors? ${proposal.summary}`,
       { modal: true, detail: proposal.text },
-      'Write diskwise.yaml',
+      'Write cachewright.yaml',
     );
-    if (choice !== 'Write diskwise.yaml') return undefined;
+    if (choice !== 'Write cachewright.yaml') return undefined;
   }
   await vscode.workspace.fs.writeFile(target, new TextEncoder().encode(proposal.text));
   await linting.reloadMappings();

@@ -33,7 +33,7 @@ export interface Timings {
 const DEFINITION_LANGUAGES = new Set(['yaml', 'json', 'jsonc']);
 
 export class Linting implements vscode.Disposable {
-  readonly diagnostics = vscode.languages.createDiagnosticCollection('diskwise');
+  readonly diagnostics = vscode.languages.createDiagnosticCollection('cachewright');
   readonly mappings = new Mappings();
   private readonly results = new Map<string, LintResult>();
   private readonly sessions = new Map<string, { session: LintSession; severities: string; images: ImageFactsCache | undefined }>();
@@ -71,7 +71,7 @@ export class Linting implements vscode.Disposable {
         if (isMappingFileName(document.uri) || this.mappings.stateOfMappingFile(document.uri)) void this.mappingChanged(document.uri);
       }),
       vscode.workspace.onDidChangeConfiguration((event) => {
-        if (event.affectsConfiguration('diskwise')) void this.reloadMappings().then(() => this.lintWorkspace(false));
+        if (event.affectsConfiguration('cachewright')) void this.reloadMappings().then(() => this.lintWorkspace(false));
       }),
       vscode.workspace.onDidChangeWorkspaceFolders(() => void this.reloadMappings().then(() => this.lintWorkspace(false))),
       vscode.workspace.onDidGrantWorkspaceTrust(() => {
@@ -215,14 +215,14 @@ export class Linting implements vscode.Disposable {
       let done = 0;
       for (const uri of files) {
         await this.lintFromDisk(uri);
-        findings += this.results.get(uri.toString())?.report.findings.filter((f) => !f.suppressed).length ?? 0;
+        findings += this.results.get(uri.toString())?.report.findings.filter((f) => !f.accepted).length ?? 0;
         done++;
         report?.report({ message: `${done} of ${files.length} definitions`, increment: 100 / Math.max(files.length, 1) });
       }
       return { files: files.length, findings };
     };
     if (!progress) return run();
-    return vscode.window.withProgress({ location: vscode.ProgressLocation.Notification, title: 'diskwise: linting definitions' }, run);
+    return vscode.window.withProgress({ location: vscode.ProgressLocation.Notification, title: 'cachewright: linting definitions' }, run);
   }
 
   private async includedFiles(): Promise<vscode.Uri[]> {

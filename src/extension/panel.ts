@@ -17,7 +17,7 @@ export interface PanelHandlers {
 interface RenderWaiter { seq: number; resolve: (disks: number) => void }
 
 export class SizingPanel implements vscode.Disposable {
-  static readonly viewType = 'diskwise.sizingPanel';
+  static readonly viewType = 'cachewright.sizingPanel';
   private panel: vscode.WebviewPanel | undefined;
   private seq = 0;
   private readonly waiters: RenderWaiter[] = [];
@@ -39,7 +39,7 @@ export class SizingPanel implements vscode.Disposable {
       return;
     }
     const roots = [vscode.Uri.joinPath(this.extensionUri, 'dist'), vscode.Uri.joinPath(this.extensionUri, 'media')];
-    const panel = vscode.window.createWebviewPanel(SizingPanel.viewType, 'diskwise: cache sizing',
+    const panel = vscode.window.createWebviewPanel(SizingPanel.viewType, 'cachewright: cache sizing',
       { viewColumn: vscode.ViewColumn.Beside, preserveFocus },
       { enableScripts: true, localResourceRoots: roots, retainContextWhenHidden: true });
     panel.iconPath = vscode.Uri.joinPath(this.extensionUri, 'media', 'panel-icon.svg');
@@ -114,7 +114,7 @@ export class SizingPanel implements vscode.Disposable {
     return webviewHtml(webview, this.extensionUri, {
       script: 'webview.js',
       style: 'panel.css',
-      title: 'diskwise: cache sizing',
+      title: 'cachewright: cache sizing',
       body: '<div id="root"><p class="none">Reading the definition…</p></div>',
       styleNonce: true,
     });

@@ -16,14 +16,14 @@ function findingView(finding: Finding): FindingView {
     message: finding.message,
     pointer: finding.pointer,
     range: finding.range,
-    ...(finding.suppressed ? { suppressed: finding.suppressed.reason } : {}),
+    ...(finding.accepted ? { accepted: finding.accepted.reason } : {}),
     ...(finding.fix ? { fixTitle: finding.fix.title } : {}),
   };
 }
 
 function configuredOf(disk: DiskReport): ConfiguredCache {
   const out: ConfiguredCache = {};
-  for (const key of ['l2Cache', 'refcountCache', 'totalCache', 'l2Slice'] as const) {
+  for (const key of ['l2Cache', 'refcountCache', 'combinedCache', 'cacheEntrySize'] as const) {
     const raw = disk.configured[key]?.raw;
     if (raw === undefined) continue;
     const parsed = parseSize(raw);
@@ -49,8 +49,8 @@ function chainOf(disk: DiskReport, configured: ConfiguredCache): LayerSpec[] {
         settings: {
           ...(configured.l2Cache !== undefined ? { l2Cache: configured.l2Cache } : {}),
           ...(configured.refcountCache !== undefined ? { refcountCache: configured.refcountCache } : {}),
-          ...(configured.totalCache !== undefined ? { totalCache: configured.totalCache } : {}),
-          ...(configured.l2Slice !== undefined ? { entrySize: configured.l2Slice } : {}),
+          ...(configured.combinedCache !== undefined ? { combinedCache: configured.combinedCache } : {}),
+          ...(configured.cacheEntrySize !== undefined ? { entrySize: configured.cacheEntrySize } : {}),
           ...(configured.cleanupInterval !== undefined ? { cleanupInterval: configured.cleanupInterval } : {}),
         },
       };

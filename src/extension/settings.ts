@@ -13,7 +13,7 @@ export interface Settings {
   debounceMs: number;
 }
 
-export const SECTION = 'diskwise';
+export const SECTION = 'cachewright';
 
 export function readSettings(scope?: vscode.Uri): Settings {
   const config = vscode.workspace.getConfiguration(SECTION, scope);

@@ -30,10 +30,10 @@ const CACHE_KEY = /l2|refcount|cache/;
 
 /** Field name -> key patterns, most specific first; a key is used for one field only. */
 const DISK_FIELD_KEYS: Array<[string, RegExp]> = [
-  ['l2Slice', /slice|entrysize/],
+  ['cacheEntrySize', /slice|entrysize/],
   ['refcountCache', /refcount/],
   ['l2Cache', /^l2(cache)?(size)?$|^l2cache/],
-  ['totalCache', /^(cache|cachesize|totalcache|combinedcache)$/],
+  ['combinedCache', /^(cache|cachesize|totalcache|combinedcache)$/],
   ['cleanupInterval', /cleanup|sweep|^interval$/],
   ['extendedL2', /extended|subcluster/],
   ['clusterSize', CLUSTER_KEY],
@@ -149,7 +149,7 @@ export function proposeMapping(data: unknown, relativePath: string): StarterProp
   const include = includeFor(relativePath);
 
   const lines: string[] = [
-    '# diskwise mapping file: where disks live in these definitions (RFC 9535 JSONPath selectors).',
+    '# cachewright mapping file: where disks live in these definitions (RFC 9535 JSONPath selectors).',
     `# Proposed from ${relativePath}; review each selector before relying on it.`,
     'version: 1',
     `include: [${include.map(q).join(', ')}]`,

@@ -5,11 +5,11 @@ import type { LintResult } from './linting';
 import { fileCacheTotal } from './panelView';
 
 export class CacheStatus implements vscode.Disposable {
-  private readonly item = vscode.window.createStatusBarItem('diskwise.cacheMemory', vscode.StatusBarAlignment.Right, 100);
+  private readonly item = vscode.window.createStatusBarItem('cachewright.cacheMemory', vscode.StatusBarAlignment.Right, 100);
 
   constructor() {
-    this.item.name = 'diskwise cache memory';
-    this.item.command = 'diskwise.showSizingPanel';
+    this.item.name = 'cachewright cache memory';
+    this.item.command = 'cachewright.showSizingPanel';
   }
 
   show(result: LintResult | undefined): void {
@@ -19,9 +19,9 @@ export class CacheStatus implements vscode.Disposable {
     }
     const disks = result.report.disks.length;
     const total = fileCacheTotal(result.report);
-    const problems = result.report.findings.filter((f) => !f.suppressed && f.severity !== 'info').length;
+    const problems = result.report.findings.filter((f) => !f.accepted && f.severity !== 'info').length;
     this.item.text = `$(server) ${formatSize(total)} cache${problems > 0 ? ` $(warning) ${problems}` : ''}`;
-    this.item.tooltip = `diskwise: ${formatSize(total)} of qcow2 metadata cache over ${disks} disk${disks === 1 ? '' : 's'} and their backing layers in this file. Click for the sizing panel.`;
+    this.item.tooltip = `cachewright: ${formatSize(total)} of qcow2 metadata cache over ${disks} disk${disks === 1 ? '' : 's'} and their backing layers in this file. Click for the sizing panel.`;
     this.item.show();
   }
 

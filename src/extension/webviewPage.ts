@@ -1,4 +1,4 @@
-// The HTML shell every diskwise webview uses: a strict content security policy (nothing but the
+// The HTML shell every cachewright webview uses: a strict content security policy (nothing but the
 // extension's own files, scripts only with this page's nonce), one stylesheet and one script bundle.
 import { randomBytes } from 'node:crypto';
 import * as vscode from 'vscode';

@@ -11,8 +11,8 @@ import { applyEdits } from '../model/edits';
 import { diffTexts } from '../model/incremental';
 import type { WhatIfValues } from '../../webview/protocol';
 
-type Field = 'clusterSize' | 'l2Cache' | 'l2Slice';
-const FIELDS: readonly Field[] = ['clusterSize', 'l2Cache', 'l2Slice'];
+type Field = 'clusterSize' | 'l2Cache' | 'cacheEntrySize';
+const FIELDS: readonly Field[] = ['clusterSize', 'l2Cache', 'cacheEntrySize'];
 
 export type WhatIfOutcome = { ok: true; edit: TextEdit; fields: Field[] } | { ok: false; message: string };
 

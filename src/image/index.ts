@@ -1,5 +1,5 @@
 /**
- * qcow2 image reading for diskwise: read-only, over a small byte-source interface.
+ * qcow2 image reading for cachewright: read-only, over a small byte-source interface.
  *
  * Main entry points
  * - `inspectImage(path, { followChain?, walk?, signal?, onProgress?, buckets?, maxDepth?, blockingReads? }): Promise<ImageReport>`

@@ -1,4 +1,4 @@
-// One report per layer, the plain data `diskwise inspect`, the linter and the image viewer share.
+// One report per layer, the plain data `cachewright inspect`, the linter and the image viewer share.
 import { l2FullCoverage } from '../core/sizing';
 import { visitChain, type ChainLayer, type ChainOptions } from './chain';
 import type { ImageErrorKind } from './errors';

@@ -15,16 +15,16 @@ export function setDiskFieldEdit(document: DefinitionDocument, mapping: Mapping,
   if (existing) {
     if (existing.viaAlias) return { ok: false, reason: `${field} of ${disk.name} comes from a YAML anchor shared with other disks; change it there by hand` };
     const edit = replaceValueEdit(document, existing.node, existing.raw, value, style);
-    return edit ? { ok: true, edit } : { ok: false, reason: `diskwise cannot rewrite ${field} of ${disk.name} as it is written` };
+    return edit ? { ok: true, edit } : { ok: false, reason: `cachewright cannot rewrite ${field} of ${disk.name} as it is written` };
   }
   const chain = mapping.diskFields[field]?.memberChain;
-  if (!chain || chain.length === 0) return { ok: false, reason: `the mapping file has no plain selector for ${field}, so diskwise cannot write it` };
+  if (!chain || chain.length === 0) return { ok: false, reason: `the mapping file has no plain selector for ${field}, so cachewright cannot write it` };
   // Written but unreadable: invalid-value reports it; inserting would duplicate the key.
   if (nodeAt(document, [...disk.path, ...chain])) return { ok: false, reason: `${field} of ${disk.name} is written but cannot be read; correct it first` };
   const base = nodeAt(document, disk.path);
   if (!base || base.viaAlias) return { ok: false, reason: `${disk.name} comes from a YAML anchor; change it there by hand` };
   const edit = insertFieldEdit(document, base.node, chain, value, style);
-  return edit ? { ok: true, edit } : { ok: false, reason: `diskwise cannot write ${field} of ${disk.name} in this file's layout` };
+  return edit ? { ok: true, edit } : { ok: false, reason: `cachewright cannot write ${field} of ${disk.name} in this file's layout` };
 }
 
 /** The unit style a file's sizes use, from every disk's written sizes. */
@@ -32,7 +32,7 @@ export function sizeStyleOfMachines(machines: readonly MachineSpec[]): SizeStyle
   const raws: unknown[] = [];
   for (const machine of machines) {
     for (const disk of machine.disks) {
-      for (const key of ['l2Cache', 'refcountCache', 'totalCache', 'size', 'clusterSize'] as const) {
+      for (const key of ['l2Cache', 'refcountCache', 'combinedCache', 'size', 'clusterSize'] as const) {
         const value = disk.values[key];
         if (value) raws.push(value.raw);
       }

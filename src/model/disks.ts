@@ -36,8 +36,8 @@ export interface DiskValues {
   format?: Located<string>;
   l2Cache?: Located<bigint>;
   refcountCache?: Located<bigint>;
-  totalCache?: Located<bigint>;
-  l2Slice?: Located<bigint>;
+  combinedCache?: Located<bigint>;
+  cacheEntrySize?: Located<bigint>;
   cleanupInterval?: Located<number>;
   extendedL2?: Located<boolean>;
   image?: Located<string>;
@@ -157,8 +157,8 @@ class Extractor {
       format: this.typed('format', raw('format'), (v) => (typeof v === 'string' ? { ok: true, value: v } : { ok: false, error: 'a disk format must be a string such as "qcow2"' })),
       l2Cache: size('l2Cache'),
       refcountCache: size('refcountCache'),
-      totalCache: size('totalCache'),
-      l2Slice: size('l2Slice'),
+      combinedCache: size('combinedCache'),
+      cacheEntrySize: size('cacheEntrySize'),
       cleanupInterval: this.typed('cleanupInterval', raw('cleanupInterval'), parseInterval),
       extendedL2: this.typed('extendedL2', raw('extendedL2'), (v) => {
         if (typeof v === 'boolean') return { ok: true, value: v };
@@ -182,9 +182,9 @@ class Extractor {
       const check = checkExtendedL2(cluster, true);
       if (!check.ok) this.problem('extendedL2', values.extendedL2, check.error), (values.extendedL2 = undefined);
     }
-    if (values.l2Slice) {
-      const check = checkSlice(values.l2Slice.value, cluster);
-      if (!check.ok) this.problem('l2Slice', values.l2Slice, check.error), (values.l2Slice = undefined);
+    if (values.cacheEntrySize) {
+      const check = checkSlice(values.cacheEntrySize.value, cluster);
+      if (!check.ok) this.problem('cacheEntrySize', values.cacheEntrySize, check.error), (values.cacheEntrySize = undefined);
     }
     if (values.size && values.size.value === 0n) this.problem('size', values.size, 'a virtual size of 0 bytes has nothing to cache'), (values.size = undefined);
     const format = values.format?.value ?? this.mapping.assume.format;

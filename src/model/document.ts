@@ -72,7 +72,7 @@ export function readDefinition(path: string, text: string, format: DocumentForma
   const tree = parseDocument(text, { schema: format === 'json' ? 'json' : 'core', merge: format !== 'json', prettyErrors: false, uniqueKeys: true, strict: true });
   const problems: DocumentProblem[] = tree.errors.map((error) => ({
     message: error.code === 'MULTIPLE_DOCS'
-      ? 'this file holds more than one YAML document; diskwise reads one definition document per file (split it, or drop the extra "---")'
+      ? 'this file holds more than one YAML document; cachewright reads one definition document per file (split it, or drop the extra "---")'
       : firstLine(error.message),
     range: lines.range(Math.min(error.pos[0], text.length), Math.min(error.pos[1], text.length)),
   }));

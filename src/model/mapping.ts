@@ -14,7 +14,7 @@ import { compileSelector, parseJsonPointer, toJsonPointer, valueAtPath, type Pat
 import { DISK_FIELDS, MACHINE_FIELDS, mappingSchema, type DiskField, type MachineField, type MappingFile } from './mappingSchema';
 import type { Severity } from '../core/results';
 
-export const MAPPING_FILE_NAMES = ['diskwise.yaml', 'diskwise.yml', 'diskwise.json'] as const;
+export const MAPPING_FILE_NAMES = ['cachewright.yaml', 'cachewright.yml', 'cachewright.json'] as const;
 export const DEFAULT_INCLUDE = ['**/*.yaml', '**/*.yml', '**/*.json'];
 const ALWAYS_EXCLUDED = ['**/node_modules/**', '**/.git/**'];
 
@@ -31,7 +31,7 @@ export interface Assumptions {
   refcountBits: bigint;
 }
 
-export interface IgnoreEntry {
+export interface AcceptEntry {
   rule: string;
   pointer: string;
   /** Absolute path of the definition file, or undefined for every file. */
@@ -51,7 +51,7 @@ export interface Mapping {
   profile: ReturnType<typeof driverProfile>;
   cacheShareOfMemory: number;
   severities: Record<string, Severity | 'off'>;
-  ignore: IgnoreEntry[];
+  accept: AcceptEntry[];
   /** Whether a definition file (absolute path) is one this mapping lints. */
   includes(absolutePath: string): boolean;
 }
@@ -203,14 +203,14 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
     for (const rule of Object.keys(file.rules ?? {})) {
       if (!known.has(rule)) problems.push({ message: `rules: unknown rule id "${rule}"`, ...locate(doc, ['rules'], rule) });
     }
-    (file.ignore ?? []).forEach((entry, i) => {
-      if (!known.has(entry.rule)) problems.push({ message: `ignore[${i}].rule: unknown rule id "${entry.rule}"`, ...at('ignore', i, 'rule') });
+    (file.accept ?? []).forEach((entry, i) => {
+      if (!known.has(entry.rule)) problems.push({ message: `accept[${i}].rule: unknown rule id "${entry.rule}"`, ...at('accept', i, 'rule') });
     });
   }
   const dir = nodePath.dirname(nodePath.resolve(path));
-  (file.ignore ?? []).forEach((entry, i) => {
+  (file.accept ?? []).forEach((entry, i) => {
     const pointer = parseJsonPointer(entry.pointer);
-    if (!pointer.ok) problems.push({ message: `ignore[${i}].pointer: ${pointer.error}`, ...at('ignore', i, 'pointer') });
+    if (!pointer.ok) problems.push({ message: `accept[${i}].pointer: ${pointer.error}`, ...at('accept', i, 'pointer') });
   });
   if (problems.length > 0 || !disks) return { problems: byPosition(problems) };
 
@@ -239,7 +239,7 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
     profile: driverProfile(generation, platform),
     cacheShareOfMemory: file.budget?.cacheShareOfMemory ?? 0.05,
     severities: file.rules ?? {},
-    ignore: (file.ignore ?? []).map((entry) => ({
+    accept: (file.accept ?? []).map((entry) => ({
       rule: entry.rule,
       pointer: entry.pointer,
       file: entry.file === undefined ? undefined : nodePath.resolve(dir, entry.file),

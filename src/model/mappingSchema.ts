@@ -9,7 +9,7 @@ const size = z
   .describe('Bytes, or a number with a unit: K, M, G, T, P (or Ki.., KiB..: powers of 1024), kB, MB, GB, TB (powers of 1000)');
 
 export const DISK_FIELDS = [
-  'name', 'size', 'clusterSize', 'format', 'l2Cache', 'refcountCache', 'totalCache', 'l2Slice',
+  'name', 'size', 'clusterSize', 'format', 'l2Cache', 'refcountCache', 'combinedCache', 'cacheEntrySize',
   'cleanupInterval', 'extendedL2', 'image', 'backing', 'requestSize', 'pattern',
 ] as const;
 export type DiskField = (typeof DISK_FIELDS)[number];
@@ -23,8 +23,8 @@ const diskFieldDescriptions: Record<DiskField, string> = {
   format: 'Disk format; only qcow2 disks are sized',
   l2Cache: 'Configured L2 cache size',
   refcountCache: 'Configured refcount cache size',
-  totalCache: 'Configured combined (L2 + refcount) cache size',
-  l2Slice: 'L2 cache entry size (slice)',
+  combinedCache: 'Configured combined (L2 + refcount) cache size',
+  cacheEntrySize: 'L2 cache entry size (slice)',
   cleanupInterval: 'Idle cache cleanup interval (seconds, or 90s, 10m, 1h; 0 is off)',
   extendedL2: 'Whether the image uses extended L2 entries (subclusters)',
   image: 'Path of the image file, relative to the definition file',
@@ -72,7 +72,7 @@ export const mappingSchema = z
       .strict()
       .optional(),
     rules: z.record(z.string(), z.enum(SEVERITY_SETTINGS)).optional().describe('Severity per rule id, or off'),
-    ignore: z
+    accept: z
       .array(
         z
           .object({
@@ -93,6 +93,6 @@ export type MappingFile = z.infer<typeof mappingSchema>;
 export function mappingJsonSchema(): Record<string, unknown> {
   return {
     ...z.toJSONSchema(mappingSchema, { target: 'draft-7' }),
-    title: 'diskwise mapping file',
+    title: 'cachewright mapping file',
   } as Record<string, unknown>;
 }

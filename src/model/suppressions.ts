@@ -1,4 +1,4 @@
-// Suppression comments in YAML: `# diskwise-accept RULE[, RULE...]: REASON` on the line above a disk
+// Suppression comments in YAML: `# cachewright-accept RULE[, RULE...]: REASON` on the line above a disk
 // or machine (or at the end of its first line) silences those rules for it. A reason is required:
 // suppressions are reviewed exceptions, and the reason travels into JSON and SARIF output.
 import type { SourceRange } from '../core/results';
@@ -19,7 +19,7 @@ export interface SuppressionProblem {
   range: SourceRange;
 }
 
-const MARKER = /#\s*diskwise-accept\b(.*)$/;
+const MARKER = /#\s*cachewright-accept\b(.*)$/;
 
 /** Whether an offset falls inside a scalar value (a quoted string can hold a "#"). */
 function scalarRanges(document: DefinitionDocument): (offset: number) => boolean {
@@ -35,7 +35,7 @@ function scalarRanges(document: DefinitionDocument): (offset: number) => boolean
 export function readSuppressions(document: DefinitionDocument, knownRules: ReadonlySet<string>): { comments: SuppressionComment[]; problems: SuppressionProblem[] } {
   const comments: SuppressionComment[] = [];
   const problems: SuppressionProblem[] = [];
-  if (document.format !== 'yaml' || !document.text.includes('diskwise-accept')) return { comments, problems };
+  if (document.format !== 'yaml' || !document.text.includes('cachewright-accept')) return { comments, problems };
   const { lines } = document;
   const inScalar = scalarRanges(document);
   for (let line = 1; line <= lines.lineCount; line++) {
@@ -43,7 +43,7 @@ export function readSuppressions(document: DefinitionDocument, knownRules: Reado
     const match = MARKER.exec(text);
     if (!match) continue;
     const start = lines.lineStart(line) + (match.index ?? 0);
-    if (inScalar(start)) continue; // "# diskwise-accept" inside a quoted value is data, not a comment
+    if (inScalar(start)) continue; // "# cachewright-accept" inside a quoted value is data, not a comment
     const range = lines.range(start, lines.lineStart(line) + text.length);
     const body = (match[1] ?? '').trim();
     const colon = body.indexOf(':');
@@ -51,7 +51,7 @@ export function readSuppressions(document: DefinitionDocument, knownRules: Reado
     const reason = colon === -1 ? '' : body.slice(colon + 1).trim();
     const rules = ruleText.split(/[\s,]+/).filter(Boolean);
     if (rules.length === 0) {
-      problems.push({ message: 'this suppression names no rule; write "# diskwise-accept RULE: REASON"', range });
+      problems.push({ message: 'this suppression names no rule; write "# cachewright-accept RULE: REASON"', range });
       continue;
     }
     const unknown = rules.filter((r) => !knownRules.has(r));
@@ -60,7 +60,7 @@ export function readSuppressions(document: DefinitionDocument, knownRules: Reado
       continue;
     }
     if (!reason) {
-      problems.push({ message: `this suppression of ${rules.join(', ')} gives no reason; write "# diskwise-accept ${rules.join(', ')}: REASON"`, range });
+      problems.push({ message: `this suppression of ${rules.join(', ')} gives no reason; write "# cachewright-accept ${rules.join(', ')}: REASON"`, range });
       continue;
     }
     // A comment alone on its line applies to the next line with content; a trailing one to its own line.

@@ -13,7 +13,7 @@ export const cacheNotAligned: Rule = {
     const checks: [SizeField, bigint, string][] = [
       ['l2Cache', top.entrySize, top.entrySize === cluster ? 'the cluster size' : 'the cache entry size'],
       ['refcountCache', cluster, 'the cluster size'],
-      ['totalCache', cluster, 'the cluster size'],
+      ['combinedCache', cluster, 'the cluster size'],
     ];
     for (const [field, unit, unitName] of checks) {
       const value = disk.values[field];

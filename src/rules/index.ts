@@ -9,7 +9,7 @@ import { l2CacheOversized } from './l2-cache-oversized';
 import { l2CacheUndersized } from './l2-cache-undersized';
 import { machineCacheBudget } from './machine-cache-budget';
 import { parseError } from './parse-error';
-import { sliceSizeSuggested } from './slice-size-suggested';
+import { cacheEntrySizeSuggested } from './cache-entry-size-suggested';
 import { backingChainCycle } from './backing-chain-cycle';
 import { imageMismatch } from './image-mismatch';
 import { imageUnreadable } from './image-unreadable';
@@ -24,7 +24,7 @@ export const RULES: readonly Rule[] = [
   l2CacheOversized,
   clusterCowAmplification,
   cleanupIntervalMissing,
-  sliceSizeSuggested,
+  cacheEntrySizeSuggested,
   machineCacheBudget,
   imageMismatch,
   imageUnreadable,

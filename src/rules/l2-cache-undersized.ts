@@ -30,10 +30,10 @@ export const l2CacheUndersized: Rule = {
     const need = sizing.recommended.l2Cache;
     const where = top.l2Source === 'default' ? 'the driver default L2 cache' : top.l2Source === 'combined' ? 'the L2 share of the combined cache' : 'the L2 cache';
     const message = `${where} of ${size(top.l2)} maps ${size(top.l2Covered)} of this ${size(virtualSize)} disk (${share(top.l2Covered, virtualSize)}); full coverage needs ${size(need)} (${size(need - top.l2)} more memory per open disk).${prediction(top, pattern, requestSize)}`;
-    const { totalCache, l2Cache } = disk.values;
-    if (totalCache && !l2Cache) {
+    const { combinedCache, l2Cache } = disk.values;
+    if (combinedCache && !l2Cache) {
       const total = need + (disk.values.refcountCache?.value ?? minimumRefcountCache(clusterSize));
-      report({ at: 'totalCache', message, fix: fix.setSize('totalCache', total, `Set the combined cache to ${size(total)}`) });
+      report({ at: 'combinedCache', message, fix: fix.setSize('combinedCache', total, `Set the combined cache to ${size(total)}`) });
       return;
     }
     report({ at: l2Cache ? 'l2Cache' : undefined, message, fix: fix.setSize('l2Cache', need, `Set the L2 cache to ${size(need)} (full coverage)`) });

@@ -18,7 +18,7 @@ export interface RuleMeta {
   docs: string;
 }
 
-export type SizeField = 'l2Cache' | 'refcountCache' | 'totalCache' | 'l2Slice';
+export type SizeField = 'l2Cache' | 'refcountCache' | 'combinedCache' | 'cacheEntrySize';
 
 export interface FixHelpers {
   /** Set a size field: replace the value where it is written, or insert the key where it is absent. */

@@ -48,7 +48,7 @@ function definition(disks: number): string {
 
 function main(): void {
   const dir = path.join(process.cwd(), 'bench-workspace');
-  const loaded = loadMapping(MAPPING, path.join(dir, 'diskwise.yaml'));
+  const loaded = loadMapping(MAPPING, path.join(dir, 'cachewright.yaml'));
   if (!loaded.mapping) throw new Error(`mapping: ${loaded.problems.map((p) => p.message).join('; ')}`);
   const mapping = loaded.mapping;
   const file = path.join(dir, 'fleet.yaml');

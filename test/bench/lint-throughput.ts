@@ -1,4 +1,4 @@
-// Benchmark (issue 3): `diskwise lint --format json` over 5,000 generated definition files with 4
+// Benchmark (issue 3): `cachewright lint --format json` over 5,000 generated definition files with 4
 // disks each, against the floor: a node process that only reads the same files and parses them with
 // `yaml`. Prints both times and their ratio (target: at most 1.3x); asserts nothing (tests never
 // assert on wall-clock time). Needs the built CLI (npm run build).
@@ -63,8 +63,8 @@ function definition(index: number): string {
 }
 
 function generate(): string {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'diskwise-bench-'));
-  fs.writeFileSync(path.join(dir, 'diskwise.yaml'), MAPPING);
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cachewright-bench-'));
+  fs.writeFileSync(path.join(dir, 'cachewright.yaml'), MAPPING);
   for (let i = 0; i < FILES; i++) {
     const sub = path.join(dir, 'defs', `group${Math.floor(i / 500)}`);
     if (i % 500 === 0) fs.mkdirSync(sub, { recursive: true });
@@ -135,14 +135,14 @@ function main(): void {
     const floor = timeRun('floor', [floorScript, dir], dir, env);
     const lint = timeRun('lint', [CLI, 'lint', '--format', 'json'], dir, env);
     // the floor runs on one thread: the same on one thread shows the engine's own cost
-    const single = timeRun('lint', [CLI, 'lint', '--format', 'json'], dir, { ...env, DISKWISE_JOBS: '1' });
+    const single = timeRun('lint', [CLI, 'lint', '--format', 'json'], dir, { ...env, CACHEWRIGHT_JOBS: '1' });
     const wall = (s: Sample[]) => median(s.map((x) => x.wallMs));
     const cpu = (s: Sample[]) => median(s.map((x) => x.cpuMs));
     const ratio = wall(lint) / wall(floor);
     console.log(`${FILES} files x 4 disks, median of ${RUNS} runs           wall       cpu`);
     console.log(`  floor (read + yaml parse)     ${wall(floor).toFixed(0).padStart(8)} ms ${cpu(floor).toFixed(0).padStart(6)} ms`);
-    console.log(`  diskwise lint --format json   ${wall(lint).toFixed(0).padStart(8)} ms ${cpu(lint).toFixed(0).padStart(6)} ms   (${os.availableParallelism()} cores)`);
-    console.log(`  the same, DISKWISE_JOBS=1     ${wall(single).toFixed(0).padStart(8)} ms ${cpu(single).toFixed(0).padStart(6)} ms`);
+    console.log(`  cachewright lint --format json   ${wall(lint).toFixed(0).padStart(8)} ms ${cpu(lint).toFixed(0).padStart(6)} ms   (${os.availableParallelism()} cores)`);
+    console.log(`  the same, CACHEWRIGHT_JOBS=1     ${wall(single).toFixed(0).padStart(8)} ms ${cpu(single).toFixed(0).padStart(6)} ms`);
     console.log(`  ratio ${ratio.toFixed(2)}x wall (target <= ${TARGET_RATIO}x): ${ratio <= TARGET_RATIO ? 'within target' : 'over target'}`);
     console.log(`  one thread: ${(wall(single) / wall(floor)).toFixed(2)}x wall, ${(cpu(single) / cpu(floor)).toFixed(2)}x cpu`);
   } finally {

@@ -10,7 +10,7 @@ export const SYSTEM_PYTHON = '/usr/bin/python3';
 export const LIBQCOW_PACKAGES = 'python3-libqcow';
 
 export function tempFolder(prefix: string): { dir: string; file(name: string): string; remove(): void } {
-  const dir = mkdtempSync(join(tmpdir(), `diskwise-${prefix}-`));
+  const dir = mkdtempSync(join(tmpdir(), `cachewright-${prefix}-`));
   return { dir, file: (name) => join(dir, name), remove: () => rmSync(dir, { recursive: true, force: true }) };
 }
 

@@ -1,4 +1,4 @@
-// `diskwise inspect` per CONTRACTS.md §2 and §3: the JSON fields, exact integer byte counts, the
+// `cachewright inspect` per CONTRACTS.md §2 and §3: the JSON fields, exact integer byte counts, the
 // text report with its allocation bar, and exit codes (2 for any failed image or a usage error).
 import { strict as assert } from 'node:assert';
 import { writeFileSync } from 'node:fs';
@@ -17,7 +17,7 @@ async function run(args: string[], cwd?: string): Promise<{ code: number; out: s
 
 const CONTRACT_FIELDS = ['path', 'version', 'virtualSize', 'clusterSize', 'extendedL2', 'refcountBits', 'l1Entries', 'l2TablesAllocated', 'dataClustersAllocated', 'l2FullCoverage', 'l2AllocatedCoverage', 'backing', 'dirty', 'chain'];
 
-describe('diskwise inspect', function () {
+describe('cachewright inspect', function () {
   this.timeout(60000);
   const folder = tempFolder('inspect');
   after(() => folder.remove());
@@ -100,11 +100,11 @@ describe('diskwise inspect', function () {
     for (const args of [[], ['--bogus', 'x'], ['x', '--format', 'yaml'], ['x', '--format']]) {
       const { code, err, out } = await run(args);
       assert.equal(code, 2, args.join(' '));
-      assert.match(err, /^diskwise inspect: .*\n\nusage: diskwise inspect IMAGE/);
+      assert.match(err, /^cachewright inspect: .*\n\nusage: cachewright inspect IMAGE/);
       assert.equal(out, '');
     }
     const help = await run(['--help']);
     assert.equal(help.code, 0);
-    assert.match(help.out, /^usage: diskwise inspect/);
+    assert.match(help.out, /^usage: cachewright inspect/);
   });
 });

@@ -156,7 +156,7 @@ describe('malformed images', function () {
       const result = run(path);
       assert.equal(result.errorKind, 'malformed');
       assert.ok(result.maxRssKiB < LIMIT_KIB, `maxRSS ${result.maxRssKiB} KiB`);
-      if (process.env.DISKWISE_SHOW_RSS) console.log(`      maxRSS ${Math.round(result.maxRssKiB / 1024)} MiB`);
+      if (process.env.CACHEWRIGHT_SHOW_RSS) console.log(`      maxRSS ${Math.round(result.maxRssKiB / 1024)} MiB`);
     });
 
     it('a real 1 TiB sparse file whose header claims 32 PiB and a 512 MiB L1 table: streamed, not loaded', () => {
@@ -187,7 +187,7 @@ describe('malformed images', function () {
       assert.equal(result.errorKind, null);
       assert.equal(result.l2, 1);
       assert.ok(result.maxRssKiB < LIMIT_KIB, `maxRSS ${result.maxRssKiB} KiB`);
-      if (process.env.DISKWISE_SHOW_RSS) console.log(`      maxRSS ${Math.round(result.maxRssKiB / 1024)} MiB`);
+      if (process.env.CACHEWRIGHT_SHOW_RSS) console.log(`      maxRSS ${Math.round(result.maxRssKiB / 1024)} MiB`);
     });
   });
 });

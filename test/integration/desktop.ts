@@ -8,7 +8,7 @@ import { runTests } from '@vscode/test-electron';
 
 async function main(): Promise<void> {
   const root = path.resolve(__dirname, '..', '..');
-  const workspace = mkdtempSync(path.join(os.tmpdir(), 'diskwise-desktop-'));
+  const workspace = mkdtempSync(path.join(os.tmpdir(), 'cachewright-desktop-'));
   const demo = path.join(root, 'examples');
   if (existsSync(demo)) cpSync(demo, workspace, { recursive: true });
   await runTests({

@@ -65,7 +65,7 @@ fi
 
 cd "$CACHE"
 rm -rf node_modules package-lock.json "$MARKER"
-[ -f package.json ] || printf '{\n  "name": "diskwise-test-host",\n  "private": true\n}\n' > package.json
+[ -f package.json ] || printf '{\n  "name": "cachewright-test-host",\n  "private": true\n}\n' > package.json
 echo "setup-code-server: npm install code-server@$CODE_SERVER_VERSION (about a minute)"
 # Root with no TTY: the postinstall refuses root without unsafe-perm, and a nested npx would ask.
 # code-server's postinstall runs a nested `npm install` in its bundled editor, whose native modules

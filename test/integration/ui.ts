@@ -224,7 +224,7 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   // Close the bottom panel to give editor and sizing panel the room.
   await focusEditor(page);
   await page.keyboard.press('Control+J');
-  await runCommand(page, 'diskwise: Show the cache sizing panel');
+  await runCommand(page, 'cachewright: Show the cache sizing panel');
   const frame = await panelFrame(page);
   await waitUntil('the disk cards', async () => ((await frame.locator('article.disk').count()) >= 4 ? true : undefined));
   const cards = await frame.locator('article.disk').count();
@@ -320,10 +320,10 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   const web = { machine: 'tern-web-02', name: 'root' };
   const webCard = frame.locator('section.machine[data-machine="tern-web-02"] article.disk[data-disk="root"]');
   await webCard.locator('[data-action="whatif"]').click();
-  const slicePick = webCard.locator('vscode-dropdown[data-control="l2Slice"]');
+  const slicePick = webCard.locator('vscode-dropdown[data-control="cacheEntrySize"]');
   await waitUntil('the slice dropdown', async () => ((await slicePick.count()) > 0 ? true : undefined));
   await slicePick.click();
-  await webCard.locator('vscode-dropdown[data-control="l2Slice"] vscode-option', { hasText: /^\s*4 KiB\s*$/ }).click();
+  await webCard.locator('vscode-dropdown[data-control="cacheEntrySize"] vscode-option', { hasText: /^\s*4 KiB\s*$/ }).click();
   const sliced = await waitUntil('the sliced full coverage', async () => {
     const value = await cellValue(frame, web, 'l2FullCoverage');
     return value === fullCoverage(20n * GiB, 256n * KiB).toString() ? undefined : value;
@@ -377,7 +377,7 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   await frame.locator('article.disk[data-disk="archive"] figure.curve').scrollIntoViewIfNeeded().catch(() => undefined);
 
   checks.check('the panel loads under its content security policy with no violation', cspViolations.length === 0, cspViolations.slice(0, 3).join(' | '));
-  const status = await page.locator('.statusbar-item[id="diskwise-dev.diskwise.diskwise.cacheMemory"], .statusbar-item:has-text("cache")').first().textContent().catch(() => null);
+  const status = await page.locator('.statusbar-item[id="cachewright.cachewright.cachewright.cacheMemory"], .statusbar-item:has-text("cache")').first().textContent().catch(() => null);
   checks.check('the status bar shows the file\'s cache memory', status !== null && /MiB cache/.test(status), status ?? 'no item');
 
   // Themes: the panel follows the editor's theme, picked the way a person does.
@@ -421,7 +421,7 @@ export async function runInstalledTest(server: CodeServer, browser: Browser, dir
   await openFile(page, 'ticketing.yaml');
   const squiggles = await waitUntil('squiggles', async () => ((await page.locator('.squiggly-warning').count()) > 0 ? true : undefined), 20_000).catch(() => false);
   checks.check('the installed package lints the demo (squiggles)', squiggles === true);
-  await runCommand(page, 'diskwise: Show the cache sizing panel');
+  await runCommand(page, 'cachewright: Show the cache sizing panel');
   const frame = await panelFrame(page);
   const cards = await waitUntil('the disk cards', async () => {
     const count = await frame.locator('article.disk').count();

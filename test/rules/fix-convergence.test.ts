@@ -65,12 +65,12 @@ describe('fixes converge', () => {
         const report = lintCase({ text, mapping, file });
         assert.equal(report.parsed, true, `pass ${pass} left a file that does not parse:\n${text}`);
         assert.ok(report.findings.filter((f) => f.rule === 'invalid-value').length <= invalidBefore, `pass ${pass} made a value unreadable:\n${text}`);
-        const fixable = report.findings.filter((f) => f.fix && !f.suppressed);
+        const fixable = report.findings.filter((f) => f.fix && !f.accepted);
         if (fixable.length === 0) return;
         const { chosen } = nonOverlapping(fixable.map((f) => f.fix as NonNullable<typeof f.fix>));
         text = applyChecked(text, chosen.flatMap((f) => f.edits));
       }
-      const left = lintCase({ text, mapping, file }).findings.filter((f) => f.fix && !f.suppressed);
+      const left = lintCase({ text, mapping, file }).findings.filter((f) => f.fix && !f.accepted);
       assert.deepEqual(left.map((f) => `${f.rule} ${f.range.line}:${f.range.column} ${f.message}`), [], `still fixable after 4 passes:\n${original}\n---\n${text}`);
     }), { numRuns: 120 });
   });

@@ -26,8 +26,8 @@ export const BASE_MAPPING: MappingObject = {
       format: '$.format',
       l2Cache: '$.cache.l2',
       refcountCache: '$.cache.refcount',
-      totalCache: '$.cache.total',
-      l2Slice: '$.cache.slice',
+      combinedCache: '$.cache.total',
+      cacheEntrySize: '$.cache.slice',
       cleanupInterval: '$.cache.cleanup',
       extendedL2: '$.extendedL2',
       image: '$.image',
@@ -86,7 +86,7 @@ export function mergeMapping(base: MappingObject, overrides: MappingObject = {})
 
 export function mappingFor(overrides?: MappingObject): Mapping {
   const text = JSON.stringify(mergeMapping(BASE_MAPPING, overrides), null, 2);
-  const load = loadMapping(text, `${DEFINITION_DIR}/../diskwise.json`);
+  const load = loadMapping(text, `${DEFINITION_DIR}/../cachewright.json`);
   if (!load.mapping) assert.fail(`the test mapping does not load: ${load.problems.map((p) => p.message).join('; ')}`);
   return load.mapping;
 }

@@ -1,5 +1,5 @@
 // Real qcow2 images for the image rules' tables: written by the test writer (built from [SPEC]) into
-// a temporary folder beside the definition, then read the way `diskwise lint` reads them.
+// a temporary folder beside the definition, then read the way `cachewright lint` reads them.
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import * as path from 'node:path';
@@ -11,7 +11,7 @@ export const GiB = 1n << 30n;
 export const TiB = 1n << 40n;
 
 export class ImageFolder {
-  readonly dir = mkdtempSync(path.join(tmpdir(), 'diskwise-rule-images-'));
+  readonly dir = mkdtempSync(path.join(tmpdir(), 'cachewright-rule-images-'));
   private readonly facts = new ImageFacts();
   private readonly names: string[] = [];
 

@@ -11,7 +11,7 @@ describe('severities', () => {
   it(`${CONTRACT} the default severities are the contract's`, () => {
     const expected: Record<string, string> = {
       'invalid-value': 'error', 'cache-options-conflict': 'error', 'cache-not-aligned': 'warning', 'l2-cache-undersized': 'warning',
-      'l2-cache-oversized': 'info', 'cluster-cow-amplification': 'warning', 'cleanup-interval-missing': 'warning', 'slice-size-suggested': 'info',
+      'l2-cache-oversized': 'info', 'cluster-cow-amplification': 'warning', 'cleanup-interval-missing': 'warning', 'cache-entry-size-suggested': 'info',
       'machine-cache-budget': 'warning', 'image-mismatch': 'error', 'image-unreadable': 'error', 'backing-chain-cycle': 'error',
     };
     for (const [id, severity] of Object.entries(expected)) assert.equal(RULES.find((r) => r.id === id)?.severity, severity, id);
@@ -24,9 +24,9 @@ describe('severities', () => {
   });
   it('editor settings win over the mapping file', () => {
     const mapping = mappingFor({ rules: { 'l2-cache-undersized': 'error' } });
-    const report = lintDocument({ path: pathFor(TEXT), text: TEXT }, mapping, { severities: { 'l2-cache-undersized': 'info', 'slice-size-suggested': 'off' } });
+    const report = lintDocument({ path: pathFor(TEXT), text: TEXT }, mapping, { severities: { 'l2-cache-undersized': 'info', 'cache-entry-size-suggested': 'off' } });
     assert.deepEqual(findingsOf(report, 'l2-cache-undersized').map((f) => f.severity), ['info']);
-    assert.deepEqual(findingsOf(report, 'slice-size-suggested'), []);
+    assert.deepEqual(findingsOf(report, 'cache-entry-size-suggested'), []);
   });
   it('a rule turned off gives no finding even where its fix would apply', () => {
     const report = lintCase({ text: oneDisk('size: 8G\ncache: { l2: 1000K }'), mapping: { rules: { 'cache-not-aligned': 'off' } } });

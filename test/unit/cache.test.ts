@@ -24,26 +24,26 @@ const twentyGiB = disk(20n * GiB);
 describe('cache: at most two of the three knobs [CACHE]', () => {
   it(`${CACHE} L2, refcount and combined all set is a conflict, with a message saying so`, () => {
     assertErrorMentions(
-      checkCacheOptions({ l2Cache: MiB, refcountCache: MiB, totalCache: 4n * MiB }),
+      checkCacheOptions({ l2Cache: MiB, refcountCache: MiB, combinedCache: 4n * MiB }),
       'all set', 'at most two',
     );
   });
   it(`${CACHE} any two, any one or none are accepted`, () => {
     const accepted: CacheSettings[] = [
-      {}, { l2Cache: MiB }, { refcountCache: MiB }, { totalCache: MiB },
-      { l2Cache: MiB, refcountCache: MiB }, { l2Cache: MiB, totalCache: 4n * MiB }, { refcountCache: MiB, totalCache: 4n * MiB },
+      {}, { l2Cache: MiB }, { refcountCache: MiB }, { combinedCache: MiB },
+      { l2Cache: MiB, refcountCache: MiB }, { l2Cache: MiB, combinedCache: 4n * MiB }, { refcountCache: MiB, combinedCache: 4n * MiB },
     ];
     for (const settings of accepted) assert.deepEqual(valueOf(checkCacheOptions(settings)), settings);
   });
   it(`${CACHE} a part larger than the combined size is refused`, () => {
-    assertErrorMentions(checkCacheOptions({ l2Cache: 8n * MiB, totalCache: 4n * MiB }), 'L2 cache is larger than the combined');
-    assertErrorMentions(checkCacheOptions({ refcountCache: 8n * MiB, totalCache: 4n * MiB }), 'refcount cache is larger than the combined');
+    assertErrorMentions(checkCacheOptions({ l2Cache: 8n * MiB, combinedCache: 4n * MiB }), 'L2 cache is larger than the combined');
+    assertErrorMentions(checkCacheOptions({ refcountCache: 8n * MiB, combinedCache: 4n * MiB }), 'refcount cache is larger than the combined');
   });
 });
 
 describe('cache: the combined-cache split [CACHE]', () => {
   it(`${CACHE} only the combined size: L2 takes what it can use (full coverage), the rest goes to refcount`, () => {
-    const c = layerCache(twentyGiB, { totalCache: 4n * MiB }, linux);
+    const c = layerCache(twentyGiB, { combinedCache: 4n * MiB }, linux);
     assert.equal(c.l2, 2560n * KiB);
     assert.equal(c.refcount, 1536n * KiB);
     assert.equal(c.l2Source, 'combined');
@@ -51,24 +51,24 @@ describe('cache: the combined-cache split [CACHE]', () => {
     assert.equal(c.l2Covered, 20n * GiB);
   });
   it(`${CACHE} only the combined size, too small for full coverage: refcount keeps its minimum, L2 the rest`, () => {
-    const c = layerCache(twentyGiB, { totalCache: 2n * MiB }, linux);
+    const c = layerCache(twentyGiB, { combinedCache: 2n * MiB }, linux);
     assert.equal(c.refcount, 256n * KiB);
     assert.equal(c.l2, 1792n * KiB);
     assert.equal(c.l2 + c.refcount, 2n * MiB);
     // exactly full coverage + minimum refcount: both branches agree
-    const edge = layerCache(twentyGiB, { totalCache: 2560n * KiB + 256n * KiB }, linux);
+    const edge = layerCache(twentyGiB, { combinedCache: 2560n * KiB + 256n * KiB }, linux);
     assert.deepEqual([edge.l2, edge.refcount], [2560n * KiB, 256n * KiB]);
   });
   it(`${CACHE} combined + L2: refcount gets the difference`, () => {
-    const c = layerCache(twentyGiB, { totalCache: 4n * MiB, l2Cache: MiB }, linux);
+    const c = layerCache(twentyGiB, { combinedCache: 4n * MiB, l2Cache: MiB }, linux);
     assert.deepEqual([c.l2, c.l2Source, c.refcount, c.refcountSource], [MiB, 'configured', 3n * MiB, 'combined']);
   });
   it(`${CACHE} combined + refcount: L2 gets the difference`, () => {
-    const c = layerCache(twentyGiB, { totalCache: 3n * MiB, refcountCache: MiB }, linux);
+    const c = layerCache(twentyGiB, { combinedCache: 3n * MiB, refcountCache: MiB }, linux);
     assert.deepEqual([c.l2, c.l2Source, c.refcount, c.refcountSource], [2n * MiB, 'combined', MiB, 'configured']);
   });
   it(`${CACHE} all three: a conflict for checkCacheOptions; layerCache still gives numbers (L2 and refcount win)`, () => {
-    const settings = { l2Cache: MiB, refcountCache: 512n * KiB, totalCache: 8n * MiB };
+    const settings = { l2Cache: MiB, refcountCache: 512n * KiB, combinedCache: 8n * MiB };
     assert.equal(checkCacheOptions(settings).ok, false);
     const c = layerCache(twentyGiB, settings, linux);
     assert.deepEqual([c.l2, c.refcount], [MiB, 512n * KiB]);
@@ -80,7 +80,7 @@ describe('cache: the combined-cache split [CACHE]', () => {
       (virtual, bits, clusters) => {
         const cluster = 1n << BigInt(bits);
         const total = clusters * cluster; // at least 2 L2 entries + 4 refcount clusters
-        const c = layerCache(disk(virtual, cluster), { totalCache: total }, linux);
+        const c = layerCache(disk(virtual, cluster), { combinedCache: total }, linux);
         const usable = l2FullCoverage(virtual, cluster, false) > minimumL2Cache(cluster)
           ? l2FullCoverage(virtual, cluster, false) : minimumL2Cache(cluster);
         const l2Want = total - minimumRefcountCache(cluster);
@@ -97,7 +97,7 @@ describe('cache: the combined-cache split [CACHE]', () => {
         const cluster = 1n << BigInt(bits);
         const slice = 1n << BigInt(Math.max(9, bits - sliceShift));
         const total = clusters * cluster;
-        const c = layerCache(disk(virtual, cluster), { totalCache: total, entrySize: slice }, linux);
+        const c = layerCache(disk(virtual, cluster), { combinedCache: total, entrySize: slice }, linux);
         assert.equal(c.l2 % slice, 0n);
         assert.equal(c.refcount % cluster, 0n, 'the refcount cache always uses whole clusters');
         assert.ok(c.l2 + c.refcount >= total && c.l2 + c.refcount < total + cluster);

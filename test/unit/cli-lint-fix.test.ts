@@ -1,4 +1,4 @@
-// `diskwise lint --fix` on real files in throwaway folders: it changes the bytes it means to and no
+// `cachewright lint --fix` on real files in throwaway folders: it changes the bytes it means to and no
 // others (YAML and JSON, LF and CRLF, with and without a UTF-8 byte order mark), lands fixes that
 // touch the same map over several passes, writes atomically, and leaves alone what it must.
 // Expected values follow FACTS.md [CACHE]: full coverage = ceil(V / cluster) * 8 bytes, rounded up
@@ -131,12 +131,12 @@ function assertOnlyEdited(original: string, fixed: string, edits: readonly { off
   assert.equal(fixed.slice(at), original.slice(from), 'bytes after the last edit changed');
 }
 
-describe('diskwise lint --fix', () => {
+describe('cachewright lint --fix', () => {
   for (const variant of VARIANTS) {
     it(`${CACHE} YAML and JSON, ${variant.name}: the fixed bytes are exactly the expected ones, in several passes`, async () => {
       const yamlBefore = shape(YAML_BEFORE, variant.eol, variant.bom);
       const jsonBefore = shape(JSON_BEFORE, variant.eol, variant.bom);
-      const dir = makeWorkspace({ 'diskwise.yaml': LEGACY_MAPPING, 'block.yaml': yamlBefore, 'doc.json': jsonBefore });
+      const dir = makeWorkspace({ 'cachewright.yaml': LEGACY_MAPPING, 'block.yaml': yamlBefore, 'doc.json': jsonBefore });
       try {
         const run = await lintIn(dir, ['--fix', '--format', 'json']);
         assert.equal(run.code, 0, run.stdout + run.stderr);
@@ -156,7 +156,7 @@ describe('diskwise lint --fix', () => {
     it(`${COMMON} ${variant.name}: outside the fixed values and the inserted lines, every byte is the original's`, async () => {
       const yamlBefore = shape(YAML_BEFORE, variant.eol, variant.bom);
       const jsonBefore = shape(JSON_BEFORE, variant.eol, variant.bom);
-      const dir = makeWorkspace({ 'diskwise.yaml': LEGACY_MAPPING, 'block.yaml': yamlBefore, 'doc.json': jsonBefore });
+      const dir = makeWorkspace({ 'cachewright.yaml': LEGACY_MAPPING, 'block.yaml': yamlBefore, 'doc.json': jsonBefore });
       try {
         await lintIn(dir, ['--fix']);
         const valueChanged = (before: string, after: string) => before.replace(/"?\b\d+M"?/, '') === after.replace(/"?\b\d+[MK]"?/, '').replace(/,? "clean": 600/, '').replace(/, clean: 600/, '');
@@ -193,7 +193,7 @@ describe('diskwise lint --fix', () => {
   });
 
   it(`${CONTRACT} re-linting after --fix finds nothing for what was fixed; the --fix output already shows that`, async () => {
-    const dir = makeWorkspace({ 'diskwise.yaml': LEGACY_MAPPING, 'block.yaml': YAML_BEFORE, 'doc.json': JSON_BEFORE });
+    const dir = makeWorkspace({ 'cachewright.yaml': LEGACY_MAPPING, 'block.yaml': YAML_BEFORE, 'doc.json': JSON_BEFORE });
     try {
       const before = json(await lintIn(dir, ['--format', 'json']));
       const fixedRules = new Set(before.files.flatMap((f) => f.findings.filter((x) => x.fix).map((x) => x.rule)));
@@ -241,14 +241,14 @@ describe('diskwise lint --fix', () => {
       assert.notEqual(after.ino, inodeBefore, 'a new file took the old one\'s place');
       assert.equal(after.mode & 0o777, 0o640);
       assert.deepEqual(fs.readdirSync(path.join(dir, 'hosts')).sort(), listing);
-      assert.deepEqual(fs.readdirSync(dir).sort(), ['diskwise.yaml', 'hosts', 'notes.yaml']);
+      assert.deepEqual(fs.readdirSync(dir).sort(), ['cachewright.yaml', 'hosts', 'notes.yaml']);
     } finally {
       removeWorkspace(dir);
     }
   });
 
   it(`${COMMON} a symbolic link stays a link; the file it points to is fixed`, async () => {
-    const dir = makeWorkspace({ 'diskwise.yaml': LEGACY_MAPPING, 'real/block.txt': YAML_BEFORE });
+    const dir = makeWorkspace({ 'cachewright.yaml': LEGACY_MAPPING, 'real/block.txt': YAML_BEFORE });
     try {
       fs.symlinkSync(path.join('real', 'block.txt'), path.join(dir, 'block.yaml'));
       await lintIn(dir, ['--fix']);
@@ -281,7 +281,7 @@ describe('diskwise lint --fix', () => {
       assert.deepEqual(broken.map((f) => [f.path, f.findings[0]?.rule, f.fixed]), [['hosts/broken.json', 'parse-error', 0], ['hosts/broken.yaml', 'parse-error', 0]]);
       // the suppressed finding in accepted.yaml is still there, unfixed
       const accepted = doc.files.find((f) => f.path === 'hosts/accepted.yaml');
-      assert.ok(accepted?.findings.some((f) => f.rule === 'l2-cache-undersized' && f.suppressed));
+      assert.ok(accepted?.findings.some((f) => f.rule === 'l2-cache-undersized' && f.accepted));
     } finally {
       removeWorkspace(dir);
     }
@@ -289,7 +289,7 @@ describe('diskwise lint --fix', () => {
 
   it(`${RFC8259} a file that is not valid UTF-8 is left unchanged, with a note`, async () => {
     const bytes = Buffer.concat([Buffer.from('# caf'), Buffer.from([0xe9]), Buffer.from('\n'), Buffer.from(YAML_BEFORE)]);
-    const dir = makeWorkspace({ 'diskwise.yaml': LEGACY_MAPPING, 'latin1.yaml': bytes });
+    const dir = makeWorkspace({ 'cachewright.yaml': LEGACY_MAPPING, 'latin1.yaml': bytes });
     try {
       const run = await lintIn(dir, ['--fix']);
       assert.ok(fs.readFileSync(path.join(dir, 'latin1.yaml')).equals(bytes));
@@ -301,7 +301,7 @@ describe('diskwise lint --fix', () => {
   });
 
   it(`${CONTRACT} a file that cannot be written: exit 2 naming it, the original untouched`, async () => {
-    const dir = makeWorkspace({ 'diskwise.yaml': LEGACY_MAPPING, 'ro/block.yaml': YAML_BEFORE });
+    const dir = makeWorkspace({ 'cachewright.yaml': LEGACY_MAPPING, 'ro/block.yaml': YAML_BEFORE });
     try {
       fs.chmodSync(dir, 0o755);
       fs.chmodSync(path.join(dir, 'ro'), 0o555);

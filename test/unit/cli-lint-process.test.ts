@@ -1,4 +1,4 @@
-// `diskwise lint` as CI runs it: the built dist/cli.js in a child process, where the exit status
+// `cachewright lint` as CI runs it: the built dist/cli.js in a child process, where the exit status
 // is the real one a pipeline sees and stdout carries nothing but the report.
 import { strict as assert } from 'node:assert';
 import * as fs from 'node:fs';
@@ -7,7 +7,7 @@ import { CONTRACT } from '../helpers/sources';
 import { threadCount } from '../../src/cli/lint-parallel';
 import { BROKEN_MAPPING, CLI, copyWorkspace, lintProcess, makeWorkspace, removeWorkspace, STACK_FRAME, WORKSPACE, type LintJson } from '../fixtures/lint/run';
 
-describe('diskwise lint in a child process', () => {
+describe('cachewright lint in a child process', () => {
   before(function () {
     if (!fs.existsSync(CLI)) assert.fail(`${CLI} is missing: run "npm run build" first`);
   });
@@ -24,7 +24,7 @@ describe('diskwise lint in a child process', () => {
     assert.equal(findings.code, 1, findings.stderr);
     assert.equal(usage.code, 2);
     assert.equal(mapping.code, 2);
-    assert.match(mapping.stderr, /^diskwise\.yaml:8:3: /m);
+    assert.match(mapping.stderr, /^cachewright\.yaml:8:3: /m);
     assert.equal(missing.code, 2);
     for (const run of [clean, findings, usage, mapping, missing]) {
       assert.doesNotMatch(run.stderr, STACK_FRAME);
@@ -65,12 +65,12 @@ describe('diskwise lint in a child process', () => {
 
   describe('worker threads for large runs', function () {
     this.timeout(120_000);
-    // DISKWISE_JOBS forces threads whatever the file count, so a small workspace exercises them
+    // CACHEWRIGHT_JOBS forces threads whatever the file count, so a small workspace exercises them
     const MAPPING = 'version: 1\ninclude: ["defs/*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { name: "$.id", size: "$.size", l2Cache: "$.l2" } }\n';
     const SIZES = ['20G', '100G', '1T'];
     const CACHES = ['1M', '2.5M', '8M', '3000K'];
     const workspace = (count: number) => {
-      const files: Record<string, string> = { 'diskwise.yaml': MAPPING };
+      const files: Record<string, string> = { 'cachewright.yaml': MAPPING };
       for (let i = 0; i < count; i++) {
         files[`defs/vm${String(i).padStart(4, '0')}.yaml`] = `drives:\n  - { id: a, size: ${SIZES[i % 3]}, l2: ${CACHES[i % 4]} }\n  - { id: b, size: ${SIZES[(i + 1) % 3]} }\n`;
       }
@@ -82,8 +82,8 @@ describe('diskwise lint in a child process', () => {
       const dir = workspace(60);
       try {
         for (const format of ['json', 'sarif', 'text']) {
-          const one = await lintProcess(dir, ['--format', format], { env: { DISKWISE_JOBS: '1' } });
-          const three = await lintProcess(dir, ['--format', format], { env: { DISKWISE_JOBS: '3' } });
+          const one = await lintProcess(dir, ['--format', format], { env: { CACHEWRIGHT_JOBS: '1' } });
+          const three = await lintProcess(dir, ['--format', format], { env: { CACHEWRIGHT_JOBS: '3' } });
           assert.equal(one.code, 1);
           assert.equal(three.code, one.code);
           assert.equal(three.stdout, one.stdout, format);
@@ -98,8 +98,8 @@ describe('diskwise lint in a child process', () => {
       const a = workspace(60);
       const b = workspace(60);
       try {
-        const one = await lintProcess(a, ['--fix', '--format', 'json'], { env: { DISKWISE_JOBS: '1' } });
-        const three = await lintProcess(b, ['--fix', '--format', 'json'], { env: { DISKWISE_JOBS: '3' } });
+        const one = await lintProcess(a, ['--fix', '--format', 'json'], { env: { CACHEWRIGHT_JOBS: '1' } });
+        const three = await lintProcess(b, ['--fix', '--format', 'json'], { env: { CACHEWRIGHT_JOBS: '3' } });
         assert.equal(three.stdout, one.stdout);
         assert.ok(((JSON.parse(one.stdout) as LintJson).summary.fixed ?? 0) > 0);
         for (const name of fs.readdirSync(path.join(a, 'defs'))) {
@@ -112,14 +112,14 @@ describe('diskwise lint in a child process', () => {
       }
     });
 
-    it(`${CONTRACT} thread count: one for small runs or when DISKWISE_JOBS=1, never more than the cores`, () => {
+    it(`${CONTRACT} thread count: one for small runs or when CACHEWRIGHT_JOBS=1, never more than the cores`, () => {
       assert.equal(threadCount(10, {}, 8), 1);
       assert.equal(threadCount(5000, {}, 1), 1);
       assert.equal(threadCount(5000, {}, 2), 2);
-      assert.equal(threadCount(5000, { DISKWISE_JOBS: '1' }, 8), 1);
-      assert.equal(threadCount(5000, { DISKWISE_JOBS: '3' }, 8), 3);
-      assert.equal(threadCount(2, { DISKWISE_JOBS: '4' }, 8), 2);
-      assert.equal(threadCount(5000, { DISKWISE_JOBS: 'lots' }, 2), 2);
+      assert.equal(threadCount(5000, { CACHEWRIGHT_JOBS: '1' }, 8), 1);
+      assert.equal(threadCount(5000, { CACHEWRIGHT_JOBS: '3' }, 8), 3);
+      assert.equal(threadCount(2, { CACHEWRIGHT_JOBS: '4' }, 8), 2);
+      assert.equal(threadCount(5000, { CACHEWRIGHT_JOBS: 'lots' }, 2), 2);
     });
   });
 });

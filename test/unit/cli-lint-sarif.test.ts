@@ -1,4 +1,4 @@
-// `diskwise lint --format sarif`, validated against the SARIF 2.1.0 JSON schema and read back the
+// `cachewright lint --format sarif`, validated against the SARIF 2.1.0 JSON schema and read back the
 // way a SARIF consumer would: rules, results, regions, fixes, suppressions.
 //
 // The schema: "Static Analysis Results Format (SARIF) Version 2.1.0-rtm.5 JSON Schema", as shipped
@@ -66,7 +66,7 @@ async function sarif(cwd: string, args: string[] = []): Promise<{ code: number |
   return { code: run.code, log: JSON.parse(run.stdout) as Log };
 }
 
-describe('diskwise lint --format sarif', () => {
+describe('cachewright lint --format sarif', () => {
   it(`${SARIF} the fixture workspace's log validates against the 2.1.0 schema`, async () => {
     const { code, log } = await sarif(WORKSPACE);
     assert.equal(code, 1, 'the exit code does not depend on the format');
@@ -78,7 +78,7 @@ describe('diskwise lint --format sarif', () => {
   it(`${SARIF} the driver: name, version, one rule per rule id with its default level and docs page`, async () => {
     const { log } = await sarif(WORKSPACE);
     const driver = log.runs[0]?.tool.driver;
-    assert.equal(driver?.name, 'diskwise');
+    assert.equal(driver?.name, 'cachewright');
     assert.match(driver?.version ?? '', /^\d+\.\d+\.\d+/);
     assert.deepEqual(driver?.rules.map((r) => r.id), RULES.map((r) => r.id));
     const level = { error: 'error', warning: 'warning', info: 'note' } as const;
@@ -129,7 +129,7 @@ describe('diskwise lint --format sarif', () => {
     }]);
   });
 
-  it(`${CONTRACT} suppressed findings stay in the log: external (mapping ignore list) or inSource (a comment), with the reason`, async () => {
+  it(`${CONTRACT} suppressed findings stay in the log: external (mapping accept list) or inSource (a comment), with the reason`, async () => {
     const { log } = await sarif(WORKSPACE);
     const suppressed = (log.runs[0]?.results ?? []).filter((r) => r.suppressions).map((r) => [r.locations[0]?.physicalLocation.artifactLocation.uri, r.ruleId, r.suppressions]);
     assert.deepEqual(suppressed, [
@@ -149,7 +149,7 @@ describe('diskwise lint --format sarif', () => {
 
   it(`${SARIF} paths with spaces and non-ASCII names are URI-encoded; parse errors and empty runs validate`, async () => {
     const dir = makeWorkspace({
-      'diskwise.yaml': 'version: 1\ninclude: ["**/*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size", l2Cache: "$.l2" } }\n',
+      'cachewright.yaml': 'version: 1\ninclude: ["**/*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size", l2Cache: "$.l2" } }\n',
       'site a/hôte 1.yaml': 'drives:\n  - { size: 1T, l2: 8M }\n',
       'site a/broken.yaml': 'drives: [\n',
     });

@@ -1,4 +1,4 @@
-// `diskwise lint` run in process through runCommand, on the fixture workspace under
+// `cachewright lint` run in process through runCommand, on the fixture workspace under
 // test/fixtures/lint: exit codes, text and JSON output, file selection, mapping discovery and the
 // errors a user sees. Expected numbers come from FACTS.md's formulas and check table, not from the
 // engine.
@@ -19,7 +19,7 @@ function assertNoStack(run: Run): void {
 const json = (run: Run): LintJson => JSON.parse(run.stdout) as LintJson;
 const findingLines = (run: Run) => run.stdout.split('\n').filter((line) => /^\S+:\d+:\d+  /.test(line));
 
-describe('diskwise lint: exit codes', () => {
+describe('cachewright lint: exit codes', () => {
   it(`${CONTRACT} exit 1 when an unsuppressed error remains`, async () => {
     const run = await lintIn(WORKSPACE, []);
     assert.equal(run.code, 1, run.stderr);
@@ -57,8 +57,8 @@ describe('diskwise lint: exit codes', () => {
     for (const args of [['--format', 'xml'], ['--max-warnings', '-1'], ['--max-warnings', 'many'], ['--max-warnings', '1.5'], ['--colour'], ['--config']]) {
       const run = await lintIn(WORKSPACE, args);
       assert.equal(run.code, 2, `${args.join(' ')}: ${run.stderr}`);
-      assert.match(run.stderr, /^diskwise lint: /);
-      assert.match(run.stderr, /usage: diskwise lint/);
+      assert.match(run.stderr, /^cachewright lint: /);
+      assert.match(run.stderr, /usage: cachewright lint/);
       assert.equal(run.stdout, '');
       assertNoStack(run);
     }
@@ -71,7 +71,7 @@ describe('diskwise lint: exit codes', () => {
   });
 });
 
-describe('diskwise lint: text output', () => {
+describe('cachewright lint: text output', () => {
   it(`${COMMON} one line per finding: path:line:col, severity, rule id, message; grouped by file`, async () => {
     const run = await lintIn(WORKSPACE, []);
     const lines = findingLines(run);
@@ -107,7 +107,7 @@ describe('diskwise lint: text output', () => {
   it(`${COMMON} paths are relative to the working directory`, async () => {
     const run = await lintIn(path.join(WORKSPACE, 'hosts'), ['undersized.yaml']);
     assert.match(findingLines(run)[0] ?? '', /^undersized\.yaml:8:15 /);
-    const fromAbove = await lintIn(path.dirname(WORKSPACE), ['--config', 'workspace/diskwise.yaml', 'workspace/hosts/undersized.yaml']);
+    const fromAbove = await lintIn(path.dirname(WORKSPACE), ['--config', 'workspace/cachewright.yaml', 'workspace/hosts/undersized.yaml']);
     assert.match(findingLines(fromAbove)[0] ?? '', /^workspace\/hosts\/undersized\.yaml:8:15 /);
   });
 
@@ -123,12 +123,12 @@ describe('diskwise lint: text output', () => {
   });
 });
 
-describe('diskwise lint: JSON output', () => {
+describe('cachewright lint: JSON output', () => {
   it(`${CONTRACT} the document's shape: tool, version, files with disks and findings, summary`, async () => {
     const run = await lintIn(WORKSPACE, ['--format', 'json']);
     assert.equal(run.code, 1);
     const doc = json(run);
-    assert.equal(doc.tool, 'diskwise');
+    assert.equal(doc.tool, 'cachewright');
     assert.match(doc.version, /^\d+\.\d+\.\d+/);
     assert.deepEqual(doc.files.map((f) => f.path), ['hosts/accepted.json', 'hosts/accepted.yaml', 'hosts/clean.yaml', 'hosts/conflict.json', 'hosts/undersized.yaml']);
     for (const file of doc.files) {
@@ -165,7 +165,7 @@ describe('diskwise lint: JSON output', () => {
 
   it(`${CONTRACT} byte counts past 2^53 print exactly (JSON numbers are not limited to doubles, RFC 8259 §6)`, async () => {
     const dir = makeWorkspace({
-      'diskwise.yaml': 'version: 1\ninclude: ["*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size", clusterSize: "$.cluster" } }\n',
+      'cachewright.yaml': 'version: 1\ninclude: ["*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size", clusterSize: "$.cluster" } }\n',
       // 16 PiB + 1 byte: the nearest double is 2^54, one byte short
       'big.yaml': 'drives:\n  - { size: "18014398509481985", cluster: 2M }\n',
     });
@@ -192,7 +192,7 @@ describe('diskwise lint: JSON output', () => {
 
   it(`${CONTRACT} suppressed findings stay in the output with their reason`, async () => {
     const doc = json(await lintIn(WORKSPACE, ['--format', 'json']));
-    const suppressed = doc.files.flatMap((f) => f.findings.filter((x) => x.suppressed).map((x) => [f.path, x.rule, x.suppressed?.reason]));
+    const suppressed = doc.files.flatMap((f) => f.findings.filter((x) => x.accepted).map((x) => [f.path, x.rule, x.accepted?.reason]));
     assert.deepEqual(suppressed, [
       ['hosts/accepted.json', 'cache-not-aligned', 'kept as provisioned until the next rebuild'],
       ['hosts/accepted.yaml', 'l2-cache-undersized', 'moving to a larger host in the next maintenance window'],
@@ -212,13 +212,13 @@ describe('diskwise lint: JSON output', () => {
   });
 });
 
-describe('diskwise lint: which files', () => {
+describe('cachewright lint: which files', () => {
   it(`${CONTRACT} without paths: the mapping's include globs minus its excludes`, async () => {
     const doc = json(await lintIn(WORKSPACE, ['--format', 'json']));
     const paths = doc.files.map((f) => f.path);
     assert.ok(!paths.includes('hosts/old/retired.yaml'), 'excluded by hosts/old/**');
     assert.ok(!paths.includes('notes.yaml'), 'not matched by the include globs');
-    assert.ok(!paths.includes('diskwise.yaml'), 'the mapping file is not a definition');
+    assert.ok(!paths.includes('cachewright.yaml'), 'the mapping file is not a definition');
   });
 
   it(`${COMMON} a named folder is narrowed to what the mapping includes`, async () => {
@@ -249,7 +249,7 @@ describe('diskwise lint: which files', () => {
   });
 
   it(`${CONTRACT} an unreadable file: exit 2 naming it, the other files are still linted`, async () => {
-    const dir = makeWorkspace({ 'diskwise.yaml': 'version: 1\ninclude: ["*.yaml"]\ndisks: "$.d[*]"\nfields: { disk: { size: "$.s" } }\n', 'ok.yaml': 'd: []\n' });
+    const dir = makeWorkspace({ 'cachewright.yaml': 'version: 1\ninclude: ["*.yaml"]\ndisks: "$.d[*]"\nfields: { disk: { size: "$.s" } }\n', 'ok.yaml': 'd: []\n' });
     try {
       // A link to itself cannot be read by anyone (root included, who ignores file modes).
       fs.symlinkSync('loop.yaml', path.join(dir, 'loop.yaml'));
@@ -264,7 +264,7 @@ describe('diskwise lint: which files', () => {
   });
 });
 
-describe('diskwise lint: the mapping file', () => {
+describe('cachewright lint: the mapping file', () => {
   it(`${CONTRACT} found in the working directory or the nearest folder above it`, async () => {
     const run = await lintIn(path.join(WORKSPACE, 'hosts', 'old'), ['--format', 'json']);
     assert.equal(run.code, 1, run.stderr);
@@ -283,7 +283,7 @@ describe('diskwise lint: the mapping file', () => {
   });
 
   it(`${CONTRACT} --config names it explicitly`, async () => {
-    const run = await lintIn(path.dirname(WORKSPACE), ['--config', path.join('workspace', 'diskwise.yaml'), '--format', 'json']);
+    const run = await lintIn(path.dirname(WORKSPACE), ['--config', path.join('workspace', 'cachewright.yaml'), '--format', 'json']);
     assert.equal(json(run).files.length, 5);
   });
 
@@ -292,7 +292,7 @@ describe('diskwise lint: the mapping file', () => {
     try {
       const run = await lintIn(dir, []);
       assert.equal(run.code, 2);
-      assert.match(run.stderr, /diskwise\.yaml/);
+      assert.match(run.stderr, /cachewright\.yaml/);
       assert.match(run.stderr, /--config/);
       assert.equal(run.stdout, '');
       assertNoStack(run);
@@ -310,18 +310,18 @@ describe('diskwise lint: the mapping file', () => {
   it(`${CONTRACT} a schema problem: exit 2, the mapping file's own path, line and column`, async () => {
     const run = await lintIn(BROKEN_MAPPING, []);
     assert.equal(run.code, 2);
-    // `colour:` is the third key of line 8 in broken-mapping/diskwise.yaml, indented two spaces
-    assert.match(run.stderr, /^diskwise\.yaml:8:3: .*"colour"/m);
+    // `colour:` is the third key of line 8 in broken-mapping/cachewright.yaml, indented two spaces
+    assert.match(run.stderr, /^cachewright\.yaml:8:3: .*"colour"/m);
     assert.equal(run.stdout, '');
     assertNoStack(run);
   });
 
   it(`${CONTRACT} a YAML syntax error in the mapping file: exit 2 with its line and column`, async () => {
-    const dir = makeWorkspace({ 'diskwise.yaml': 'version: 1\ndisks: "$.d[*]"\nfields:\n  disk: { size: "$.s"\n' });
+    const dir = makeWorkspace({ 'cachewright.yaml': 'version: 1\ndisks: "$.d[*]"\nfields:\n  disk: { size: "$.s"\n' });
     try {
       const run = await lintIn(dir, []);
       assert.equal(run.code, 2);
-      assert.match(run.stderr, /^diskwise\.yaml:\d+:\d+: /m);
+      assert.match(run.stderr, /^cachewright\.yaml:\d+:\d+: /m);
       assertNoStack(run);
     } finally {
       removeWorkspace(dir);
@@ -329,12 +329,12 @@ describe('diskwise lint: the mapping file', () => {
   });
 
   it(`${CONTRACT} a JSON mapping file with a syntax error: exit 2 with its line and column`, async () => {
-    const dir = makeWorkspace({ 'diskwise.json': '{\n  "version": 1,\n  "disks": "$.d[*]",\n  "fields": { "disk": { "size": "$.s" } },\n}\n' });
+    const dir = makeWorkspace({ 'cachewright.json': '{\n  "version": 1,\n  "disks": "$.d[*]",\n  "fields": { "disk": { "size": "$.s" } },\n}\n' });
     try {
       const run = await lintIn(dir, []);
       assert.equal(run.code, 2);
       // the trailing comma before the closing brace on line 5
-      assert.match(run.stderr, /^diskwise\.json:5:1: /m);
+      assert.match(run.stderr, /^cachewright\.json:5:1: /m);
       assertNoStack(run);
     } finally {
       removeWorkspace(dir);
@@ -342,11 +342,11 @@ describe('diskwise lint: the mapping file', () => {
   });
 });
 
-describe('diskwise lint: definitions that do not parse', () => {
+describe('cachewright lint: definitions that do not parse', () => {
   const mapping = 'version: 1\ninclude: ["*.yaml", "*.json"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size" } }\n';
 
   it(`${CONTRACT} bad YAML is a parse-error finding at its position, exit 1`, async () => {
-    const dir = makeWorkspace({ 'diskwise.yaml': mapping, 'bad.yaml': 'drives:\n  - size: 1T\n    cache: [unclosed\n' });
+    const dir = makeWorkspace({ 'cachewright.yaml': mapping, 'bad.yaml': 'drives:\n  - size: 1T\n    cache: [unclosed\n' });
     try {
       const run = await lintIn(dir, ['--format', 'json']);
       assert.equal(run.code, 1, run.stderr);
@@ -363,7 +363,7 @@ describe('diskwise lint: definitions that do not parse', () => {
   });
 
   it(`${CONTRACT} bad JSON is a parse-error finding at its position`, async () => {
-    const dir = makeWorkspace({ 'diskwise.yaml': mapping, 'bad.json': '{\n  "drives": [\n    { "size": "1T" }\n  ]\n  "more": 1\n}\n' });
+    const dir = makeWorkspace({ 'cachewright.yaml': mapping, 'bad.json': '{\n  "drives": [\n    { "size": "1T" }\n  ]\n  "more": 1\n}\n' });
     try {
       const run = await lintIn(dir, ['--format', 'json']);
       assert.equal(run.code, 1);
@@ -376,9 +376,9 @@ describe('diskwise lint: definitions that do not parse', () => {
   });
 });
 
-describe('diskwise lint: progress line', () => {
+describe('cachewright lint: progress line', () => {
   const many = (count: number): Record<string, string> => {
-    const files: Record<string, string> = { 'diskwise.yaml': 'version: 1\ninclude: ["defs/*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size" } }\n' };
+    const files: Record<string, string> = { 'cachewright.yaml': 'version: 1\ninclude: ["defs/*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size" } }\n' };
     for (let i = 0; i < count; i++) files[`defs/d${String(i).padStart(3, '0')}.yaml`] = 'drives:\n  - size: 20G\n';
     return files;
   };
@@ -410,9 +410,9 @@ describe('diskwise lint: progress line', () => {
   });
 });
 
-describe('diskwise lint: image files', () => {
+describe('cachewright lint: image files', () => {
   const files = {
-    'diskwise.yaml': 'version: 1\ninclude: ["*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size", image: "$.file" } }\n',
+    'cachewright.yaml': 'version: 1\ninclude: ["*.yaml"]\ndisks: "$.drives[*]"\nfields: { disk: { size: "$.size", image: "$.file" } }\n',
     'vm.yaml': 'drives:\n  - { size: 20G, file: images/absent.qcow2 }\n',
   };
 

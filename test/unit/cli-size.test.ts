@@ -1,4 +1,4 @@
-// `diskwise size` as a user runs it: the built dist/cli.js in a child process. Expected numbers are
+// `cachewright size` as a user runs it: the built dist/cli.js in a child process. Expected numbers are
 // worked out from FACTS.md's formulas and check table, not read from the engine.
 import { strict as assert } from 'node:assert';
 import { execFile, execFileSync } from 'node:child_process';
@@ -20,12 +20,12 @@ interface Run {
 const runs = new Map<string, Promise<Run>>();
 
 /** Runs the CLI once per distinct argv; the before hook starts many of them in parallel. */
-function diskwise(...args: string[]): Promise<Run> {
+function cachewright(...args: string[]): Promise<Run> {
   const key = JSON.stringify(args);
   let run = runs.get(key);
   if (run === undefined) {
     run = new Promise((resolve) => {
-      execFile(process.execPath, [CLI, ...args], { cwd: ROOT, env: { ...process.env, DISKWISE_DEBUG: '' } }, (error, stdout, stderr) => {
+      execFile(process.execPath, [CLI, ...args], { cwd: ROOT, env: { ...process.env, CACHEWRIGHT_DEBUG: '' } }, (error, stdout, stderr) => {
         const code = error ? (typeof error.code === 'number' ? error.code : null) : 0;
         resolve({ code, stdout, stderr });
       });
@@ -51,7 +51,7 @@ const MiB = 1024 * KiB;
 const GiB = 1024 * MiB;
 const TiB = 1024 * GiB;
 
-// argv after `diskwise size`, then fragments the message must contain (the value, the range)
+// argv after `cachewright size`, then fragments the message must contain (the value, the range)
 const BAD_INPUT: [string, string[], string[]][] = [
   [`${IEC} unknown unit`, ['--size', '20X'], ['"20X"', 'unknown unit "X"', 'K, M, G, T, P', 'kB, MB, GB, TB']],
   [`${IEC} ambiguous unit KB`, ['--size', '4KB'], ['"4KB"', 'ambiguous', 'KiB', 'kB']],
@@ -93,20 +93,20 @@ const OTHER_RUNS: string[][] = [
   ['size', '--size', '20G', '--cache', '64M'],
 ];
 
-describe('cli: diskwise size', function () {
+describe('cli: cachewright size', function () {
   this.timeout(30000);
 
   before(function () {
     // one build for the whole file; the tests then run what the package's bin runs
     execFileSync('npm', ['run', '-s', 'build'], { cwd: ROOT, stdio: 'pipe' });
     // start the runs together: each is an independent process, and serially they are slow
-    for (const [, args] of BAD_INPUT) void diskwise('size', ...args);
-    for (const args of OTHER_RUNS) void diskwise(...args);
+    for (const [, args] of BAD_INPUT) void cachewright('size', ...args);
+    for (const args of OTHER_RUNS) void cachewright(...args);
   });
 
   describe('--format json', () => {
     it(`${CONTRACT}/${CACHE} --size 20G prints exactly the sizing object plus l2Tables, with integer byte counts`, async () => {
-      const run = await diskwise('size', '--size', '20G', '--format', 'json');
+      const run = await cachewright('size', '--size', '20G', '--format', 'json');
       assert.equal(run.code, 0, run.stderr);
       assert.equal(run.stderr, '');
       const parsed: unknown = JSON.parse(run.stdout);
@@ -131,7 +131,7 @@ describe('cli: diskwise size', function () {
     });
 
     it(`${SPEC}/${CACHE} --extended-l2 doubles the entry bytes and the full-coverage need (1 TiB: 256 MiB)`, async () => {
-      const run = await diskwise('size', '--size', '1T', '--extended-l2', '--format', 'json');
+      const run = await cachewright('size', '--size', '1T', '--extended-l2', '--format', 'json');
       assert.equal(run.code, 0, run.stderr);
       const parsed = JSON.parse(run.stdout) as Record<string, number>;
       assert.equal(parsed.l2EntryBytes, 16);
@@ -143,25 +143,25 @@ describe('cli: diskwise size', function () {
     });
 
     it(`${CACHE} --slice 4K rounds full coverage to whole slices: 1280 MiB -> 160 KiB (whole tables: 192 KiB)`, async () => {
-      const sliced = JSON.parse((await diskwise('size', '--size', '1280M', '--slice', '4K', '--format', 'json')).stdout) as Record<string, number>;
-      const whole = JSON.parse((await diskwise('size', '--size', '1280M', '--format', 'json')).stdout) as Record<string, number>;
+      const sliced = JSON.parse((await cachewright('size', '--size', '1280M', '--slice', '4K', '--format', 'json')).stdout) as Record<string, number>;
+      const whole = JSON.parse((await cachewright('size', '--size', '1280M', '--format', 'json')).stdout) as Record<string, number>;
       assert.equal(sliced.l2FullCoverage, 160 * KiB);
       assert.equal(whole.l2FullCoverage, 192 * KiB);
       assert.equal(whole.l2Tables, 3);
     });
 
     it(`${CACHE} --cache 1M on 20 GiB covers 8 GiB; a cache above full coverage is used only up to it`, async () => {
-      const small = JSON.parse((await diskwise('size', '--size', '20G', '--cache', '1M', '--format', 'json')).stdout) as Record<string, number>;
+      const small = JSON.parse((await cachewright('size', '--size', '20G', '--cache', '1M', '--format', 'json')).stdout) as Record<string, number>;
       assert.equal(small.l2Effective, MiB);
       assert.equal(small.l2CoveredBytes, 8 * GiB); // FACTS check table: 1 MiB covers 8 GiB at 64 KiB
       assert.equal(small.cacheMemoryTotal, MiB + 256 * KiB);
-      const big = JSON.parse((await diskwise('size', '--size', '20G', '--cache', '64M', '--format', 'json')).stdout) as Record<string, number>;
+      const big = JSON.parse((await cachewright('size', '--size', '20G', '--cache', '64M', '--format', 'json')).stdout) as Record<string, number>;
       assert.equal(big.l2Effective, 2.5 * MiB);
     });
 
     it(`${CACHE} --driver and --platform pick the default profile: 1 TiB gets 32 MiB, 8 MiB or 1 MiB`, async () => {
       const l2 = async (...args: string[]): Promise<number> =>
-        (JSON.parse((await diskwise('size', '--size', '1T', '--format', 'json', ...args)).stdout) as Record<string, number>).l2Effective ?? -1;
+        (JSON.parse((await cachewright('size', '--size', '1T', '--format', 'json', ...args)).stdout) as Record<string, number>).l2Effective ?? -1;
       assert.equal(await l2(), 32 * MiB);
       assert.equal(await l2('--platform', 'other'), 8 * MiB);
       assert.equal(await l2('--driver', 'legacy'), MiB);
@@ -169,13 +169,13 @@ describe('cli: diskwise size', function () {
     });
 
     it(`${SPEC} 1 MiB clusters: a 512 GiB disk has exactly four L2 tables`, async () => {
-      const parsed = JSON.parse((await diskwise('size', '--size', '512G', '--cluster-size', '1M', '--format', 'json')).stdout) as Record<string, number>;
+      const parsed = JSON.parse((await cachewright('size', '--size', '512G', '--cluster-size', '1M', '--format', 'json')).stdout) as Record<string, number>;
       assert.equal(parsed.l2Tables, 4);
       assert.equal(parsed.l2FullCoverage, 4 * MiB);
     });
 
     it(`${IEC} exact integers for huge sizes: --size 2048P (2^61 bytes) prints 2305843009213693952`, async () => {
-      const run = await diskwise('size', '--size', '2048P', '--format', 'json');
+      const run = await cachewright('size', '--size', '2048P', '--format', 'json');
       assert.equal(run.code, 0, run.stderr);
       assert.match(run.stdout, /"virtualSize": 2305843009213693952,/);
       assert.match(run.stdout, /"l2FullCoverage": 281474976710656,/); // 2^61 / 2^16 * 8 = 2^48
@@ -185,7 +185,7 @@ describe('cli: diskwise size', function () {
 
   describe('text output', () => {
     it(`${CONTRACT} --size 20G shows the sizing table`, async () => {
-      const run = await diskwise('size', '--size', '20G');
+      const run = await cachewright('size', '--size', '20G');
       assert.equal(run.code, 0, run.stderr);
       const rows: [string, string][] = [
         ['virtual size', '20 GiB'], ['cluster', '64 KiB'], ['L2 tables', '40'], ['full-coverage L2', '2.5 MiB'],
@@ -200,20 +200,20 @@ describe('cli: diskwise size', function () {
       assert.match(run.stdout, /^refcount cache +256 KiB +covers 8 GiB of host clusters at 16-bit refcounts/m);
     });
     it(`${CACHE} --refcount-bits 64: the same 256 KiB covers a quarter as much, 2 GiB`, async () => {
-      const run = await diskwise('size', '--size', '20G', '--refcount-bits', '64');
+      const run = await cachewright('size', '--size', '20G', '--refcount-bits', '64');
       assert.equal(run.code, 0, run.stderr);
       assert.match(run.stdout, /^refcount cache +256 KiB +covers 2 GiB of host clusters at 64-bit refcounts/m);
     });
     it(`${CONTRACT} a configured cache above full coverage says it is capped`, async () => {
-      const run = await diskwise('size', '--size', '20G', '--cache', '64M');
+      const run = await cachewright('size', '--size', '20G', '--cache', '64M');
       assert.match(run.stdout, /^effective L2 +2\.5 MiB +configured, capped at full coverage; covers 20 GiB \(100\.0% of the disk\)/m);
     });
     it(`${CACHE} current/other: idle cleanup is off`, async () => {
-      const run = await diskwise('size', '--size', '20G', '--platform', 'other');
+      const run = await cachewright('size', '--size', '20G', '--platform', 'other');
       assert.match(run.stdout, /^idle cleanup +0 \(off\)/m);
     });
     it(`${COMMON} shows the cautions of FACTS.md`, async () => {
-      const { stdout } = await diskwise('size', '--size', '20G');
+      const { stdout } = await cachewright('size', '--size', '20G');
       assert.match(stdout, /take effect when the disk is opened/);
       assert.match(stdout, /restart the VM or reopen the disk/);
       assert.match(stdout, /host memory per disk and per backing layer/);
@@ -224,14 +224,14 @@ describe('cli: diskwise size', function () {
       assert.match(stdout, /change control/);
     });
     it(`${COMMON} first-write cost with subclusters: 4 KiB into 2 MiB clusters is 512x, with extended L2 16x`, async () => {
-      const plain = await diskwise('size', '--size', '1T', '--cluster-size', '2M');
+      const plain = await cachewright('size', '--size', '1T', '--cluster-size', '2M');
       assert.match(plain.stdout, /^first write +512x/m);
-      const sub = await diskwise('size', '--size', '1T', '--cluster-size', '2M', '--extended-l2');
+      const sub = await cachewright('size', '--size', '1T', '--cluster-size', '2M', '--extended-l2');
       assert.match(sub.stdout, /^first write +16x/m);
       assert.match(sub.stdout, /32 subclusters of 64 KiB/);
     });
     it('--help prints the usage and exits 0', async () => {
-      const run = await diskwise('size', '--help');
+      const run = await cachewright('size', '--help');
       assert.equal(run.code, 0);
       assert.match(run.stdout, /--size/);
       assert.match(run.stdout, /--cluster-size/);
@@ -240,19 +240,19 @@ describe('cli: diskwise size', function () {
 
   describe('bad input: a clear message on stderr, exit 2, no stack trace', () => {
     for (const [title, args, fragments] of BAD_INPUT) {
-      it(`${title}: diskwise size ${args.join(' ')}`, async () => {
-        const run = await diskwise('size', ...args);
+      it(`${title}: cachewright size ${args.join(' ')}`, async () => {
+        const run = await cachewright('size', ...args);
         assert.equal(run.code, 2, `exit code; stderr: ${run.stderr}`);
         assert.equal(run.stdout, '', 'nothing on stdout');
         const firstLine = run.stderr.split('\n')[0] ?? '';
-        assert.match(firstLine, /^diskwise size: /);
+        assert.match(firstLine, /^cachewright size: /);
         for (const fragment of fragments) assert.ok(firstLine.includes(fragment), `${JSON.stringify(firstLine)} should mention ${JSON.stringify(fragment)}`);
         assert.doesNotMatch(run.stderr + run.stdout, STACK_FRAME);
         assert.doesNotMatch(run.stderr, /internal error|TypeError|RangeError|SyntaxError/);
       });
     }
     it(`${CONTRACT} an unknown command exits 2 with the command named`, async () => {
-      const run = await diskwise('sizes', '--size', '20G');
+      const run = await cachewright('sizes', '--size', '20G');
       assert.equal(run.code, 2);
       assert.match(run.stderr, /unknown command "sizes"/);
       assert.doesNotMatch(run.stderr + run.stdout, STACK_FRAME);
@@ -260,7 +260,7 @@ describe('cli: diskwise size', function () {
   });
 });
 
-describe('cli: diskwise size in process', () => {
+describe('cli: cachewright size in process', () => {
   it(`${CONTRACT} property: any argv gives exit 0 with output, or exit 2 with a message; never an exception`, () => {
     const token = fc.oneof(
       fc.constantFrom('--size', '--cluster-size', '--extended-l2', '--slice', '--refcount-bits', '--cache',
@@ -276,7 +276,7 @@ describe('cli: diskwise size in process', () => {
       if (code === 0) assert.ok(stdout.length > 0 && stderr === '');
       else {
         assert.equal(code, 2);
-        assert.match(stderr, /^diskwise size: \S/);
+        assert.match(stderr, /^cachewright size: \S/);
         assert.equal(stdout, '');
       }
     }), { numRuns: 300 });

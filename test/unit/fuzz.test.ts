@@ -38,7 +38,7 @@ function assertMessage(message: string, source: string): void {
 // ---- generated texts ----
 
 const TOKENS = [
-  '{', '}', '[', ']', ':', ': ', ',', '- ', ' ', '  ', '\n', '\r\n', '\t', '"', "'", '#', '# diskwise-accept l2-cache-undersized: r\n',
+  '{', '}', '[', ']', ':', ': ', ',', '- ', ' ', '  ', '\n', '\r\n', '\t', '"', "'", '#', '# cachewright-accept l2-cache-undersized: r\n',
   '&a ', '*a', '!!str ', '!tag ', '|\n', '>\n', '---\n', '...\n', '%YAML 1.2\n', '? ', '~', 'null', 'true', '\uFEFF', '\u{1F6A2}',
   'machines', 'disks', 'name', 'size', 'cluster', 'cache', 'l2', 'refcount', 'total', 'slice', 'cleanup', 'backing', 'memory',
   '1T', '64K', '2.5M', '0', '-1', '1e309', '0x10', '99999999999999999999', '12Q', '1 KB', '0.3K', '10m',
@@ -165,17 +165,17 @@ describe('fuzz: loadMapping', () => {
     assume: maybe(fc.dictionary(fc.constantFrom('clusterSize', 'requestSize', 'refcountBits', 'driver', 'platform', 'pattern', 'format', 'colour'), mappingValue)),
     budget: maybe(fc.oneof(fc.record({ cacheShareOfMemory: fc.oneof(fc.double(), mappingValue) }), mappingValue)),
     rules: maybe(fc.dictionary(fc.constantFrom('l2-cache-oversized', 'nope', ''), fc.constantFrom('off', 'error', 'loud', 1))),
-    ignore: maybe(fc.array(fc.record({ rule: mappingValue, pointer: fc.oneof(fc.constantFrom('', '/a', '/a~1b', 'a/b', '~'), mappingValue), reason: maybe(mappingValue), file: maybe(mappingValue) }, { requiredKeys: [] }), { maxLength: 3 })),
+    accept: maybe(fc.array(fc.record({ rule: mappingValue, pointer: fc.oneof(fc.constantFrom('', '/a', '/a~1b', 'a/b', '~'), mappingValue), reason: maybe(mappingValue), file: maybe(mappingValue) }, { requiredKeys: [] }), { maxLength: 3 })),
   }, { requiredKeys: [] });
   const mappingText = fc.oneof(
-    mappingArb.map((m) => ({ file: '/fuzz/diskwise.yaml', text: yamlStringify(m, { aliasDuplicateObjects: false }) })),
-    mappingArb.map((m) => ({ file: '/fuzz/diskwise.json', text: JSON.stringify(m, null, 2) })),
+    mappingArb.map((m) => ({ file: '/fuzz/cachewright.yaml', text: yamlStringify(m, { aliasDuplicateObjects: false }) })),
+    mappingArb.map((m) => ({ file: '/fuzz/cachewright.json', text: JSON.stringify(m, null, 2) })),
     fc.tuple(mappingArb, fc.nat(), fc.constantFrom('', '"', ':', '{', '- ', '\n  ', '#')).map(([m, at, ins]) => {
       const text = yamlStringify(m, { aliasDuplicateObjects: false });
       const i = at % (text.length + 1);
-      return { file: '/fuzz/diskwise.yaml', text: text.slice(0, i) + ins + text.slice(i + 1) };
+      return { file: '/fuzz/cachewright.yaml', text: text.slice(0, i) + ins + text.slice(i + 1) };
     }),
-    anyText.map((text) => ({ file: '/fuzz/diskwise.yaml', text })),
+    anyText.map((text) => ({ file: '/fuzz/cachewright.yaml', text })),
   );
   it('generated and broken mapping files: a mapping or problems at real places, never an exception', () => {
     fc.assert(fc.property(mappingText, ({ file, text }) => {
@@ -208,7 +208,7 @@ describe('fuzz: lintDocument', () => {
     }), { numRuns: 500 });
   });
   it('the same mapping file text as the docs and demo, through generated selectors, against the base fields', () => {
-    const load = loadMapping(JSON.stringify(mergeMapping(BASE_MAPPING, { disks: '$..[?@.size]', machines: undefined })), '/fuzz/diskwise.json');
+    const load = loadMapping(JSON.stringify(mergeMapping(BASE_MAPPING, { disks: '$..[?@.size]', machines: undefined })), '/fuzz/cachewright.json');
     assert.ok(load.mapping);
     const report = lintDocument({ path: '/fuzz/a.yaml', text: 'a:\n  b:\n    - size: 1T\n      c: { size: 2T }\n' }, load.mapping);
     assert.equal(report.disks.length, 2, 'descendant filters find disks at any depth');
@@ -219,7 +219,7 @@ describe('fuzz: inputs that must not hang (each in a child process)', function (
   this.timeout(60000);
   let dir = '';
   before(() => {
-    dir = mkdtempSync(path.join(tmpdir(), 'diskwise-fuzz-'));
+    dir = mkdtempSync(path.join(tmpdir(), 'cachewright-fuzz-'));
   });
   after(() => rmSync(dir, { recursive: true, force: true }));
 

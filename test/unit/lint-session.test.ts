@@ -16,13 +16,13 @@ fields:
     size: "$.capacity"
     clusterSize: "$.block"
     l2Cache: "$.tuning.l2"
-    totalCache: "$.tuning.total"
+    combinedCache: "$.tuning.total"
     cleanupInterval: "$.tuning.sweep"
     backing: "$.base"
     pattern: "$.io.pattern"
 `;
 const mapping = (() => {
-  const loaded = loadMapping(MAPPING, '/fleet/diskwise.yaml');
+  const loaded = loadMapping(MAPPING, '/fleet/cachewright.yaml');
   if (!loaded.mapping) throw new Error(loaded.problems.map((p) => p.message).join('; '));
   return loaded.mapping;
 })();
@@ -45,7 +45,7 @@ vms:
         base:
           label: golden
           capacity: 1T
-  # diskwise-accept l2-cache-oversized: reviewed
+  # cachewright-accept l2-cache-oversized: reviewed
   - hostname: wren-02
     ram: 8G
     volumes:

@@ -1,6 +1,6 @@
 // The mapping file loader: every problem is reported at its own line and column in the mapping
 // file (CONTRACTS.md §1), for YAML and JSON mapping files; selectors are RFC 9535 JSONPath, sizes
-// follow IEC 80000-13, ignore pointers RFC 6901.
+// follow IEC 80000-13, accept pointers RFC 6901.
 import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import * as path from 'node:path';
@@ -10,8 +10,8 @@ import { CONTRACT, IEC } from '../helpers/sources';
 const RFC9535 = '[RFC 9535]';
 const RFC6901 = '[RFC 6901]';
 const ROOT = path.resolve(__dirname, '../..');
-const YAML_PATH = '/workspace/diskwise.yaml';
-const JSON_PATH = '/workspace/diskwise.json';
+const YAML_PATH = '/workspace/cachewright.yaml';
+const JSON_PATH = '/workspace/cachewright.json';
 
 const MINIMAL = 'version: 1\ndisks: "$.volumes[*]"\nfields:\n  disk:\n    size: "$.capacity"\n';
 
@@ -37,8 +37,8 @@ describe('mapping: files that load', () => {
     assert.ok(load.mapping);
     assert.equal(load.mapping.machines, undefined, 'absent machines: the document is one machine');
   });
-  it(`${CONTRACT} the demo's mapping file (examples/diskwise.yaml)`, () => {
-    const file = path.join(ROOT, 'examples/diskwise.yaml');
+  it(`${CONTRACT} the demo's mapping file (examples/cachewright.yaml)`, () => {
+    const file = path.join(ROOT, 'examples/cachewright.yaml');
     const load = loadMapping(readFileSync(file, 'utf8'), file);
     assert.deepEqual(load.problems, []);
   });
@@ -48,7 +48,7 @@ describe('mapping: files that load', () => {
     assert.ok(block);
     const load = loadMapping(block[1] as string, YAML_PATH);
     assert.deepEqual(load.problems, []);
-    assert.equal(load.mapping?.severities['slice-size-suggested'], 'off');
+    assert.equal(load.mapping?.severities['cache-entry-size-suggested'], 'off');
   });
   it(`${IEC} assumed sizes are read with their units: 1M clusters, 8KiB writes`, () => {
     const load = loadMapping(`${MINIMAL}assume: { clusterSize: 1M, requestSize: 8KiB, driver: legacy, platform: other, refcountBits: 64 }\n`, YAML_PATH);
@@ -83,9 +83,9 @@ describe('mapping: files that load', () => {
     assert.equal(all?.includes(YAML_PATH), false);
     assert.equal(all?.includes('/workspace/a.json'), true);
   });
-  it(`${CONTRACT} an ignore entry's file is resolved against the mapping file's folder`, () => {
-    const mapping = loadMapping(`${MINIMAL}ignore:\n  - { rule: l2-cache-oversized, pointer: "/vms/0", file: fleet/a.json, reason: reviewed }\n  - { rule: l2-cache-oversized, pointer: "", reason: everywhere }\n`, YAML_PATH).mapping;
-    assert.deepEqual(mapping?.ignore.map((e) => e.file), ['/workspace/fleet/a.json', undefined]);
+  it(`${CONTRACT} an accept entry's file is resolved against the mapping file's folder`, () => {
+    const mapping = loadMapping(`${MINIMAL}accept:\n  - { rule: l2-cache-oversized, pointer: "/vms/0", file: fleet/a.json, reason: reviewed }\n  - { rule: l2-cache-oversized, pointer: "", reason: everywhere }\n`, YAML_PATH).mapping;
+    assert.deepEqual(mapping?.accept.map((e) => e.file), ['/workspace/fleet/a.json', undefined]);
   });
 });
 
@@ -149,23 +149,23 @@ describe('mapping: each problem at its own line and column', () => {
   it('an unknown access pattern in assume', () => {
     expectProblems(`${MINIMAL}assume: { pattern: bursty }\n`, [{ line: 6, column: 20, includes: ['assume.pattern', 'bursty'] }]);
   });
-  it('unknown rule ids in rules (at the key) and in ignore (at the value)', () => {
-    expectProblems(`${MINIMAL}rules:\n  l2-cache-tiny: off\nignore:\n  - { rule: no-such-rule, pointer: "/a", reason: r }\n`, [
+  it('unknown rule ids in rules (at the key) and in accept (at the value)', () => {
+    expectProblems(`${MINIMAL}rules:\n  l2-cache-tiny: off\naccept:\n  - { rule: no-such-rule, pointer: "/a", reason: r }\n`, [
       { line: 7, column: 3, includes: ['unknown rule id "l2-cache-tiny"'] },
-      { line: 9, column: 13, includes: ['ignore[0].rule', 'unknown rule id "no-such-rule"'] },
+      { line: 9, column: 13, includes: ['accept[0].rule', 'unknown rule id "no-such-rule"'] },
     ]);
   });
   it('a severity that is not error, warning, info or off', () => {
     expectProblems(`${MINIMAL}rules:\n  l2-cache-oversized: loud\n`, [{ line: 7, column: 23, includes: ['error', 'warning', 'info', 'off'] }]);
   });
-  it(`${RFC6901} ignore pointers that are not JSON Pointers, each at its value`, () => {
-    expectProblems(`${MINIMAL}ignore:\n  - { rule: l2-cache-oversized, pointer: "vms/0", reason: r }\n  - rule: l2-cache-oversized\n    pointer: "#/vms/1"\n    reason: r\n`, [
-      { line: 7, column: 42, includes: ['ignore[0].pointer', '"vms/0"', 'start with "/"'] },
-      { line: 9, column: 14, includes: ['ignore[1].pointer'] },
+  it(`${RFC6901} accept pointers that are not JSON Pointers, each at its value`, () => {
+    expectProblems(`${MINIMAL}accept:\n  - { rule: l2-cache-oversized, pointer: "vms/0", reason: r }\n  - rule: l2-cache-oversized\n    pointer: "#/vms/1"\n    reason: r\n`, [
+      { line: 7, column: 42, includes: ['accept[0].pointer', '"vms/0"', 'start with "/"'] },
+      { line: 9, column: 14, includes: ['accept[1].pointer'] },
     ]);
   });
-  it(`${CONTRACT} an ignore entry without a reason`, () => {
-    expectProblems(`${MINIMAL}ignore:\n  - { rule: l2-cache-oversized, pointer: "/a" }\n`, [{ line: 7, column: 5, includes: ['reason', 'required'] }]);
+  it(`${CONTRACT} an accept entry without a reason`, () => {
+    expectProblems(`${MINIMAL}accept:\n  - { rule: l2-cache-oversized, pointer: "/a" }\n`, [{ line: 7, column: 5, includes: ['reason', 'required'] }]);
   });
   it('a mapping file that is not a map at all', () => {
     expectProblems('- 1\n', [{ line: 1, column: 1, includes: ['expected object'] }]);
@@ -195,7 +195,7 @@ describe('mapping: JSON mapping files', () => {
     ], JSON_PATH);
   });
   it(`${RFC9535} ${RFC6901} selector, rule id and pointer problems at their places in JSON`, () => {
-    expectProblems('{\n  "version": 1,\n  "disks": "$.d[",\n  "fields": { "disk": { "size": "$.s" } },\n  "ignore": [\n    { "rule": "nope", "pointer": "p", "reason": "r" }\n  ]\n}\n', [
+    expectProblems('{\n  "version": 1,\n  "disks": "$.d[",\n  "fields": { "disk": { "size": "$.s" } },\n  "accept": [\n    { "rule": "nope", "pointer": "p", "reason": "r" }\n  ]\n}\n', [
       { line: 3, column: 12, includes: ['"$.d["'] },
       { line: 6, column: 15, includes: ['unknown rule id "nope"'] },
       { line: 6, column: 34, includes: ['"p" is not a JSON Pointer'] },
@@ -213,7 +213,7 @@ describe('mapping: never throws', () => {
       'version: 1\ndisks: "$.d[*]"\nfields:\n  disk: { size: "$.s" }\nassume: { refcountBits: 1.5 }\n',
       '\uFEFFversion: 1\n',
       'version: 1\r\ndisks: "$.d["\r\nfields:\r\n  disk: { size: "$.s" }\r\n',
-      'version: 1\ndisks: "$.d[*]"\nfields:\n  disk: { size: "$.s" }\nignore: [ { rule: 1, pointer: 2, reason: 3 } ]\n',
+      'version: 1\ndisks: "$.d[*]"\nfields:\n  disk: { size: "$.s" }\naccept: [ { rule: 1, pointer: 2, reason: 3 } ]\n',
     ];
     for (const text of texts) {
       const load = loadMapping(text, YAML_PATH);

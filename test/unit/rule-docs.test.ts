@@ -11,7 +11,7 @@ import { parseSize } from '../../src/core/units';
 import { writeImage } from '../image/qcow2-writer';
 
 const ROOT = path.resolve(__dirname, '../..');
-const DEMO_MAPPING = path.join(ROOT, 'examples/diskwise.yaml');
+const DEMO_MAPPING = path.join(ROOT, 'examples/cachewright.yaml');
 
 function demoMapping() {
   const load = loadMapping(readFileSync(DEMO_MAPPING, 'utf8'), DEMO_MAPPING);
@@ -59,7 +59,7 @@ describe('rule docs pages', () => {
         let options: LintOptions = {};
         let dir: string | undefined;
         if (images) {
-          dir = mkdtempSync(path.join(tmpdir(), 'diskwise-docs-'));
+          dir = mkdtempSync(path.join(tmpdir(), 'cachewright-docs-'));
           definition = path.join(dir, 'fleet.yaml');
           for (const spec of (images[1] as string).matchAll(/(\S+\.qcow2) clusterBits=(\d+) size=(\S+)/g)) {
             const target = path.join(dir, spec[1] as string);

@@ -1,4 +1,4 @@
-// The JSON Schema shipped for editors (schema/diskwise.schema.json, generated from the zod schema)
+// The JSON Schema shipped for editors (schema/cachewright.schema.json, generated from the zod schema)
 // checked with a general-purpose JSON Schema validator (ajv, draft-07): it accepts the demo's
 // mapping file and the docs' example, refuses what the loader refuses, and agrees with the zod
 // schema on generated mapping files.
@@ -11,7 +11,7 @@ import { parse as parseYaml, stringify as yamlStringify } from 'yaml';
 import { mappingJsonSchema, mappingSchema } from '../../src/model/mappingSchema';
 
 const ROOT = path.resolve(__dirname, '../..');
-const SCHEMA_FILE = path.join(ROOT, 'schema/diskwise.schema.json');
+const SCHEMA_FILE = path.join(ROOT, 'schema/cachewright.schema.json');
 const DRAFT7 = '[JSON Schema draft-07]';
 
 const schema = JSON.parse(readFileSync(SCHEMA_FILE, 'utf8')) as Record<string, unknown>;
@@ -19,13 +19,13 @@ const ajv = new Ajv({ allErrors: true, strict: false });
 const validate = ajv.compile(schema);
 const errorsOf = () => (validate.errors ?? []).map((e) => `${e.instancePath} ${e.message}`).join('; ');
 
-describe(`schema: ${DRAFT7} schema/diskwise.schema.json`, () => {
+describe(`schema: ${DRAFT7} schema/cachewright.schema.json`, () => {
   it('is a valid draft-07 schema and the file matches what the zod schema generates now', () => {
     assert.equal(schema.$schema, 'http://json-schema.org/draft-07/schema#');
     assert.deepEqual(schema, JSON.parse(JSON.stringify(mappingJsonSchema())), 'run `npm run schema` to regenerate it');
   });
-  it('accepts examples/diskwise.yaml', () => {
-    const demo = parseYaml(readFileSync(path.join(ROOT, 'examples/diskwise.yaml'), 'utf8'));
+  it('accepts examples/cachewright.yaml', () => {
+    const demo = parseYaml(readFileSync(path.join(ROOT, 'examples/cachewright.yaml'), 'utf8'));
     assert.ok(validate(demo), errorsOf());
   });
   it('accepts the complete example of docs/mapping-file.md', () => {
@@ -35,14 +35,14 @@ describe(`schema: ${DRAFT7} schema/diskwise.schema.json`, () => {
     assert.ok(validate(parseYaml(block[1] as string)), errorsOf());
   });
   it('refuses unknown keys, a missing disks selector, a wrong version and a bad severity', () => {
-    const demo = parseYaml(readFileSync(path.join(ROOT, 'examples/diskwise.yaml'), 'utf8')) as Record<string, unknown>;
+    const demo = parseYaml(readFileSync(path.join(ROOT, 'examples/cachewright.yaml'), 'utf8')) as Record<string, unknown>;
     const cases: [string, Record<string, unknown>][] = [
       ['unknown top-level key', { ...demo, colour: 'red' }],
       ['unknown disk field', { ...demo, fields: { disk: { size: '$.s', colour: '$.c' } } }],
       ['no disks', Object.fromEntries(Object.entries(demo).filter(([k]) => k !== 'disks'))],
       ['version 2', { ...demo, version: 2 }],
       ['severity loud', { ...demo, rules: { 'l2-cache-oversized': 'loud' } }],
-      ['ignore without reason', { ...demo, ignore: [{ rule: 'l2-cache-oversized', pointer: '/a' }] }],
+      ['accept without reason', { ...demo, accept: [{ rule: 'l2-cache-oversized', pointer: '/a' }] }],
       ['budget above 1', { ...demo, budget: { cacheShareOfMemory: 2 } }],
     ];
     for (const [name, value] of cases) assert.equal(validate(value), false, name);
@@ -50,7 +50,7 @@ describe(`schema: ${DRAFT7} schema/diskwise.schema.json`, () => {
   it('property: on generated mapping objects, ajv with the shipped schema and the zod schema agree', () => {
     // A valid mapping with at most two places changed to a generated value: about half stay valid,
     // so both answers are compared.
-    const base = parseYaml(readFileSync(path.join(ROOT, 'examples/diskwise.yaml'), 'utf8')) as Record<string, unknown>;
+    const base = parseYaml(readFileSync(path.join(ROOT, 'examples/cachewright.yaml'), 'utf8')) as Record<string, unknown>;
     const value = fc.oneof(
       fc.constantFrom('$.a', '', '64K', 2048, 'off', 'error', 'loud', 'current', 'legacy', 'other', 'linux', 'mixed', 'zipf:0.8', '/a', 'qcow2', 0.5, 1, 0, -1, 16, 3, null, true, [], {}, ['x'], [''], { a: 1 }),
       fc.double({ noNaN: true, noDefaultInfinity: true }),

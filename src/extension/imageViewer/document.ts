@@ -85,7 +85,7 @@ export class ImageDocument implements vscode.CustomDocument {
     }
     if (this.uri.scheme !== 'file') {
       this.reports = [];
-      this.note = `diskwise reads images from local files only; ${this.uri.toString()} is not one.`;
+      this.note = `cachewright reads images from local files only; ${this.uri.toString()} is not one.`;
       this.publish('failed');
       return Promise.resolve();
     }
@@ -139,7 +139,7 @@ export class ImageDocument implements vscode.CustomDocument {
       this.publish(finalState(this.reports));
     } catch (error) {
       // The reader reports bad files in the report; anything thrown is a fault of ours, shown plainly.
-      this.note = `diskwise could not finish reading this image: ${error instanceof Error ? error.message : String(error)}`;
+      this.note = `cachewright could not finish reading this image: ${error instanceof Error ? error.message : String(error)}`;
       this.publish('failed');
     }
   }
@@ -165,7 +165,7 @@ export class ImageDocument implements vscode.CustomDocument {
     setTimeout(() => {
       if (finished || abort.signal.aborted) return;
       void vscode.window.withProgress(
-        { location: vscode.ProgressLocation.Notification, title: `diskwise: reading ${this.fileName}`, cancellable: true },
+        { location: vscode.ProgressLocation.Notification, title: `cachewright: reading ${this.fileName}`, cancellable: true },
         async (reporter, token) => {
           token.onCancellationRequested(() => abort.abort());
           let shown = 0;

@@ -3,12 +3,12 @@
 //
 // Commands it registers for tests and automation (not in the command palette), each taking an
 // optional image URI string (default: the image whose viewer was active last):
-//   diskwise.imageViewer.lastView  -> the last view model a webview drew, wire-encoded (decodeSnapshot)
-//   diskwise.imageViewer.stop      -> stops a running walk; true when one was running
-//   diskwise.imageViewer.reread    -> reads the image again; resolves when done
-//   diskwise.imageViewer.setProfile (uri, { generation, platform }) -> the driver-default profile the
+//   cachewright.imageViewer.lastView  -> the last view model a webview drew, wire-encoded (decodeSnapshot)
+//   cachewright.imageViewer.stop      -> stops a running walk; true when one was running
+//   cachewright.imageViewer.reread    -> reads the image again; resolves when done
+//   cachewright.imageViewer.setProfile (uri, { generation, platform }) -> the driver-default profile the
 //                                     caches assume, as the webview's selector sets it
-//   diskwise.imageViewer.stopAtFirstProgress (uri) -> the next walk of that image stops itself at its
+//   cachewright.imageViewer.stopAtFirstProgress (uri) -> the next walk of that image stops itself at its
 //                                     first progress report, so a stop lands mid-walk deterministically
 import * as vscode from 'vscode';
 import { encodeSnapshot, type ProfileChoice } from './protocol';
@@ -24,15 +24,15 @@ export function registerImageViewer(context: vscode.ExtensionContext): void {
       webviewOptions: { retainContextWhenHidden: false },
     }),
     vscode.workspace.onDidGrantWorkspaceTrust(() => provider.readUntrusted()),
-    vscode.commands.registerCommand('diskwise.imageViewer.lastView', (uri?: string) => {
+    vscode.commands.registerCommand('cachewright.imageViewer.lastView', (uri?: string) => {
       const snapshot = provider.snapshot(uri);
       return snapshot ? encodeSnapshot(snapshot) : undefined;
     }),
-    vscode.commands.registerCommand('diskwise.imageViewer.stop', (uri?: string) => provider.stop(uri)),
-    vscode.commands.registerCommand('diskwise.imageViewer.reread', async (uri?: string) => {
+    vscode.commands.registerCommand('cachewright.imageViewer.stop', (uri?: string) => provider.stop(uri)),
+    vscode.commands.registerCommand('cachewright.imageViewer.reread', async (uri?: string) => {
       await provider.reread(uri);
     }),
-    vscode.commands.registerCommand('diskwise.imageViewer.setProfile', (uri: string | undefined, choice: ProfileChoice) => provider.setProfile(uri, choice)),
-    vscode.commands.registerCommand('diskwise.imageViewer.stopAtFirstProgress', (uri: string) => provider.armStop(uri)),
+    vscode.commands.registerCommand('cachewright.imageViewer.setProfile', (uri: string | undefined, choice: ProfileChoice) => provider.setProfile(uri, choice)),
+    vscode.commands.registerCommand('cachewright.imageViewer.stopAtFirstProgress', (uri: string) => provider.armStop(uri)),
   );
 }

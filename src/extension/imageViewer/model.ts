@@ -152,7 +152,7 @@ function chainMemory(reports: readonly ImageReport[], profile: DriverProfile): C
 function statusLine(state: ViewState, layers: readonly LayerView[], progress: WalkProgressView | null): string {
   switch (state) {
     case 'untrusted':
-      return 'This workspace is not trusted, so diskwise reads no image files in it. Trust the workspace to see this image.';
+      return 'This workspace is not trusted, so cachewright reads no image files in it. Trust the workspace to see this image.';
     case 'reading':
       return progress && progress.layer > 0 ? `Reading the tables of backing layer ${progress.layer}…` : 'Reading the L1 and L2 tables…';
     case 'cancelled':

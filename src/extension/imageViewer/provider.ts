@@ -16,7 +16,7 @@ function isProfileChoice(value: unknown): value is ProfileChoice {
     && HOST_PLATFORMS.includes(v.platform as ProfileChoice['platform']);
 }
 
-export const IMAGE_VIEW_TYPE = 'diskwise.qcow2Image';
+export const IMAGE_VIEW_TYPE = 'cachewright.qcow2Image';
 
 export class ImageViewerProvider implements vscode.CustomReadonlyEditorProvider<ImageDocument> {
   private readonly documents = new Set<ImageDocument>();

@@ -12,9 +12,9 @@ const KiB = 1024;
 
 describe('diagnostics on the demo fleet', () => {
   before(async () => {
-    const diskwise = await api();
-    const first = await waitFor('the first diagnostics', () => diskwise.timings().firstDiagnosticsMs);
-    perf('activation to first diagnostics on the demo', `${first} ms (target under 300 ms; mapping file loaded after ${diskwise.timings().mappingsLoadedMs ?? '?'} ms)`);
+    const cachewright = await api();
+    const first = await waitFor('the first diagnostics', () => cachewright.timings().firstDiagnosticsMs);
+    perf('activation to first diagnostics on the demo', `${first} ms (target under 300 ms; mapping file loaded after ${cachewright.timings().mappingsLoadedMs ?? '?'} ms)`);
   });
 
   it('flags the ledger disk\'s undersized L2 cache at its value, with the rule id linked to its docs page', async () => {
@@ -92,8 +92,8 @@ describe('diagnostics on the demo fleet', () => {
     const { document } = await open(HARBOUR);
     await waitFor('diagnostics', () => ours(document.uri).some((d) => codeOf(d) === 'l2-cache-undersized'));
     const whole = new vscode.Range(0, 0, document.lineCount, 0);
-    const actions = await vscode.commands.executeCommand<vscode.CodeAction[]>('vscode.executeCodeActionProvider', document.uri, whole, 'source.fixAll.diskwise');
-    const fixAll = actions.find((a) => a.kind?.value === 'source.fixAll.diskwise');
+    const actions = await vscode.commands.executeCommand<vscode.CodeAction[]>('vscode.executeCodeActionProvider', document.uri, whole, 'source.fixAll.cachewright');
+    const fixAll = actions.find((a) => a.kind?.value === 'source.fixAll.cachewright');
     assert.ok(fixAll?.edit, `a fix-all action among: ${actions.map((a) => `${a.title} (${a.kind?.value})`).join('; ')}`);
     assert.ok(await vscode.workspace.applyEdit(fixAll.edit));
     const text = document.getText();
@@ -111,7 +111,7 @@ describe('diagnostics on the demo fleet', () => {
   it('runs the fix-all command on the active file, leaving only findings without a fix', async () => {
     const { document } = await open(TICKETING);
     await waitFor('diagnostics', () => ours(document.uri).some((d) => codeOf(d) === 'cache-not-aligned'));
-    const applied = await vscode.commands.executeCommand<number>('diskwise.fixAllInFile');
+    const applied = await vscode.commands.executeCommand<number>('cachewright.fixAllInFile');
     assert.ok(applied >= 2, `applied ${applied} fixes`);
     const text = document.getText();
     assert.ok(text.includes('l2: 128M'), 'the ledger gets full coverage');

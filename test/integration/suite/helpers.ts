@@ -1,12 +1,12 @@
 // Small helpers for tests that run inside the real extension host.
 import * as assert from 'node:assert/strict';
 import * as vscode from 'vscode';
-import type { DiskwiseApi } from '../../../src/extension/extension';
+import type { CachewrightApi } from '../../../src/extension/extension';
 
-export const EXTENSION_ID = 'diskwise-dev.diskwise';
+export const EXTENSION_ID = 'cachewright.cachewright';
 
-export async function api(): Promise<DiskwiseApi> {
-  const ext = vscode.extensions.getExtension<DiskwiseApi>(EXTENSION_ID);
+export async function api(): Promise<CachewrightApi> {
+  const ext = vscode.extensions.getExtension<CachewrightApi>(EXTENSION_ID);
   assert.ok(ext, `extension ${EXTENSION_ID} is loaded in the host`);
   const exported = await ext.activate();
   await exported.ready;
@@ -33,7 +33,7 @@ export async function waitFor<T>(what: string, probe: () => T | undefined | fals
 }
 
 export function ours(uri: vscode.Uri): vscode.Diagnostic[] {
-  return vscode.languages.getDiagnostics(uri).filter((d) => d.source === 'diskwise');
+  return vscode.languages.getDiagnostics(uri).filter((d) => d.source === 'cachewright');
 }
 
 export function codeOf(diagnostic: vscode.Diagnostic): string | undefined {

@@ -14,7 +14,7 @@ import { writeImage, type ClusterSpec, type WrittenImage } from '../../image/qco
 import { decodeSnapshot, type ImageView, type ViewerSnapshot } from '../../../src/extension/imageViewer/protocol';
 import { api, demoFile, waitFor } from './helpers';
 
-const VIEW_TYPE = 'diskwise.qcow2Image';
+const VIEW_TYPE = 'cachewright.qcow2Image';
 const KiB = 1024n;
 const MiB = 1024n * KiB;
 const GiB = 1024n * MiB;
@@ -22,7 +22,7 @@ const GiB = 1024n * MiB;
 const sha256 = (file: string): string => createHash('sha256').update(readFileSync(file)).digest('hex');
 
 async function snapshot(uri: vscode.Uri): Promise<ViewerSnapshot | undefined> {
-  return decodeSnapshot(await vscode.commands.executeCommand('diskwise.imageViewer.lastView', uri.toString()));
+  return decodeSnapshot(await vscode.commands.executeCommand('cachewright.imageViewer.lastView', uri.toString()));
 }
 
 /** Opens the image in the viewer and waits until the webview has drawn a finished view of it. */
@@ -52,7 +52,7 @@ describe('qcow2 image viewer', () => {
 
   before(async () => {
     await api();
-    dir = mkdtempSync(path.join(tmpdir(), 'diskwise-viewer-'));
+    dir = mkdtempSync(path.join(tmpdir(), 'cachewright-viewer-'));
     plain = writeImage(path.join(dir, 'plain.qcow2'), { version: 3, clusterBits: 16, virtualSize: 8n * GiB, clusters: plainClusters });
   });
 
@@ -140,7 +140,7 @@ describe('qcow2 image viewer', () => {
     assert.equal(first.view.layers[0]?.caches?.driverDefault.l2, 32n * MiB);
 
     const pick = async (generation: string, platform: string): Promise<ViewerSnapshot> => {
-      assert.equal(await vscode.commands.executeCommand('diskwise.imageViewer.setProfile', uri.toString(), { generation, platform }), true);
+      assert.equal(await vscode.commands.executeCommand('cachewright.imageViewer.setProfile', uri.toString(), { generation, platform }), true);
       return waitFor(`the ${generation}/${platform} profile drawn`, async () => {
         const shot = await snapshot(uri);
         return shot?.view.profileChoice.generation === generation && shot.view.profileChoice.platform === platform ? shot : undefined;
@@ -263,7 +263,7 @@ describe('qcow2 image viewer', () => {
       clusters: Array.from({ length: 2048 }, (_, t) => ({ guest: t * 64, kind: 'data' as const })),
     });
     const uri = vscode.Uri.file(many.path);
-    await vscode.commands.executeCommand('diskwise.imageViewer.stopAtFirstProgress', uri.toString());
+    await vscode.commands.executeCommand('cachewright.imageViewer.stopAtFirstProgress', uri.toString());
     const stopped = await openImage(many.path);
     assert.equal(stopped.view.state, 'cancelled');
     assert.equal(stopped.drawn.state, 'cancelled');
@@ -272,7 +272,7 @@ describe('qcow2 image viewer', () => {
     assert.equal(stopped.view.layers[0]?.facts?.clusterSize, 512n, 'header facts stay after a stop');
     assert.equal(stopped.view.layers[0]?.walk, null, 'the stopped layer has no walk counts');
 
-    await vscode.commands.executeCommand('diskwise.imageViewer.reread', uri.toString());
+    await vscode.commands.executeCommand('cachewright.imageViewer.reread', uri.toString());
     const done = await waitFor('the second read', async () => {
       const shot = await snapshot(uri);
       return shot?.view.state === 'done' ? shot : undefined;
@@ -300,7 +300,7 @@ describe('qcow2 image viewer', () => {
       return shot?.view.changedOnDisk === 'changed' && shot.drawn.changedNotice ? shot : undefined;
     }, 15_000);
     assert.equal(stale.view.layers[0]?.walk?.l2TablesAllocated, first.truth.l2TablesAllocated, 'the old numbers stay until read again');
-    await vscode.commands.executeCommand('diskwise.imageViewer.reread', uri.toString());
+    await vscode.commands.executeCommand('cachewright.imageViewer.reread', uri.toString());
     const fresh = await waitFor('the fresh read', async () => {
       const shot = await snapshot(uri);
       return shot?.view.state === 'done' && shot.view.changedOnDisk === null ? shot : undefined;

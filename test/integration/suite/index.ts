@@ -15,7 +15,7 @@ const testFiles: Array<() => unknown> = [
 export function run(): Promise<void> {
   const mocha = new Mocha({ ui: 'bdd', reporter: 'spec', color: false, timeout: 30000 });
   // Define describe/it on the global object before the test modules run.
-  mocha.suite.emit('pre-require', globalThis, 'diskwise-integration', mocha);
+  mocha.suite.emit('pre-require', globalThis, 'cachewright-integration', mocha);
   for (const load of testFiles) load();
   console.log(SUITE_START_MARK);
   return new Promise((resolve, reject) => {

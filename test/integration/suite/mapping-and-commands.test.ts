@@ -10,7 +10,7 @@ import { api, codeOf, demoFile, open, ours, perf, rangeOf, revert, waitFor, work
 describe('the mapping file', () => {
   it('shows its own errors at their positions while it is edited', async () => {
     await api();
-    const { document, editor } = await open('diskwise.yaml');
+    const { document, editor } = await open('cachewright.yaml');
     assert.equal(ours(document.uri).length, 0, 'the demo mapping file is clean');
     const range = rangeOf(document, 'disks: "$.volumes[*]"', '"$.volumes[*]"');
     await editor.edit((b) => b.replace(range, '"$.volumes[*"'));
@@ -24,7 +24,7 @@ describe('the mapping file', () => {
   });
 
   it('reports an unknown key at that key', async () => {
-    const { document, editor } = await open('diskwise.yaml');
+    const { document, editor } = await open('cachewright.yaml');
     const range = rangeOf(document, 'budget:', 'budget');
     await editor.edit((b) => b.replace(range, 'budgets'));
     const problem = await waitFor('an unknown-key diagnostic', () => ours(document.uri)[0]);
@@ -35,9 +35,9 @@ describe('the mapping file', () => {
   });
 
   it('is validated against the shipped JSON Schema when written as JSON', async () => {
-    // A diskwise.json below the root is not a mapping diskwise loads, but the editor's JSON support
+    // A cachewright.json below the root is not a mapping cachewright loads, but the editor's JSON support
     // validates it with the schema the manifest associates.
-    const probe = vscode.Uri.joinPath(workspaceRoot(), 'probe', 'diskwise.json');
+    const probe = vscode.Uri.joinPath(workspaceRoot(), 'probe', 'cachewright.json');
     await vscode.workspace.fs.writeFile(probe, new TextEncoder().encode('{\n  "version": 1,\n  "disks": "$.volumes[*]",\n  "fields": { "disk": {} },\n  "colour": "blue"\n}\n'));
     const document = await vscode.workspace.openTextDocument(probe);
     await vscode.window.showTextDocument(document);
@@ -53,15 +53,15 @@ describe('commands, status bar and panel', () => {
   it('registers its commands in one category', async () => {
     await api();
     const commands = await vscode.commands.getCommands(true);
-    for (const id of ['diskwise.showSizingPanel', 'diskwise.lintWorkspace', 'diskwise.fixAllInFile', 'diskwise.createStarterMapping']) {
+    for (const id of ['cachewright.showSizingPanel', 'cachewright.lintWorkspace', 'cachewright.fixAllInFile', 'cachewright.createStarterMapping']) {
       assert.ok(commands.includes(id), `${id} is registered`);
     }
-    const manifest = vscode.extensions.getExtension('diskwise-dev.diskwise')?.packageJSON as { contributes: { commands: { category: string }[] } };
-    assert.ok(manifest.contributes.commands.every((c) => c.category === 'diskwise'));
+    const manifest = vscode.extensions.getExtension('cachewright.cachewright')?.packageJSON as { contributes: { commands: { category: string }[] } };
+    assert.ok(manifest.contributes.commands.every((c) => c.category === 'cachewright'));
   });
 
   it('lints the workspace: every included definition, none excluded', async () => {
-    const summary = await vscode.commands.executeCommand<{ files: number; findings: number }>('diskwise.lintWorkspace');
+    const summary = await vscode.commands.executeCommand<{ files: number; findings: number }>('cachewright.lintWorkspace');
     assert.equal(summary.files, 2, 'fleet/ticketing.yaml and fleet/harbour.json');
     assert.ok(summary.findings > 0);
     const harbour = demoFile('fleet/harbour.json');
@@ -86,10 +86,10 @@ describe('commands, status bar and panel', () => {
   });
 
   it('shows the active file\'s cache memory in the status bar', async () => {
-    const diskwise = await api();
+    const cachewright = await api();
     const { document } = await open('fleet/ticketing.yaml');
-    const result = await waitFor('a result', () => diskwise.result(document.uri));
-    const text = await waitFor('the status text', () => (diskwise.statusText().includes('cache') ? diskwise.statusText() : undefined));
+    const result = await waitFor('a result', () => cachewright.result(document.uri));
+    const text = await waitFor('the status text', () => (cachewright.statusText().includes('cache') ? cachewright.statusText() : undefined));
     // The item adds up every disk and layer of the file (the layers come from the images the
     // definitions name, where they can be read).
     const total = result.report.disks.reduce((sum, d) => sum + d.sizing.cacheMemoryTotal, 0n);
@@ -98,29 +98,29 @@ describe('commands, status bar and panel', () => {
   });
 
   it('opens the sizing panel beside the definition and follows edits', async () => {
-    const diskwise = await api();
+    const cachewright = await api();
     const { document, editor } = await open('fleet/ticketing.yaml');
-    await vscode.commands.executeCommand('diskwise.showSizingPanel');
-    await waitFor('the panel to show ticketing.yaml', () => diskwise.panelShows() === document.uri.toString());
-    const disks = await diskwise.refreshPanel(document.uri);
+    await vscode.commands.executeCommand('cachewright.showSizingPanel');
+    await waitFor('the panel to show ticketing.yaml', () => cachewright.panelShows() === document.uri.toString());
+    const disks = await cachewright.refreshPanel(document.uri);
     assert.equal(disks, 4, 'four qcow2 disks drawn (the raw scratch disk is not sized)');
     // An edit re-renders the panel; the host measures lint + post + draw.
     const range = rangeOf(document, 'l2: 5M', '5M');
     const redraw = async (count: number): Promise<number> => {
-      await waitFor('the panel to redraw after the edit', () => diskwise.timings().panelUpdates > count);
-      return diskwise.timings().panelUpdateMs ?? -1;
+      await waitFor('the panel to redraw after the edit', () => cachewright.timings().panelUpdates > count);
+      return cachewright.timings().panelUpdateMs ?? -1;
     };
-    const before = diskwise.timings().panelUpdates;
+    const before = cachewright.timings().panelUpdates;
     await editor.edit((b) => b.replace(range, '6M'));
     const updated = await redraw(before);
     perf('panel update after an edit (lint + message + draw)', `${updated} ms (target under 100 ms)`);
     const samples: number[] = [];
     for (let i = 0; i < 5; i++) {
       const at = rangeOf(document, 'l2: 6M', '6M');
-      let count = diskwise.timings().panelUpdates;
+      let count = cachewright.timings().panelUpdates;
       await editor.edit((b) => b.replace(at, '7M'));
       samples.push(await redraw(count));
-      count = diskwise.timings().panelUpdates;
+      count = cachewright.timings().panelUpdates;
       const back = rangeOf(document, 'l2: 7M', '7M');
       await editor.edit((b) => b.replace(back, '6M'));
       await redraw(count);
@@ -141,7 +141,7 @@ describe('commands, status bar and panel', () => {
     assert.equal(proposal.diskFields.name, '$.label');
     assert.equal(proposal.machineFields.memory, '$.ram');
     assert.equal(proposal.machineFields.name, '$.hostname');
-    const loaded = loadMapping(proposal.text, '/tmp/diskwise.yaml');
+    const loaded = loadMapping(proposal.text, '/tmp/cachewright.yaml');
     assert.deepEqual(loaded.problems, [], proposal.text);
     assert.deepEqual(proposal.include, ['fleet/**/*.yaml', 'fleet/**/*.yml']);
   });
@@ -156,30 +156,30 @@ describe('commands, status bar and panel', () => {
     assert.equal(proposal.diskFields.image, '$.file');
     assert.equal(proposal.diskFields.format, '$.kind');
     assert.deepEqual(proposal.include, ['fleet/**/*.json']);
-    assert.deepEqual(loadMapping(proposal.text, '/tmp/diskwise.yaml').problems, [], proposal.text);
+    assert.deepEqual(loadMapping(proposal.text, '/tmp/cachewright.yaml').problems, [], proposal.text);
   });
 
   it('writes the starter mapping file once the user confirms, and lints with it', async () => {
-    const diskwise = await api();
-    const mappingUri = demoFile('diskwise.yaml');
-    const saved = demoFile('diskwise.yaml.saved');
+    const cachewright = await api();
+    const mappingUri = demoFile('cachewright.yaml');
+    const saved = demoFile('cachewright.yaml.saved');
     await vscode.commands.executeCommand('workbench.action.closeAllEditors');
     await vscode.workspace.fs.rename(mappingUri, saved);
     try {
-      await vscode.commands.executeCommand('diskwise.lintWorkspace');
+      await vscode.commands.executeCommand('cachewright.lintWorkspace');
       const { document } = await open('fleet/ticketing.yaml');
       await waitFor('no diagnostics without a mapping', () => ours(document.uri).length === 0);
-      const written = await vscode.commands.executeCommand<vscode.Uri | undefined>('diskwise.createStarterMapping', { confirm: false });
+      const written = await vscode.commands.executeCommand<vscode.Uri | undefined>('cachewright.createStarterMapping', { confirm: false });
       assert.ok(written, 'the file was written');
       assert.equal(written.toString(), mappingUri.toString());
       const text = new TextDecoder().decode(await vscode.workspace.fs.readFile(mappingUri));
       assert.match(text, /machines: "\$\.vms\[\*\]"/);
-      await waitFor('diagnostics under the starter mapping', () => diskwise.result(document.uri) && ours(document.uri).length > 0);
+      await waitFor('diagnostics under the starter mapping', () => cachewright.result(document.uri) && ours(document.uri).length > 0);
     } finally {
       await vscode.commands.executeCommand('workbench.action.closeAllEditors');
       await vscode.workspace.fs.delete(mappingUri).then(undefined, () => undefined);
       await vscode.workspace.fs.rename(saved, mappingUri);
-      await vscode.commands.executeCommand('diskwise.lintWorkspace');
+      await vscode.commands.executeCommand('cachewright.lintWorkspace');
     }
   });
 });

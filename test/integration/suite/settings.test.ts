@@ -6,7 +6,7 @@ import { api, codeOf, demoFile, open, ours, waitFor } from './helpers';
 const TICKETING = 'fleet/ticketing.yaml';
 
 async function set(key: string, value: unknown): Promise<void> {
-  await vscode.workspace.getConfiguration('diskwise').update(key, value, vscode.ConfigurationTarget.Workspace);
+  await vscode.workspace.getConfiguration('cachewright').update(key, value, vscode.ConfigurationTarget.Workspace);
 }
 
 describe('settings', () => {
@@ -42,14 +42,14 @@ describe('settings', () => {
   });
 
   it('uses the mapping file the setting names, and lints only what that one includes', async () => {
-    const root = new TextDecoder().decode(await vscode.workspace.fs.readFile(demoFile('diskwise.yaml')));
+    const root = new TextDecoder().decode(await vscode.workspace.fs.readFile(demoFile('cachewright.yaml')));
     // The same mapping placed in fleet/, including only YAML files below it.
-    const yamlOnly = root.replace(/^include:.*$/m, 'include: ["*.yaml"]').replace(/^exclude:.*$/m, '').replace(/^ignore:[\s\S]*$/m, '');
+    const yamlOnly = root.replace(/^include:.*$/m, 'include: ["*.yaml"]').replace(/^exclude:.*$/m, '').replace(/^accept:[\s\S]*$/m, '');
     const alternative = demoFile('fleet/yaml-only.mapping.yaml');
     await vscode.workspace.fs.writeFile(alternative, new TextEncoder().encode(yamlOnly));
     const harbour = demoFile('fleet/harbour.json');
     try {
-      await vscode.commands.executeCommand('diskwise.lintWorkspace');
+      await vscode.commands.executeCommand('cachewright.lintWorkspace');
       await waitFor('harbour.json linted under the root mapping', () => ours(harbour).length > 0);
       await set('mappingFile', 'fleet/yaml-only.mapping.yaml');
       await waitFor('harbour.json left out by the configured mapping', () => ours(harbour).length === 0);

@@ -1,11 +1,11 @@
-// slice-size-suggested: with large clusters, a whole-table cache entry is a whole cluster of L2
+// cache-entry-size-suggested: with large clusters, a whole-table cache entry is a whole cluster of L2
 // entries read on each miss; a cache entry (slice) of the host filesystem block, 4 KiB, reads only
 // the part needed ([CACHE]: slices are powers of two from 512 B to the cluster size, L2 only).
 import { strict as assert } from 'node:assert';
 import { CACHE } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, roundTrip, ruleTable } from './harness';
 
-const RULE = 'slice-size-suggested';
+const RULE = 'cache-entry-size-suggested';
 
 ruleTable(RULE, {
   valid: [
