@@ -143,7 +143,7 @@ describe('cachewright lint --record-known / --known', () => {
     await lintIn(dir, ['--record-known', 'known.json']);
     const quiet = await lintIn(dir, ['--known', 'known.json', '--format', 'json']);
     assert.equal(quiet.code, 0, quiet.stderr);
-    const before = JSON.parse(quiet.stdout) as LintJson & { files: { findings: { baselineState?: string }[] }[] };
+    const before = JSON.parse(quiet.stdout) as LintJson;
     assert.ok(before.files[0]?.findings.every((f) => f.baselineState === 'unchanged'));
     assert.equal(before.summary.warnings, 0);
     assert.equal(before.summary.knownGone, 0);
@@ -152,7 +152,7 @@ describe('cachewright lint --record-known / --known', () => {
     fs.appendFileSync(path.join(dir, 'fleet/a.yaml'), '      - label: logs\n        capacity: 1T\n        tuning: { l2: 4M }\n');
     const grown = await lintIn(dir, ['--known', 'known.json', '--format', 'json', '--max-warnings', '0']);
     assert.equal(grown.code, 1);
-    const after = JSON.parse(grown.stdout) as LintJson & { files: { findings: { baselineState?: string; pointer: string }[] }[] };
+    const after = JSON.parse(grown.stdout) as LintJson;
     const states = after.files[0]?.findings.map((f) => `${f.pointer} ${f.baselineState}`);
     assert.ok(states?.includes('/vms/0/volumes/2/tuning/l2 new'), states?.join('\n'));
     assert.ok(states?.includes('/vms/0/volumes/1/tuning/l2 unchanged'), states?.join('\n'));
