@@ -4,7 +4,8 @@ import * as fs from 'node:fs';
 import { fail, ok, type Outcome } from '../core/result';
 import { compareWithKnown, readKnownFile, recordKnown, renderKnownFile, type KnownComparison } from '../review/known';
 import type { ReviewedFile } from '../review/types';
-import { displayPath, ioMessage, stripBom } from './lint-discovery';
+import { ioMessage, readRegularText } from '../files/open';
+import { displayPath, stripBom } from './lint-discovery';
 import { writeFileAtomic } from './lint-fix';
 import { mappingRelative, type LintRun } from './lint-results';
 
@@ -17,7 +18,7 @@ export function compareRunWithKnown(run: Pick<LintRun, 'mapping' | 'files'>, kno
   const shown = displayPath(knownPath, cwd);
   let text: string;
   try {
-    text = stripBom(fs.readFileSync(knownPath, 'utf8'));
+    text = stripBom(readRegularText(knownPath));
   } catch (error) {
     return fail(`${shown}: cannot read the known-findings file: ${ioMessage(error)}`);
   }
