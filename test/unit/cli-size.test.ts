@@ -102,6 +102,8 @@ describe('cli: cachewright size', function () {
   this.timeout(30000);
 
   before(function () {
+    // the build shares the machine with other work: give it room (no test asserts on time)
+    this.timeout(180000);
     // one build for the whole file; the tests then run what the package's bin runs
     execFileSync('npm', ['run', '-s', 'build'], { cwd: ROOT, stdio: 'pipe' });
     // start the runs together: each is an independent process, and serially they are slow
