@@ -10,6 +10,8 @@ import type { TraceFormat } from './formats/tally';
 export const DETECTION_LINES = 64;
 
 const CSV_REQUEST = /^\s*\d+\s*,\s*\d+\s*(,\s*[A-Za-z]*\s*)?$/;
+/** A header such as "offset,length,op": two or three names separated by commas. */
+const CSV_HEADER = /^\s*[A-Za-z_][\w ]*(,\s*[A-Za-z_][\w ]*){1,2}\s*$/;
 
 /**
  * The format a line shows, if it shows one. `index` counts the lines with content before it: the I/O
@@ -21,6 +23,7 @@ export function formatOfLine(line: string, index: number): TraceFormat | undefin
     const trimmed = text.trim();
     if (trimmed === IO_LOG_HEADERS[2]) return 'io-log-v2';
     if (trimmed === IO_LOG_HEADERS[3]) return 'io-log-v3';
+    if (CSV_HEADER.test(text)) return 'csv';
   }
   if (BLOCK_TRACE_EVENT.test(text)) return 'block-trace';
   if (CSV_REQUEST.test(text)) return 'csv';

@@ -178,7 +178,7 @@ export async function readTraceFile(path: string, display: string, sink: Request
     const present = streams.others.size > 0 ? `; it holds ${[...streams.others.keys()].join(', ')}` : '';
     return named(`no request of ${kind} "${streams.wanted}"${present}`);
   }
-  if (streams.others.size > 0) {
+  if (streams.wanted === undefined && streams.others.size > 0) {
     return named(`the trace covers several ${kind}s: ${streamList(streams)}; choose one with --${kind}`);
   }
   if (tally.requests === 0) {
