@@ -17,6 +17,9 @@ export interface LintRequest {
   maxWarnings?: number;
   quiet: boolean;
   images: boolean;
+  /** --known FILE and --record-known FILE, as given. */
+  known?: string;
+  recordKnown?: string;
 }
 
 /** Reads one file, lints it and (with --fix) fixes it; never throws. */
