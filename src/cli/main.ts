@@ -3,6 +3,7 @@
 import { LINT_USAGE, runLint } from './lint';
 import { INSPECT_USAGE, runInspect } from './inspect';
 import { runSize, SIZE_USAGE } from './size';
+import { CURVE_USAGE, runCurve } from './curve';
 import { EXIT_USAGE, processIO, type CommandIO } from './io';
 
 declare const CACHEWRIGHT_VERSION: string | undefined;
@@ -20,6 +21,7 @@ const COMMANDS: Record<string, Command> = {
   lint: { synopsis: 'lint [PATH...]', summary: 'check the qcow2 cache settings of VM definition files', usage: LINT_USAGE, run: (argv, io) => runLint(argv, io, VERSION) },
   size: { synopsis: 'size --size SIZE', summary: 'the cache sizing numbers of one disk', usage: SIZE_USAGE, run: runSize },
   inspect: { synopsis: 'inspect IMAGE...', summary: 'read qcow2 images and their backing chains (read-only)', usage: INSPECT_USAGE, run: (argv, io) => runInspect([...argv], io) },
+  curve: { synopsis: 'curve TRACE...', summary: 'measured L2 cache hit ratio at every cache size, from I/O traces', usage: CURVE_USAGE, run: runCurve },
 };
 
 const synopsisWidth = Math.max(...Object.values(COMMANDS).map((c) => c.synopsis.length)) + 2;
