@@ -1,7 +1,7 @@
 // Draws the selected disk's hit-ratio chart from chartModel: SVG with classes only (the content
 // security policy allows no inline style), coloured by the editor's theme in media/panel.css, with a
 // text summary and a table of the marks for readers who cannot see the drawing.
-import { formatSize } from '../src/core/units';
+import { formatSize } from '../src/core/format';
 import { CHART, chartModel, hitRatioText, yOf, type ChartInput, type ChartModel, type SeriesId } from './curveModel';
 
 const SVG = 'http://www.w3.org/2000/svg';

@@ -2,7 +2,7 @@
 // axis, with the marks the panel draws. No DOM here, so the geometry is testable on its own; curve.ts
 // turns this into SVG.
 import { entrySizeCurves, formatAccessSpec, prepareCacheModel, type AccessPattern, type CacheCurve } from '../src/core/cachemodel';
-import { formatSize } from '../src/core/units';
+import { formatShare, formatSize } from '../src/core/format';
 import { accessOfPattern } from '../src/core/workload';
 
 export interface ChartInput {
@@ -116,12 +116,7 @@ export function yOf(hitRatio: number): number {
 }
 
 /** A hit ratio as the panel prints it: one decimal, rounded down, so only full coverage reads 100 %. */
-export function hitRatioText(hitRatio: number): string {
-  if (hitRatio >= 1) return '100 %';
-  const tenths = Math.floor(hitRatio * 1000 + 1e-9);
-  const shown = Math.min(tenths, 999) / 10;
-  return `${Number.isInteger(shown) ? shown.toFixed(0) : shown.toFixed(1)} %`;
-}
+export const hitRatioText = (hitRatio: number): string => formatShare(Math.min(1, hitRatio));
 
 const round2 = (value: number): number => Math.round(value * 100) / 100;
 

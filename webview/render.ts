@@ -1,7 +1,8 @@
 // Builds the sizing panel's DOM from a PanelView. Text goes in through textContent only, drawings are
 // SVG attributes (no inline styles: the content security policy allows none).
 import type { SizingReport } from '../src/core/results';
-import { formatInterval, formatSize, formatSizeExact, parseSize } from '../src/core/units';
+import { formatSizeExact, parseSize } from '../src/core/units';
+import { formatInterval, formatPercent, formatSize } from '../src/core/format';
 import type { DiskView, FindingView, MachineView, PanelView, WhatIfValues } from './protocol';
 import { curveFigure } from './curve';
 import { CLUSTER_CHOICES, sliceChoices, whatIf, type WhatIfResult } from './whatif';
@@ -55,9 +56,7 @@ function bar(share: number, kind: 'coverage' | 'budget', over = false): SVGSVGEl
 
 /** Percent with one decimal, rounded down so that a cache short of full coverage never shows 100 %. */
 export function percent(part: bigint, whole: bigint): string {
-  if (whole === 0n) return '—';
-  const tenths = (part * 1000n) / whole;
-  return `${`${tenths / 10n}.${tenths % 10n}`.replace(/\.0$/, '')} %`;
+  return whole === 0n ? '—' : formatPercent(part, whole);
 }
 
 const ratio = (part: bigint, whole: bigint): number => (whole === 0n ? 0 : Number((part * 10000n) / whole) / 10000);

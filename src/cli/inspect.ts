@@ -3,8 +3,11 @@
 // read, 2 when any failed or the command line is wrong; a bad file is a message, never a trace.
 import { isAbsolute, relative, resolve } from 'node:path';
 import { stringifyJson } from '../core/json';
-import { formatSize } from '../core/units';
+import { driverProfile, type DriverProfile } from '../core/profiles';
 import { inspectImage, reportFailed, type ImageReport, type InspectProgress } from '../image';
+import { resolveBackingPath } from '../image/chain';
+import { chainCost, layerCost } from '../image/cost';
+import { chainRows, GROUP_TITLES, layerGroups, type CostRow, type HeaderNotes } from '../image/cost-rows';
 import { formatOption, parseArgs, type OptionSpec } from './args';
 import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { renderColumns } from './table';
@@ -50,7 +53,7 @@ export async function runInspect(args: string[], io: InspectIO): Promise<number>
     reports.push(where === image || !io.cwd ? report : relabel(report, io.cwd));
   }
 
-  io.stdout(format.value === 'json' ? `${stringifyJson({ images: reports.map(toJson) })}\n` : reports.map(renderText).join('\n'));
+  io.stdout(format.value === 'json' ? `${stringifyJson({ images: reports.map((r) => toJson(r)) })}\n` : reports.map((r) => renderText(r)).join('\n'));
   return reports.some(reportFailed) ? EXIT_USAGE : EXIT_OK;
 }
 
@@ -78,53 +81,56 @@ function relabel(report: ImageReport, cwd: string): ImageReport {
   return fix(report);
 }
 
-// ---- JSON (CONTRACTS §3: the listed fields first, then ours) ----
+// ---- JSON (CONTRACTS §3: grouped around what the image costs the caches; byte counts integers) ----
 
-const round = (share: number): number => Math.round(share * 10000) / 10000;
+const round = (share: number): number => Math.round(share * 1_000_000) / 1_000_000;
 
-export function toJson(report: ImageReport): Record<string, unknown> {
+function notesOf(r: ImageReport): HeaderNotes {
   return {
-    path: report.path,
-    version: report.version,
-    virtualSize: report.virtualSize,
-    clusterSize: report.clusterSize,
-    extendedL2: report.extendedL2,
-    refcountBits: report.refcountBits,
-    l1Entries: report.l1Entries,
-    l2TablesAllocated: report.l2TablesAllocated,
-    dataClustersAllocated: report.dataClustersAllocated,
-    l2FullCoverage: report.l2FullCoverage,
-    l2AllocatedCoverage: report.l2AllocatedCoverage,
-    backing: report.backing,
-    dirty: report.dirty,
-    chain: report.chain.map(toJson),
-    error: report.error,
-    errorKind: report.errorKind,
-    name: report.name,
-    format: report.format,
-    backingFormat: report.backingFormat,
-    corrupt: report.corrupt,
-    encryption: report.encryption,
-    compressionType: report.compressionType,
-    externalDataFile: report.externalDataFile,
-    compressedClusters: report.compressedClusters,
-    zeroClusters: report.zeroClusters,
-    subclustersAllocated: report.subclustersAllocated,
-    subclustersZero: report.subclustersZero,
-    allocatedBytes: report.allocatedBytes,
-    allocation: report.allocation && {
-      regionBytes: report.allocation.regionBytes,
-      data: report.allocation.data.map(round),
-      zero: report.allocation.zero.map(round),
-    },
-    warnings: report.warnings,
+    dirty: r.dirty ?? false, corrupt: r.corrupt ?? false, encryption: r.encryption ?? 'none', compressionType: r.compressionType ?? 'zlib',
+    externalDataFile: r.externalDataFile, backing: r.backing, backingFormat: r.backingFormat,
   };
 }
 
-// ---- text ----
+function layerJson(report: ImageReport, profile: DriverProfile): Record<string, unknown> {
+  const cost = layerCost(report, profile);
+  const backing = report.backing === null ? null : { name: report.backing, path: resolveBackingPath(report.path, report.backing), format: report.backingFormat };
+  const json: Record<string, unknown> = { path: report.path, format: report.format };
+  if (cost) {
+    const a = cost.allocation;
+    json.layout = cost.layout;
+    json.allocation = {
+      l1Entries: a.l1Entries, l2Tables: a.l2Tables, dataClusters: a.dataClusters, storedShare: a.storedShare === null ? null : round(a.storedShare),
+      storedBytes: a.storedBytes, compressedClusters: a.compressedClusters, zeroClusters: a.zeroClusters,
+      ...(cost.layout.subclusters > 1 ? { subclustersAllocated: a.subclustersAllocated, subclustersZero: a.subclustersZero } : {}),
+      map: a.map && { cellBytes: a.map.cellBytes, data: a.map.data.map(round), zero: a.map.zero.map(round) },
+    };
+    const c = cost.caches;
+    json.caches = { l2Allocated: c.l2Allocated, l2WholeDisk: c.l2WholeDisk, l2Default: c.l2Default, refcountDefault: c.refcountDefault };
+  }
+  json.backing = backing;
+  json.dirty = report.dirty;
+  json.header = cost ? { corrupt: report.corrupt, encryption: report.encryption, compressionType: report.compressionType, externalDataFile: report.externalDataFile } : undefined;
+  if (report.warnings.length > 0) json.warnings = report.warnings;
+  if (report.error !== undefined) {
+    json.error = report.error;
+    json.errorKind = report.errorKind;
+  }
+  return json;
+}
+
+export function toJson(report: ImageReport, profile: DriverProfile = driverProfile()): Record<string, unknown> {
+  const json = layerJson(report, profile);
+  json.chain = report.chain.map((layer) => ({ ...layerJson(layer, profile), chain: [] }));
+  const sum = chainCost([report, ...report.chain], profile);
+  json.chainCaches = sum && { profile: profile.summary, allocated: sum.allocated, wholeDisk: sum.wholeDisk, default: sum.default, layersSized: sum.layersSized, layers: sum.layers };
+  return json;
+}
+
+// ---- text: the same groups and labels as the image viewer, human units only ----
 
 /**
- * One cell per region of the virtual disk, by the share this layer stores:
+ * One character per cell of the allocation map, by the share this layer stores:
  * '#' over 3/4, '=' over 1/2, '-' over 1/4, ',' any, '0' only zero-flagged, ' ' nothing.
  */
 export function allocationBar(data: readonly number[], zero: readonly number[]): string {
@@ -139,58 +145,42 @@ export function allocationBar(data: readonly number[], zero: readonly number[]):
     .join('');
 }
 
-const plural = (n: number, one: string, many = `${one}s`): string => `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
+const MAP_KEY = 'map cells: # over 3/4 stored, = over 1/2, - over 1/4, , some, 0 reads as zeros, blank none';
 
-function storedShare(stored: bigint, virtualSize: bigint): string {
-  const hundredths = (stored * 10000n) / virtualSize;
-  if (hundredths === 0n && stored > 0n) return 'under 0.01%';
-  return `${Number(hundredths) / 100}%`;
+function groupLines(rows: CostRow[], indent: string): string[] {
+  const table = renderColumns(rows.map((r) => [r.label, r.value])).split('\n');
+  const out: string[] = [];
+  rows.forEach((row, i) => {
+    out.push(`${indent}${table[i] ?? ''}`);
+    if (row.map) out.push(`${indent}  |${allocationBar(row.map.data, row.map.zero)}|`);
+  });
+  return out;
 }
 
-function headline(r: ImageReport): string {
-  if (r.format !== 'qcow2') return `${r.format} file${r.virtualSize !== null ? `, ${formatSize(r.virtualSize)}` : ''}`;
-  const parts = [`qcow2 v${r.version}`, `${formatSize(r.virtualSize!)} virtual`, `${formatSize(r.clusterSize!)} clusters`];
-  if (r.extendedL2) parts.push(`extended L2 (subclusters of ${formatSize(r.clusterSize! / 32n)})`);
-  parts.push(`${r.refcountBits}-bit refcounts`);
-  return parts.join(', ');
-}
-
-function factRows(r: ImageReport): string[][] {
-  const rows: string[][] = [];
-  if (r.format !== 'qcow2' || r.version === null) return rows;
-  if (r.l2TablesAllocated !== null) {
-    rows.push(['L2 tables', `${plural(r.l2TablesAllocated, 'table')} allocated, L1 has ${plural(r.l1Entries!, 'entry', 'entries')}`]);
-    const data = [`${plural(r.dataClustersAllocated!, 'cluster')} stored here (${formatSize(r.allocatedBytes!)})`];
-    if (r.compressedClusters) data.push(`${r.compressedClusters.toLocaleString('en-US')} compressed`);
-    if (r.zeroClusters) data.push(`${plural(r.zeroClusters, 'zero cluster')}`);
-    if (r.subclustersAllocated !== null) data.push(`${plural(r.subclustersAllocated, 'subcluster')} allocated, ${r.subclustersZero!.toLocaleString('en-US')} zero`);
-    rows.push(['data', data.join(', ')]);
-    rows.push(['L2 cache', `${formatSize(r.l2AllocatedCoverage!)} holds every allocated table now; ${formatSize(r.l2FullCoverage!)} maps the whole disk`]);
-  } else if (r.l2FullCoverage !== null) {
-    rows.push(['L2 cache', `${formatSize(r.l2FullCoverage)} maps the whole disk`]);
+function layerLines(r: ImageReport, indent: string, profile: DriverProfile): string[] {
+  const lines: string[] = [];
+  if (r.error) lines.push(`${indent}error: ${r.error}`);
+  const cost = layerCost(r, profile);
+  if (!cost) {
+    if (!r.error) lines.push(`${indent}${r.format} file: no qcow2 metadata, no cache of its own`);
+    return lines;
   }
-  if (r.allocation && r.allocation.data.length > 0 && r.virtualSize) {
-    rows.push(['map', `|${allocationBar(r.allocation.data, r.allocation.zero)}| ${storedShare(r.allocatedBytes ?? 0n, r.virtualSize)} stored, ${formatSize(r.allocation.regionBytes)} a cell`]);
+  for (const group of layerGroups(cost, notesOf(r), { pending: 'not counted', profile: profile.summary })) {
+    lines.push(`${indent}${GROUP_TITLES[group.name]}`, ...groupLines(group.rows, `${indent}  `));
   }
-  const flags = [r.dirty && 'dirty (refcounts may be stale)', r.corrupt && 'marked corrupt', r.encryption !== 'none' && `encrypted (${r.encryption})`, r.externalDataFile !== null && `data in ${r.externalDataFile}`, r.compressionType !== 'zlib' && r.compressionType !== null && `compression ${r.compressionType}`].filter((f): f is string => typeof f === 'string');
-  if (flags.length > 0) rows.push(['flags', flags.join(', ')]);
-  if (r.backing !== null) rows.push(['backing', `${r.backing}${r.backingFormat ? ` (${r.backingFormat})` : ''}`]);
-  for (const w of r.warnings) rows.push(['warning', w]);
-  return rows;
+  for (const w of r.warnings) lines.push(`${indent}warning: ${w}`);
+  return lines;
 }
 
-function renderLayer(r: ImageReport, indent: string, label: string): string {
-  const lines: string[] = [`${indent}${label}${r.path}${r.error ? '' : `: ${headline(r)}`}`];
-  if (r.error) lines.push(`${indent}  error: ${r.error}`);
-  const rows = factRows(r);
-  if (rows.length > 0) lines.push(renderColumns(rows).split('\n').map((line) => `${indent}  ${line}`).join('\n'));
-  return lines.join('\n');
-}
-
-export function renderText(r: ImageReport): string {
-  const parts = [renderLayer(r, '', '')];
-  r.chain.forEach((layer, i) => parts.push(renderLayer(layer, '  ', `backing ${i + 1}: `)));
-  const maps = [r, ...r.chain].some((l) => l.allocation && l.allocation.data.length > 0);
-  if (maps) parts.push(`  (map cells: # over 3/4 stored, = over 1/2, - over 1/4, , some, 0 reads as zeros, blank none)`);
-  return `${parts.join('\n')}\n`;
+export function renderText(r: ImageReport, profile: DriverProfile = driverProfile()): string {
+  const lines = [r.path, ...layerLines(r, '  ', profile)];
+  const layers = [r, ...r.chain];
+  if (r.chain.length > 0 || r.backing !== null) {
+    lines.push(`  ${GROUP_TITLES.chain}`);
+    r.chain.forEach((layer, i) => lines.push(`    backing ${i + 1}: ${layer.path}`, ...layerLines(layer, '      ', profile)));
+    const sum = chainCost(layers, profile);
+    if (sum) lines.push('    over the chain', ...groupLines(chainRows(sum, { pending: 'not counted' }), '      '));
+  }
+  if (layers.some((l) => l.allocation && l.allocation.data.length > 0)) lines.push(`  (${MAP_KEY})`);
+  return `${lines.join('\n')}\n`;
 }

@@ -8,7 +8,8 @@ import {
   checkClusterSize, checkExtendedL2, checkRefcountBits, checkSlice, DEFAULT_CLUSTER, DEFAULT_REFCOUNT_BITS,
   entriesPerL2Table, guestBytesPerL2Table, refcountCoveredBytes, writeAmplification,
 } from '../core/sizing';
-import { formatInterval, formatSize, parseSize } from '../core/units';
+import { parseSize } from '../core/units';
+import { formatInterval, formatPercent, formatShare, formatSize } from '../core/format';
 import { formatAccessSpec, modelCache, parseAccessSpec, type AccessPattern, type CacheModelReport } from '../core/cachemodel';
 import { formatOption, lastOption, parseArgs, type OptionSpec, type ParsedArgs } from './args';
 import { renderColumns } from './table';
@@ -173,11 +174,6 @@ function accessName(r: SizeRequest): string {
   return r.workingSet === undefined ? kind : `${kind} over ${formatSize(r.workingSet)}`;
 }
 
-function percent(part: bigint, whole: bigint): string {
-  if (whole === 0n) return '100%';
-  const tenths = (part * 1000n) / whole;
-  return `${tenths / 10n}.${tenths % 10n}%`;
-}
 
 function renderSizeText(
   r: SizeRequest,
@@ -194,11 +190,11 @@ function renderSizeText(
     ['cluster', formatSize(r.cluster), r.extendedL2 ? `extended L2: 16-byte entries, 32 subclusters of ${formatSize(r.cluster / 32n)}` : 'standard L2: 8-byte entries'],
     ['L2 tables', layer.l2Tables.toString(), `${entriesPerL2Table(r.cluster, r.extendedL2)} entries each, each maps ${formatSize(guestBytesPerL2Table(r.cluster, r.extendedL2))}`],
     ['full-coverage L2', formatSize(report.l2FullCoverage), `maps the whole disk, cached as ${entry}`],
-    ['effective L2', formatSize(report.l2Effective), `${source}; covers ${formatSize(report.l2CoveredBytes)} (${percent(report.l2CoveredBytes, r.virtualSize)} of the disk)`],
+    ['effective L2', formatSize(report.l2Effective), `${source}; covers ${formatSize(report.l2CoveredBytes)} (${formatPercent(report.l2CoveredBytes, r.virtualSize)} of the disk)`],
     ['refcount cache', formatSize(report.refcountEffective), `covers ${formatSize(refcountCoveredBytes(report.refcountEffective, r.cluster, r.refcountBits))} of host clusters at ${r.refcountBits}-bit refcounts`],
     ['cache memory', formatSize(report.cacheMemoryTotal), 'L2 + refcount, this layer'],
     ['idle cleanup', formatInterval(layer.cleanupInterval), 'driver default'],
-    ['predicted hits', `${(model.hitRatio * 100).toFixed(1)}%`, `${accessName(r)}: ${model.cachedEntries} of ${model.entries} cache entries held (${model.method})`],
+    ['predicted hits', formatShare(model.hitRatio), `${accessName(r)}: ${model.cachedEntries} of ${model.entries} cache entries held (${model.method})`],
     ['metadata reads', `${round(model.missesPer1000)}/1000`, `extra reads per 1,000 guest I/Os, ${formatSize(BigInt(Math.round(model.metadataBytesPerIo)))} per I/O on average`],
     ['first write', `${amplification.ratio}x`, `a ${formatSize(r.requestSize)} write into unallocated space fills ${formatSize(amplification.bytesMoved)}`],
   ];

@@ -1,5 +1,6 @@
 // The driver's defaults by generation and host platform ([CACHE], FACTS.md). The user picks the
 // profile in the mapping file (`assume.driver`, `assume.platform`); the tool never guesses it.
+import { formatInterval } from './format';
 import { KiB, MiB, maxOf, minOf, minimumRefcountCache } from './sizing';
 
 export type DriverGeneration = 'current' | 'legacy';
@@ -12,6 +13,8 @@ export interface DriverProfile {
   platform: HostPlatform;
   /** One-line description for explanations. */
   summary: string;
+  /** A few words naming the profile ("current driver, Linux host"), for labels. */
+  name: string;
   /** The L2 cache the driver picks when none is configured. */
   defaultL2Cache(fullCoverage: bigint, cluster: bigint): bigint;
   /** The refcount cache the driver picks when none is configured. */
@@ -27,7 +30,8 @@ const current = (platform: HostPlatform): DriverProfile => {
   return {
     generation: 'current',
     platform,
-    summary: `current driver on ${platform === 'linux' ? 'Linux' : 'non-Linux'} hosts: L2 cache up to ${cap / MiB} MiB and never above full coverage, refcount cache 4 clusters, cleanup ${platform === 'linux' ? 'every 600 s' : 'off'}`,
+    summary: `current driver on ${platform === 'linux' ? 'Linux' : 'non-Linux'} hosts: L2 cache up to ${cap / MiB} MiB and never above full coverage, refcount cache 4 clusters, cleanup ${platform === 'linux' ? `every ${formatInterval(600)}` : 'off'}`,
+    name: `current driver, ${platform === 'linux' ? 'Linux host' : 'other host'}`,
     defaultL2Cache: (fullCoverage) => minOf(fullCoverage, cap),
     defaultRefcountCache: (_l2, cluster) => minimumRefcountCache(cluster),
     defaultCleanupInterval: platform === 'linux' ? 600 : 0,
@@ -39,6 +43,7 @@ const legacy = (platform: HostPlatform): DriverProfile => ({
   generation: 'legacy',
   platform,
   summary: 'legacy driver: L2 cache 1 MiB (at least 8 clusters), refcount cache a quarter of the L2 cache, cleanup off',
+  name: 'legacy driver',
   // "at least 8 clusters" is from memory (FACTS.md); treated as a default, not a limit.
   defaultL2Cache: (_full, cluster) => maxOf(1n * MiB, 8n * cluster),
   defaultRefcountCache: (l2, cluster) => maxOf(l2 / 4n, minimumRefcountCache(cluster)),

@@ -1,7 +1,7 @@
 // The qcow2 metadata geometry and cache sizing of FACTS.md. Pure and exact: every byte count is a
 // bigint, every division rounds the way the format does (up, to whole entries), never through floats.
 import { fail, ok, type Outcome } from './result';
-import { formatSize } from './units';
+import { formatSize } from './format';
 
 export const KiB = 1024n;
 export const MiB = 1024n * KiB;

@@ -83,24 +83,6 @@ function describe(value: unknown): string {
   return typeof value;
 }
 
-const BINARY_NAMES = ['B', 'KiB', 'MiB', 'GiB', 'TiB', 'PiB', 'EiB'] as const;
-
-/**
- * For people: the largest binary unit that leaves a value of at least 1, with up to two decimals
- * ("2.5 MiB", "192 KiB"). Prefixed with "~" when those decimals are not exact.
- */
-export function formatSize(bytes: bigint): string {
-  let index = 0;
-  while (index < BINARY_NAMES.length - 1 && bytes >= KI ** BigInt(index + 1)) index++;
-  const unit = KI ** BigInt(index);
-  const hundredths = (bytes * 100n) / unit;
-  const exact = (bytes * 100n) % unit === 0n;
-  const whole = hundredths / 100n;
-  const cents = hundredths % 100n;
-  const decimals = cents === 0n ? '' : `.${cents.toString().padStart(2, '0').replace(/0$/, '')}`;
-  return `${exact ? '' : '~'}${whole}${decimals} ${BINARY_NAMES[index]}`;
-}
-
 /** Shortest exact form that parseSize reads back to the same bytes: "64K", "2560K", "512". */
 export function formatSizeExact(bytes: bigint, style: SizeStyle = DEFAULT_STYLE): string {
   if (style.kind === 'bytes' || bytes === 0n) return bytes.toString();
@@ -137,12 +119,6 @@ export function sizeStyleOf(written: unknown): SizeStyle | undefined {
   return undefined; // decimal units: a binary value rarely fits them exactly, so fall back to the default
 }
 
-export function formatInterval(seconds: number): string {
-  if (seconds === 0) return '0 (off)';
-  if (seconds % 3600 === 0) return `${seconds / 3600}h`;
-  if (seconds % 60 === 0) return `${seconds / 60}m`;
-  return `${seconds}s`;
-}
 
 export const SHARE_HELP = 'a number from 0 to 1, or a percentage such as "99%"';
 
@@ -159,13 +135,3 @@ export function parseShare(input: unknown): Outcome<number> {
   return ok(value);
 }
 
-/**
- * A ratio as a percentage for people, rounded down so that a cache missing now and then never reads
- * "100%": 0.99996 -> "99.9%" (one decimal), exactly 1 -> "100%".
- */
-export function formatPercent(ratio: number, decimals = 1): string {
-  if (ratio >= 1) return '100%';
-  const scale = 10 ** decimals;
-  const floored = Math.floor(ratio * 100 * scale + 1e-9) / scale;
-  return `${floored.toFixed(decimals)}%`;
-}

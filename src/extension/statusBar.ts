@@ -1,6 +1,6 @@
 // The status bar item: the active definition's total cache memory over all disks and layers.
 import * as vscode from 'vscode';
-import { formatSize } from '../core/units';
+import { formatSize } from '../core/format';
 import type { LintResult } from './linting';
 import { fileCacheTotal } from './panelView';
 

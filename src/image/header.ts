@@ -2,7 +2,7 @@
 // into the file is checked against the file's size and the cluster alignment here, before anyone
 // reads through it; nothing is allocated from a size that has not been checked.
 import { ceilDiv, guestBytesPerL2Table, l2EntryBytes } from '../core/sizing';
-import { formatSize } from '../core/units';
+import { formatSize } from '../core/format';
 import { ImageError } from './errors';
 import type { ByteSource } from './source';
 

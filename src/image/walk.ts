@@ -47,7 +47,9 @@ export interface MetadataSummary extends Tally {
 const L1_CHUNK_ENTRIES = 8192; // 64 KiB of L1 per read
 const READS_IN_FLIGHT = 4;
 const TWO_32 = 4294967296;
-const DEFAULT_BUCKETS = 64;
+/** The one allocation map every front end shows: this many cells, each a whole number of clusters. */
+export const ALLOCATION_MAP_CELLS = 64;
+const DEFAULT_BUCKETS = ALLOCATION_MAP_CELLS;
 const MAX_BUCKETS = 4096;
 const YIELD_EVERY_MS = 8;
 

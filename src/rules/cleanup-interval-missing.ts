@@ -1,5 +1,5 @@
 import { RECOMMENDED_CLEANUP_INTERVAL } from '../core/profiles';
-import { size } from './format';
+import { interval, size } from './format';
 import { docsPage, type Rule } from './types';
 
 export const cleanupIntervalMissing: Rule = {
@@ -21,8 +21,8 @@ export const cleanupIntervalMissing: Rule = {
     const off = disk.values.cleanupInterval ? 'cleanup is set to 0 (off)' : `no cleanup interval is set and the ${profile.generation} driver default is off`;
     report({
       at: disk.values.cleanupInterval ? 'cleanupInterval' : undefined,
-      message: `${off}, yet ${why}: idle entries stay in memory. Cleaning every ${RECOMMENDED_CLEANUP_INTERVAL} s frees them.`,
-      fix: fix.setInterval('cleanupInterval', RECOMMENDED_CLEANUP_INTERVAL, `Clean idle cache entries every ${RECOMMENDED_CLEANUP_INTERVAL} s`),
+      message: `${off}, yet ${why}: idle entries stay in memory. Cleaning every ${interval(RECOMMENDED_CLEANUP_INTERVAL)} frees them.`,
+      fix: fix.setInterval('cleanupInterval', RECOMMENDED_CLEANUP_INTERVAL, `Clean idle cache entries every ${interval(RECOMMENDED_CLEANUP_INTERVAL)}`),
     });
   },
 };

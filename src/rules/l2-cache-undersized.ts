@@ -2,7 +2,7 @@ import { l2CoveredBytes, minimumRefcountCache } from '../core/sizing';
 import type { LayerCache } from '../core/cache';
 import { modelCache } from '../core/cachemodel';
 import { accessOfPattern } from '../core/workload';
-import { share, size } from './format';
+import { ratio, share, size } from './format';
 import { docsPage, type Rule } from './types';
 
 /** What the miss rate costs, from the cache model (FACTS.md [IRM], [CHE]). */
@@ -12,10 +12,9 @@ function prediction(top: LayerCache, pattern: string, requestSize: bigint): stri
   const { virtualSize, clusterSize, extendedL2 } = top.geometry;
   const model = modelCache({ virtualSize, clusterSize, extendedL2, entrySize: top.entrySize, cacheBytes: top.l2, access: access.value, ioSize: requestSize });
   if (!model.ok) return '';
-  // Rounded down, so a ratio just short of 1 never reads as "100.0%".
-  const hits = (Math.floor(model.value.hitRatio * 1000) / 10).toFixed(1);
+  // Rounded down, so a ratio just short of 1 never reads as "100 %".
   const misses = Math.round(model.value.missesPer1000);
-  return ` Under ${pattern} access it predicts ${hits}% L2 hits, ${misses} extra metadata reads per 1,000 guest I/Os; full coverage: 100% and none.`;
+  return ` Under ${pattern} access it predicts ${ratio(model.value.hitRatio)} L2 hits, ${misses} extra metadata reads per 1,000 guest I/Os; full coverage: 100 % and none.`;
 }
 
 export const l2CacheUndersized: Rule = {

@@ -1,4 +1,4 @@
-import { share, size } from './format';
+import { ratio, share, size } from './format';
 import { docsPage, type Rule } from './types';
 
 export const machineCacheBudget: Rule = {
@@ -16,7 +16,7 @@ export const machineCacheBudget: Rule = {
     if (total <= budget) return;
     report({
       at: machine.memory,
-      message: `disk caches of ${machine.name} take ${size(total)} over ${disks.length} disk${disks.length > 1 ? 's' : ''}, ${share(total, memory)} of its ${size(memory)} RAM; the budget is ${Number((mapping.cacheShareOfMemory * 100).toPrecision(12))}% (${size(budget)}). Check the host's headroom before raising caches.`,
+      message: `disk caches of ${machine.name} take ${size(total)} over ${disks.length} disk${disks.length > 1 ? 's' : ''}, ${share(total, memory)} of its ${size(memory)} RAM; the budget is ${ratio(mapping.cacheShareOfMemory)} (${size(budget)}). Check the host's headroom before raising caches.`,
       related: disks.map((d) => ({ message: `${d.disk.name}: ${size(d.sizing.report.cacheMemoryTotal)} over ${d.sizing.layers.length} layer${d.sizing.layers.length > 1 ? 's' : ''}`, pointer: d.disk.pointer, range: d.disk.range })),
     });
   },

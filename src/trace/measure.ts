@@ -2,7 +2,7 @@
 // in the order given as one sequence of requests: readers -> request mapper -> (sampling) -> exact
 // LRU stack distances -> hit profile.
 
-import { formatSize } from '../core/units';
+import { formatSize } from '../core/format';
 import { fail, ok, type Outcome } from '../core/result';
 import type { TraceFormat } from './formats/tally';
 import { RequestMapper, type TraceGeometry } from './lookups';

@@ -23,7 +23,7 @@ ruleTable(RULE, {
       name: `${CACHE} legacy driver with 8 MiB of L2 cache and no interval: reported at the disk`,
       text: oneDisk('size: 64G\ncache: { l2: 8M }'),
       mapping: legacy,
-      findings: [{ rule: RULE, line: 4, column: 9, messageIncludes: ['legacy driver default is off', '8 MiB', '1 MiB', '600 s'] }],
+      findings: [{ rule: RULE, line: 4, column: 9, messageIncludes: ['legacy driver default is off', '8 MiB', '1 MiB', '10m'] }],
     },
     {
       name: `${CACHE} current driver with cleanup set to 0 and a cache above the 32 MiB default: reported at the 0`,
@@ -58,6 +58,6 @@ describe(`rule ${RULE}: fix values`, () => {
   });
   it('the fix title names the interval', () => {
     const finding = findingsOf(lintCase({ text: oneDisk('size: 64G\ncache: { l2: 8M }'), mapping: legacy }), RULE)[0];
-    assert.match(finding?.fix?.title ?? '', /600 s/);
+    assert.match(finding?.fix?.title ?? '', /every 10m/);
   });
 });

@@ -30,22 +30,22 @@ ruleTable(RULE, {
     {
       name: `${CACHE} 1 TiB at 64 KiB on the current Linux default: 32 MiB maps 256 GiB (25%), full coverage needs 128 MiB`,
       text: oneDisk('size: 1T'),
-      findings: [{ rule: RULE, line: 4, column: 9, messageIncludes: ['driver default', '32 MiB', '256 GiB', '25.0%', '128 MiB'] }],
+      findings: [{ rule: RULE, line: 4, column: 9, messageIncludes: ['driver default', '32 MiB', '256 GiB', '25 %', '128 MiB'] }],
     },
     {
       name: `${CACHE} 1 TiB with 8 MiB configured: reported at the value`,
       text: oneDisk('size: 1T\ncache:\n  l2: 8M'),
-      findings: [{ rule: RULE, line: 7, column: 15, messageIncludes: ['8 MiB', '64 GiB', '6.2%', '128 MiB', '120 MiB more'] }],
+      findings: [{ rule: RULE, line: 7, column: 15, messageIncludes: ['8 MiB', '64 GiB', '6.2 %', '128 MiB', '120 MiB more'] }],
     },
     {
       name: `${CACHE} worked example: 1280 MiB at 64 KiB with 128 KiB (two tables) falls short of the 192 KiB (three tables)`,
       text: oneDisk('size: 1280M\ncache: { l2: 128K }'),
-      findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['192 KiB', '80.0%'] }],
+      findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['192 KiB', '80 %'] }],
     },
     {
       name: `${CACHE} extended L2 doubles the entry: 1 TiB at 64 KiB needs 256 MiB, 128 MiB covers half`,
       text: oneDisk('size: 1T\nextendedL2: true\ncache: { l2: 128M }'),
-      findings: [{ rule: RULE, line: 7, column: 22, messageIncludes: ['256 MiB', '50.0%'] }],
+      findings: [{ rule: RULE, line: 7, column: 22, messageIncludes: ['256 MiB', '50 %'] }],
     },
     {
       name: `${CACHE} legacy driver: the 1 MiB default covers 8 GiB of a 20 GiB disk`,
@@ -83,7 +83,7 @@ ruleTable(RULE, {
       `,
       findings: [
         { rule: RULE, line: 5, column: 9, messageIncludes: '256 MiB' },
-        { rule: RULE, line: 8, column: 43, messageIncludes: '50.0%' },
+        { rule: RULE, line: 8, column: 43, messageIncludes: '50 %' },
       ],
     },
   ],

@@ -18,7 +18,7 @@ ruleTable(RULE, {
     {
       name: `${CACHE} 1 GiB of RAM, one 1 TiB disk with 128 MiB + 256 KiB: 12.5% against 5%, reported at the memory value`,
       text: oneDisk('size: 1T\ncache: { l2: 128M }', 'memory: 1G'),
-      findings: [{ rule: RULE, line: 3, column: 13, messageIncludes: ['pier-db', '128.25 MiB', '1 disk,', '12.5%', '1 GiB RAM', 'the budget is 5%', '51.19 MiB', 'headroom'] }],
+      findings: [{ rule: RULE, line: 3, column: 13, messageIncludes: ['pier-db', '128.25 MiB', '1 disk,', '12.5 %', '1 GiB RAM', 'the budget is 5 %', '51.19 MiB', 'headroom'] }],
     },
     {
       name: `${CACHE} two disks at the 32 MiB default over a 1% budget of 4 GiB`,
@@ -31,13 +31,13 @@ ruleTable(RULE, {
               - { name: b, size: 1T }
       `,
       mapping: { budget: { cacheShareOfMemory: 0.01 } },
-      findings: [{ rule: RULE, line: 3, column: 13, messageIncludes: ['64.5 MiB over 2 disks', 'the budget is 1%'] }],
+      findings: [{ rule: RULE, line: 3, column: 13, messageIncludes: ['64.5 MiB over 2 disks', 'the budget is 1 %'] }],
     },
     {
       name: 'a share such as 0.07 is printed as 7%, not with binary floating-point noise',
       text: oneDisk('size: 1T\ncache: { l2: 128M }', 'memory: 1G'),
       mapping: { budget: { cacheShareOfMemory: 0.07 } },
-      findings: [{ rule: RULE, line: 3, column: 13, messageIncludes: 'the budget is 7% (' }],
+      findings: [{ rule: RULE, line: 3, column: 13, messageIncludes: 'the budget is 7 % (' }],
     },
     {
       name: `${CACHE} backing layers count: an overlay and its inline backing disk each have caches`,

@@ -1,9 +1,8 @@
 // Sizes and intervals (CONTRACTS.md §1) against IEC 80000-13's prefixes and exact decimal arithmetic.
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
-import {
-  formatInterval, formatSize, formatSizeExact, parseInterval, parseSize, sizeStyleOf, type SizeStyle,
-} from '../../src/core/units';
+import { formatInterval, formatSize } from '../../src/core/format';
+import { formatSizeExact, parseInterval, parseSize, sizeStyleOf, type SizeStyle } from '../../src/core/units';
 import { assertErrorMentions, errorOf, valueOf } from '../helpers/outcome';
 import { COMMON, CONTRACT, IEC } from '../helpers/sources';
 

@@ -2,7 +2,7 @@
 // A column fills from the baseline by the share this layer stores; the share that reads as zeros
 // through a flag stacks above it in a second colour. Any share above zero gets at least a sliver,
 // so one stored cluster in a large region still shows. Colours come from the theme (CSS classes).
-import { formatSize } from '../../src/core/units';
+import { formatShare, formatSize } from '../../src/core/format';
 
 const SVG = 'http://www.w3.org/2000/svg';
 const COLUMN = 6;
@@ -10,11 +10,7 @@ const GAP = 1;
 const HEIGHT = 48;
 const SLIVER = 3;
 
-const percent = (share: number): string => {
-  if (share <= 0) return '0%';
-  if (share < 0.0001) return 'under 0.01%';
-  return `${Math.round(share * 10000) / 100}%`;
-};
+const percent = formatShare;
 
 function rect(x: number, y: number, width: number, height: number, cls: string): SVGRectElement {
   const r = document.createElementNS(SVG, 'rect');

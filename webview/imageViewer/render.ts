@@ -1,10 +1,11 @@
-// Draws an ImageView: state and progress, the image's header facts, the allocation pictures, the
-// backing chain and the recommended caches. Every number arrives from the host; this file only
-// formats them (sizes through the engine's own formatSize).
-import { formatSize } from '../../src/core/units';
+// Draws an ImageView: state and progress, then the groups `cachewright inspect` prints (layout,
+// allocation, caches, chain) with the same labels and wording (src/image/cost-rows.ts), the
+// allocation map drawn as a picture. Every number arrives from the host; this file only lays it out.
+import { formatCount, formatCounted } from '../../src/core/format';
+import { chainRows, GROUP_TITLES, layerGroups, type CostGroup, type CostRow } from '../../src/image/cost-rows';
 import {
   ERROR_KIND_WORDS,
-  type CacheChoiceView, type DrawnSummary, type ProfileChoice, type ImageView, type LayerView, type ThemeSummary, type WalkProgressView,
+  type DrawnSummary, type ProfileChoice, type ImageView, type LayerView, type ThemeSummary, type WalkProgressView,
 } from '../../src/extension/imageViewer/protocol';
 import { allocationPicture, pictureLegend } from './picture';
 
@@ -48,11 +49,8 @@ function el<K extends keyof HTMLElementTagNameMap>(tag: K, cls?: string, ...chil
   return node;
 }
 
-const count = (n: number): string => n.toLocaleString('en-US');
-const plural = (n: number, one: string, many = `${one}s`): string => `${count(n)} ${n === 1 ? one : many}`;
-const bytes = (n: bigint): string => `${formatSize(n)}`;
-const exactBytes = (n: bigint): string => `${formatSize(n)} (${n.toLocaleString('en-US')} bytes)`;
-const yesNo = (value: boolean, yes: string, no = 'no'): string => (value ? yes : no);
+const count = formatCount;
+const plural = formatCounted;
 
 function table(cls: string, rows: Array<[string, Child]>): HTMLTableElement {
   const t = el('table', cls);
@@ -64,40 +62,38 @@ function table(cls: string, rows: Array<[string, Child]>): HTMLTableElement {
   return t;
 }
 
-function flag(on: boolean, text: string, cls: string): HTMLElement {
-  return el('span', on ? `flag ${cls}` : 'flag off', text);
+interface Drawn {
+  regions: number;
+  cacheRows: number;
 }
 
-function factRows(layer: LayerView, counting: boolean): Array<[string, Child]> {
-  const f = layer.facts;
-  if (!f) return [['format', layer.format]];
-  const w = layer.walk;
-  const pending = counting ? 'counting…' : 'not counted';
-  const rows: Array<[string, Child]> = [
-    ['format', `qcow2 version ${f.version}`],
-    ['virtual size', exactBytes(f.virtualSize)],
-    ['cluster size', bytes(f.clusterSize)],
-    ['extended L2', f.extendedL2 && f.subclusterSize !== null ? `yes: 16-byte L2 entries, 32 subclusters of ${bytes(f.subclusterSize)}` : 'no: 8-byte L2 entries'],
-    ['refcount width', `${f.refcountBits} bits`],
-    ['flags', el('span', 'flags',
-      flag(f.dirty, yesNo(f.dirty, 'dirty: refcounts may be stale', 'not dirty'), 'warn'), ' ',
-      flag(f.corrupt, yesNo(f.corrupt, 'marked corrupt', 'not marked corrupt'), 'bad'), ' ',
-      flag(f.externalDataFile !== null, f.externalDataFile !== null ? `data in an external file: ${f.externalDataFile}` : 'no external data file', 'info'))],
-    ['encryption', f.encryption],
-    ['compression type', f.compressionType],
-    ['L1 entries', count(f.l1Entries)],
-    ['L2 tables allocated', w ? count(w.l2TablesAllocated) : pending],
-    ['data clusters', w
-      ? `${count(w.dataClusters)} stored here: ${count(w.standardClusters)} standard, ${count(w.compressedClusters)} compressed`
-      : pending],
-    ['reads-as-zero clusters', w ? count(w.zeroClusters) : pending],
-  ];
-  if (f.extendedL2) {
-    rows.push(['subclusters', w && w.subclustersAllocated !== null ? `${count(w.subclustersAllocated)} allocated, ${count(w.subclustersZero ?? 0)} read as zeros` : pending]);
-  }
-  rows.push(['stored in this layer', w ? exactBytes(w.allocatedBytes) : pending]);
-  rows.push(['backing file', f.backing === null ? 'none' : `${f.backing}${f.backingFormat ? ` (format ${f.backingFormat})` : ''}`]);
-  return rows;
+/** One group's rows as a table; the allocation map's row gets its picture under the sentence. */
+function groupTable(rows: CostRow[], layer: LayerView, drawn: Drawn): HTMLTableElement {
+  return table('facts', rows.map((row): [string, Child] => {
+    if (!row.map || !layer.cost) return [row.label, row.value];
+    const picture = allocationPicture({
+      regionBytes: row.map.cellBytes,
+      data: row.map.data,
+      zero: row.map.zero,
+      virtualSize: layer.cost.layout.virtualSize,
+      label: layerTitle(layer),
+    });
+    drawn.regions += picture.regions;
+    return [row.label, el('div', undefined, row.value, picture.element)];
+  }));
+}
+
+function groupsOf(layer: LayerView, view: ImageView): CostGroup[] {
+  if (!layer.cost || !layer.notes) return [];
+  const pending = view.state === 'reading' && !layer.walked ? 'counting…' : 'not counted';
+  return layerGroups(layer.cost, layer.notes, { pending, profile: view.profile });
+}
+
+function groupSections(layer: LayerView, view: ImageView, drawn: Drawn, heading: 'h2' | 'h4'): HTMLElement[] {
+  return groupsOf(layer, view).map((group) => {
+    if (group.name === 'caches') drawn.cacheRows += group.rows.length;
+    return el('section', `group group-${group.name}`, el(heading, undefined, GROUP_TITLES[group.name]), groupTable(group.rows, layer, drawn));
+  });
 }
 
 function errorBlock(layer: LayerView): HTMLElement | null {
@@ -108,8 +104,8 @@ function errorBlock(layer: LayerView): HTMLElement | null {
 }
 
 function warnings(layer: LayerView): HTMLElement | null {
-  if (!layer.walk || layer.walk.warnings.length === 0) return null;
-  return el('ul', 'warnings', ...layer.walk.warnings.map((w) => el('li', undefined, w)));
+  if (layer.warnings.length === 0) return null;
+  return el('ul', 'warnings', ...layer.warnings.map((w) => el('li', undefined, w)));
 }
 
 function progressBlock(progress: WalkProgressView | null, actions: ViewerActions): HTMLElement {
@@ -148,111 +144,31 @@ function layerTitle(layer: LayerView): string {
   return `backing layer ${layer.index}`;
 }
 
-function pictures(view: ImageView): { section: HTMLElement; regions: number } {
-  const section = el('section', 'pictures', el('h2', undefined, 'Allocation map'));
-  let regions = 0;
-  for (const layer of view.layers) {
-    if (!layer.facts) continue;
-    const heading = el('h3', undefined, `${layerTitle(layer)}: ${layer.index === 0 ? view.fileName : layer.name ?? layer.path}`);
-    if (layer.walk) {
-      const picture = allocationPicture({
-        regionBytes: layer.walk.allocation.regionBytes,
-        data: layer.walk.allocation.data,
-        zero: layer.walk.allocation.zero,
-        virtualSize: layer.facts.virtualSize,
-        label: layerTitle(layer),
-      });
-      regions += picture.regions;
-      section.append(heading, picture.element);
-    } else {
-      section.append(heading, el('p', 'muted', view.state === 'reading' ? 'Drawn when the walk of this layer ends.' : 'Not walked.'));
-    }
-  }
-  section.appendChild(pictureLegend());
-  return { section, regions };
-}
-
-function chainSection(view: ImageView): HTMLElement {
-  const section = el('section', 'chain', el('h2', undefined, 'Backing chain'));
-  if (view.layers.length <= 1 && !view.layers[0]?.facts?.backing) {
+function chainSection(view: ImageView, drawn: Drawn): HTMLElement {
+  const section = el('section', 'group group-chain', el('h2', undefined, GROUP_TITLES.chain));
+  const backing = view.layers.slice(1);
+  if (backing.length === 0 && !view.layers[0]?.notes?.backing) {
     section.appendChild(el('p', 'muted', 'No backing file: unallocated clusters read as zeros.'));
     return section;
   }
   const list = el('ol', 'layers');
-  for (const layer of view.layers) {
-    const f = layer.facts;
-    const summary = f
-      ? `${layer.format} v${f.version}, ${bytes(f.virtualSize)} virtual, ${bytes(f.clusterSize)} clusters${f.extendedL2 ? ', extended L2' : ''}${layer.walk ? `, ${plural(layer.walk.l2TablesAllocated, 'L2 table')}, ${bytes(layer.walk.allocatedBytes)} stored` : ''}`
-      : layer.format === 'qcow2' ? 'qcow2' : `${layer.format} file (no qcow2 metadata, no cache of its own)`;
+  for (const layer of backing) {
     const item = el('li', layer.error && layer.error.kind !== 'cancelled' ? 'layer failed' : 'layer',
-      el('div', 'layer-head', el('strong', undefined, layer.index === 0 ? 'image' : `backing ${layer.index}`), ' ',
-        el('span', 'mono', layer.name ?? view.fileName)),
+      el('h3', 'layer-head', `backing ${layer.index}: `, el('span', 'mono', layer.name ?? layer.path)),
       el('div', 'muted mono', layer.path),
-      el('div', undefined, summary),
+      layer.cost ? null : el('div', undefined, layer.format === 'qcow2' ? 'qcow2' : `${layer.format} file: no qcow2 metadata, no cache of its own`),
       errorBlock(layer),
-      warnings(layer));
-    if (layer.index > 0 && f) {
-      const details = el('details', undefined, el('summary', undefined, 'header facts'), table('facts', factRows(layer, view.state === 'reading')));
-      item.appendChild(details);
-    }
+      warnings(layer),
+      ...groupSections(layer, view, drawn, 'h4'));
     list.appendChild(item);
   }
   section.appendChild(list);
+  if (view.chain) {
+    const rows = chainRows(view.chain, { pending: view.state === 'reading' ? 'counting…' : 'not counted' });
+    drawn.cacheRows += rows.length;
+    section.append(el('h3', undefined, 'over the chain'), table('facts chain-sum', rows.map((r): [string, Child] => [r.label, r.value])));
+  }
   return section;
-}
-
-function choiceCell(choice: CacheChoiceView | undefined, pending: string): Child {
-  if (!choice) return pending;
-  return el('span', undefined,
-    el('span', 'num', `L2 ${bytes(choice.l2)}`), el('span', 'muted', ` maps ${bytes(choice.l2Covered)}`), el('br'),
-    el('span', 'num', `refcount ${bytes(choice.refcount)}`), el('span', 'muted', ` covers ${bytes(choice.refcountCovered)} of file`));
-}
-
-function totalCell(n: bigint): HTMLElement {
-  return el('span', undefined, bytes(n), el('br'), el('span', 'muted', `${n.toLocaleString('en-US')} bytes`));
-}
-
-function cachesSection(view: ImageView, actions: ViewerActions): { section: HTMLElement; rows: number } {
-  const section = el('section', 'caches', el('h2', undefined, 'Recommended cache settings'), profilePicker(view, actions));
-  section.appendChild(el('p', 'muted',
-    'Per layer: the L2 cache that holds every L2 table allocated now, the L2 cache that maps the whole virtual disk ' +
-    '(what the image needs once fully allocated), and what the driver picks when nothing is set. ' +
-    `Refcount caches are the driver's default. Assumed: ${view.profile}.`));
-  const t = el('table', 'cache-table');
-  const head = el('tr');
-  for (const h of ['layer', 'now: every allocated table', 'fully allocated: full coverage', 'driver default']) head.appendChild(el('th', undefined, h));
-  t.appendChild(el('thead', undefined, head));
-  const body = el('tbody');
-  let rows = 0;
-  const pending = view.state === 'reading' ? 'counting…' : 'not counted';
-  for (const layer of view.layers) {
-    const c = layer.caches;
-    const tr = el('tr');
-    tr.appendChild(el('th', undefined, layer.index === 0 ? 'image' : `backing ${layer.index}`, el('br'), el('span', 'muted', layer.facts ? `${bytes(layer.facts.clusterSize)} clusters` : layer.format)));
-    if (c) {
-      tr.append(el('td', undefined, choiceCell(c.now, pending)), el('td', undefined, choiceCell(c.full, pending)), el('td', undefined, choiceCell(c.driverDefault, pending)));
-    } else {
-      const cell = el('td', 'muted', layer.error && layer.error.kind !== 'cancelled' ? 'not sized: the layer could not be read' : 'no qcow2 cache for this layer');
-      cell.colSpan = 3;
-      tr.appendChild(cell);
-    }
-    body.appendChild(tr);
-    rows++;
-  }
-  const m = view.memory;
-  if (m) {
-    const tr = el('tr', 'total',
-      el('th', undefined, 'memory over the chain', el('br'), el('span', 'muted', `sum of ${plural(m.layersSized, 'layer')}${m.layersSized < m.layersTotal ? ` of ${m.layersTotal}` : ''}`)),
-      el('td', 'num', m.now === null ? pending : totalCell(m.now)),
-      el('td', 'num', totalCell(m.full)),
-      el('td', 'num', totalCell(m.driverDefault)));
-    body.appendChild(tr);
-    rows++;
-  }
-  t.appendChild(body);
-  section.appendChild(t);
-  section.appendChild(el('ul', 'cautions', ...view.cautions.map((c) => el('li', undefined, c))));
-  return { section, rows };
 }
 
 export function renderView(root: HTMLElement, view: ImageView, actions: ViewerActions): DrawnSummary {
@@ -276,29 +192,25 @@ export function renderView(root: HTMLElement, view: ImageView, actions: ViewerAc
     head.appendChild(el('div', 'actions', again));
   }
   const parts: HTMLElement[] = [head];
-  let regions = 0;
-  let rows = 0;
+  const drawn: Drawn = { regions: 0, cacheRows: 0 };
   if (top) {
-    const facts = el('section', 'facts-section', el('h2', undefined, 'Header'), table('facts', factRows(top, reading)));
     const topError = errorBlock(top);
-    if (topError) facts.appendChild(topError);
     const topWarnings = warnings(top);
-    if (topWarnings) facts.appendChild(topWarnings);
-    parts.push(facts);
-    if (top.facts) {
-      const drawn = pictures(view);
-      regions = drawn.regions;
-      parts.push(drawn.section);
+    if (topError || topWarnings || !top.cost) {
+      parts.push(el('section', 'image-notes', topError, topWarnings, top.cost ? null : el('p', undefined, `format: ${top.format}`)));
     }
-    parts.push(chainSection(view));
-    if (view.layers.some((l) => l.caches)) {
-      const caches = cachesSection(view, actions);
-      rows = caches.rows;
-      parts.push(caches.section);
+    const groups = groupSections(top, view, drawn, 'h2');
+    const caches = groups.find((g) => g.classList.contains('group-caches'));
+    if (caches) {
+      caches.insertBefore(profilePicker(view, actions), caches.children[1] ?? null);
+      caches.appendChild(el('ul', 'cautions', ...view.cautions.map((c) => el('li', undefined, c))));
     }
+    parts.push(...groups);
+    if (top.cost) parts.push(chainSection(view, drawn));
+    if (drawn.regions > 0) parts.push(el('section', 'map-legend', pictureLegend()));
   }
   root.replaceChildren(...parts);
-  return { state: view.state, layers: view.layers.length, mapRegions: regions, cacheRows: rows, progressShown: reading, changedNotice: view.changedOnDisk !== null, theme: themeSummary(root) };
+  return { state: view.state, layers: view.layers.length, mapRegions: drawn.regions, cacheRows: drawn.cacheRows, progressShown: reading, changedNotice: view.changedOnDisk !== null, theme: themeSummary(root) };
 }
 
 /** What the theme's variables resolve to here, so a test can see the viewer follow the theme. */

@@ -12,8 +12,6 @@ import type { DrawnSummary, ImageView, ProfileChoice, ViewState, WalkProgressVie
 const PROGRESS_EVERY_MS = 100;
 /** Walks that finish sooner never raise a notification. */
 const NOTIFY_AFTER_MS = 400;
-/** Regions of the allocation picture. */
-export const MAP_REGIONS = 128;
 
 export interface DocumentListener {
   view(view: ImageView): void;
@@ -131,7 +129,6 @@ export class ImageDocument implements vscode.CustomDocument {
 
       const report = await inspectImage(this.path, {
         signal,
-        buckets: MAP_REGIONS,
         onProgress: (p) => this.onProgress(p),
       });
       const { chain, ...top } = report;

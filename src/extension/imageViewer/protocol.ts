@@ -4,6 +4,8 @@
 // rounded through a float on the way.
 import { fromWire, toWire } from '../../../webview/protocol';
 import type { DriverGeneration, HostPlatform } from '../../core/profiles';
+import type { ChainCost, LayerCost } from '../../image/cost';
+import type { HeaderNotes } from '../../image/cost-rows';
 import type { ImageErrorKind } from '../../image/errors';
 
 /** Where the viewer is with one image. */
@@ -28,84 +30,20 @@ export interface WalkProgressView {
   l2TablesRead: number;
 }
 
-/** One cache choice for one layer, as the engine's layerCache sizes it. */
-export interface CacheChoiceView {
-  /** The L2 cache to set (whole cache entries, at least the driver's minimum, at most full coverage). */
-  l2: bigint;
-  /** Guest bytes that L2 cache maps. */
-  l2Covered: bigint;
-  refcount: bigint;
-  /** Host bytes that refcount cache covers at this image's refcount width. */
-  refcountCovered: bigint;
-}
-
-export interface LayerCachesView {
-  /** Holds every L2 table allocated now (l2AllocatedCoverage); absent until the walk has counted them. */
-  now?: CacheChoiceView;
-  /** Maps the whole virtual disk (l2FullCoverage): what the image needs once fully allocated. */
-  full: CacheChoiceView;
-  /** What the driver picks when nothing is set, under the profile named in the view. */
-  driverDefault: CacheChoiceView;
-}
-
-export interface LayerFactsView {
-  version: 2 | 3;
-  virtualSize: bigint;
-  clusterSize: bigint;
-  extendedL2: boolean;
-  /** Extended L2 only: cluster size / 32. */
-  subclusterSize: bigint | null;
-  refcountBits: number;
-  dirty: boolean;
-  corrupt: boolean;
-  externalDataFile: string | null;
-  encryption: string;
-  compressionType: string;
-  l1Entries: number;
-  backing: string | null;
-  backingFormat: string | null;
-}
-
-export interface LayerWalkView {
-  l2TablesAllocated: number;
-  dataClusters: number;
-  standardClusters: number;
-  compressedClusters: number;
-  zeroClusters: number;
-  /** Extended L2 only. */
-  subclustersAllocated: number | null;
-  subclustersZero: number | null;
-  /** Guest bytes stored in this layer. */
-  allocatedBytes: bigint;
-  l2AllocatedCoverage: bigint;
-  /** Per region of the virtual disk, 0..1 (from the walk). */
-  allocation: { regionBytes: bigint; data: number[]; zero: number[] };
-  warnings: string[];
-}
-
 export interface LayerView {
   index: number;
   path: string;
   /** The backing name as the layer above writes it; null for the image opened. */
   name: string | null;
   format: string;
-  /** qcow2 layers whose header could be read. */
-  facts: LayerFactsView | null;
-  /** qcow2 layers whose tables were walked. */
-  walk: LayerWalkView | null;
-  l2FullCoverage: bigint | null;
-  caches: LayerCachesView | null;
+  /** qcow2 layers whose header could be read: layout, allocation (counts null until walked), caches. */
+  cost: LayerCost | null;
+  /** Header facts beside the numbers (dirty, corrupt, encryption, backing file...). */
+  notes: HeaderNotes | null;
+  /** Whether the metadata walk of this layer finished (the allocation counts are then complete). */
+  walked: boolean;
+  warnings: string[];
   error?: { kind: ImageErrorKind; message: string };
-}
-
-export interface ChainMemoryView {
-  /** Sum over the sized layers of L2 + refcount cache, per choice. */
-  now: bigint | null;
-  full: bigint;
-  driverDefault: bigint;
-  /** qcow2 layers with numbers, of all layers in the chain. */
-  layersSized: number;
-  layersTotal: number;
 }
 
 export interface ImageView {
@@ -122,8 +60,9 @@ export interface ImageView {
   changedOnDisk: 'changed' | 'deleted' | null;
   /** The image first, then its backing files, nearest first. */
   layers: LayerView[];
-  memory: ChainMemoryView | null;
-  /** The driver-default profile the numbers assume, in words, and which one it is. */
+  /** What a machine pays for the image and every backing layer, per choice. */
+  chain: ChainCost | null;
+  /** The driver-default profile the numbers assume, in a few words, and which one it is. */
   profile: string;
   profileChoice: ProfileChoice;
   cautions: string[];
@@ -152,7 +91,7 @@ export interface DrawnSummary {
   layers: number;
   /** Regions drawn in the allocation pictures, summed over layers. */
   mapRegions: number;
-  /** Rows in the recommended-caches table. */
+  /** Rows drawn in the caches groups of every layer plus the chain's sum. */
   cacheRows: number;
   progressShown: boolean;
   /** The "changed on disk" notice is shown. */

@@ -80,49 +80,49 @@ describe('qcow2 image viewer', () => {
     const { view, drawn } = await openImage(plain.path);
     assert.equal(view.state, 'done');
     const [top] = view.layers;
-    assert.ok(top?.facts && top.walk);
-    assert.equal(top.facts.version, 3);
-    assert.equal(top.facts.virtualSize, 8n * GiB);
-    assert.equal(top.facts.clusterSize, 64n * KiB); // cluster_bits 16 [SPEC]
-    assert.equal(top.facts.extendedL2, false);
-    assert.equal(top.facts.refcountBits, 16); // refcount_order 4 [SPEC]
-    assert.equal(top.facts.dirty, false);
-    assert.equal(top.facts.corrupt, false);
-    assert.equal(top.facts.l1Entries, plain.l1Entries);
-    assert.equal(top.walk.l2TablesAllocated, plain.truth.l2TablesAllocated);
-    assert.equal(top.walk.l2TablesAllocated, 3);
-    assert.equal(top.walk.dataClusters, plain.truth.dataClustersAllocated);
-    assert.equal(top.walk.compressedClusters, plain.truth.compressedClusters);
-    assert.equal(top.walk.zeroClusters, plain.truth.zeroClusters);
-    assert.equal(top.walk.standardClusters, plain.truth.dataClustersAllocated - plain.truth.compressedClusters);
+    assert.ok(top?.cost && top.notes && top.walked);
+    assert.equal(top.cost.layout.formatVersion, 3);
+    assert.equal(top.cost.layout.virtualSize, 8n * GiB);
+    assert.equal(top.cost.layout.clusterSize, 64n * KiB); // cluster_bits 16 [SPEC]
+    assert.equal(top.cost.layout.subclusters, 1);
+    assert.equal(top.cost.layout.l2EntryWidth, 8); // standard L2 entries [SPEC]
+    assert.equal(top.cost.layout.refcountWidth, 16); // refcount_order 4 [SPEC]
+    assert.equal(top.notes.dirty, false);
+    assert.equal(top.notes.corrupt, false);
+    assert.equal(top.cost.allocation.l1Entries, plain.l1Entries);
+    assert.equal(top.cost.allocation.l2Tables, plain.truth.l2TablesAllocated);
+    assert.equal(top.cost.allocation.l2Tables, 3);
+    assert.equal(top.cost.allocation.dataClusters, plain.truth.dataClustersAllocated);
+    assert.equal(top.cost.allocation.compressedClusters, plain.truth.compressedClusters);
+    assert.equal(top.cost.allocation.zeroClusters, plain.truth.zeroClusters);
     // The picture: every region the model has was drawn, and the first region holds data.
     assert.equal(drawn.state, 'done');
-    assert.equal(drawn.mapRegions, top.walk.allocation.data.length);
+    assert.equal(drawn.mapRegions, top.cost.allocation.map?.data.length);
     assert.ok(drawn.mapRegions > 1);
-    assert.ok((top.walk.allocation.data[0] ?? 0) > 0);
-    assert.ok(top.walk.allocation.zero.some((share) => share > 0), 'zero clusters show in the map');
+    assert.ok((top.cost.allocation.map?.data[0] ?? 0) > 0);
+    assert.ok((top.cost.allocation.map?.zero ?? []).some((share) => share > 0), 'zero clusters show in the map');
     assert.equal(drawn.progressShown, false);
   });
 
   it('recommends the L2 cache for the allocated tables now and full coverage once fully allocated', async () => {
     const { view, drawn } = await openImage(plain.path);
-    const caches = view.layers[0]?.caches;
-    assert.ok(caches?.now);
+    const caches = view.layers[0]?.cost?.caches.choices;
+    assert.ok(caches?.allocated);
     // One L2 table is one cluster [SPEC]: 3 allocated tables take 3 x 64 KiB.
-    assert.equal(caches.now.l2, 192n * KiB);
+    assert.equal(caches.allocated.l2, 192n * KiB);
     // FACTS.md check values (common practice): 8 GiB with 64 KiB clusters needs a 1 MiB L2 cache.
-    assert.equal(caches.full.l2, 1n * MiB);
-    assert.equal(caches.full.l2Covered, 8n * GiB);
+    assert.equal(caches.wholeDisk.l2, 1n * MiB);
+    assert.equal(caches.wholeDisk.l2Covered, 8n * GiB);
     // [CACHE] the refcount cache defaults to 4 clusters; 256 KiB with 16-bit refcounts covers 8 GiB.
-    assert.equal(caches.full.refcount, 256n * KiB);
-    assert.equal(caches.full.refcountCovered, 8n * GiB);
+    assert.equal(caches.wholeDisk.refcount, 256n * KiB);
+    assert.equal(caches.wholeDisk.refcountCovered, 8n * GiB);
     // [CACHE] the current driver on Linux: up to 32 MiB, never above full coverage.
-    assert.equal(caches.driverDefault.l2, 1n * MiB);
-    assert.ok(view.memory);
-    assert.equal(view.memory.now, 192n * KiB + 256n * KiB);
-    assert.equal(view.memory.full, 1n * MiB + 256n * KiB);
-    assert.equal(view.memory.layersSized, 1);
-    assert.equal(drawn.cacheRows, 2, 'one row for the layer and one for the chain\'s total');
+    assert.equal(caches.default.l2, 1n * MiB);
+    assert.ok(view.chain);
+    assert.equal(view.chain.allocated, 192n * KiB + 256n * KiB);
+    assert.equal(view.chain.wholeDisk, 1n * MiB + 256n * KiB);
+    assert.equal(view.chain.layersSized, 1);
+    assert.equal(drawn.cacheRows, 4, 'the caches group of the one layer: tables present, whole disk, default L2, default refcount');
     // FACTS.md cautions: reopen, host memory per layer, fixed at creation, for review.
     assert.equal(view.cautions.length, 4);
     assert.ok(view.cautions.some((c) => /opened/.test(c)));
@@ -134,10 +134,10 @@ describe('qcow2 image viewer', () => {
     const uri = vscode.Uri.file(big.path);
     const first = await openImage(big.path);
     // FACTS.md check values (common practice): 256 GiB with 64 KiB clusters needs 32 MiB for full coverage.
-    assert.equal(first.view.layers[0]?.caches?.full.l2, 32n * MiB);
+    assert.equal(first.view.layers[0]?.cost?.caches.choices.wholeDisk.l2, 32n * MiB);
     // [CACHE] current driver on Linux: up to 32 MiB.
     assert.deepEqual(first.view.profileChoice, { generation: 'current', platform: 'linux' });
-    assert.equal(first.view.layers[0]?.caches?.driverDefault.l2, 32n * MiB);
+    assert.equal(first.view.layers[0]?.cost?.caches.choices.default.l2, 32n * MiB);
 
     const pick = async (generation: string, platform: string): Promise<ViewerSnapshot> => {
       assert.equal(await vscode.commands.executeCommand('cachewright.imageViewer.setProfile', uri.toString(), { generation, platform }), true);
@@ -148,13 +148,13 @@ describe('qcow2 image viewer', () => {
     };
     // [CACHE] current driver elsewhere: up to 8 MiB.
     const other = await pick('current', 'other');
-    assert.equal(other.view.layers[0]?.caches?.driverDefault.l2, 8n * MiB);
+    assert.equal(other.view.layers[0]?.cost?.caches.choices.default.l2, 8n * MiB);
     // [CACHE] legacy driver: a 1 MiB L2 cache and a refcount cache a quarter of the L2 cache.
     const legacy = await pick('legacy', 'linux');
-    assert.equal(legacy.view.layers[0]?.caches?.driverDefault.l2, 1n * MiB);
-    assert.equal(legacy.view.layers[0]?.caches?.driverDefault.refcount, 256n * KiB);
-    assert.equal(legacy.view.layers[0]?.caches?.full.refcount, 8n * MiB);
-    assert.equal(legacy.view.layers[0]?.caches?.full.l2, 32n * MiB, 'full coverage does not depend on the driver');
+    assert.equal(legacy.view.layers[0]?.cost?.caches.choices.default.l2, 1n * MiB);
+    assert.equal(legacy.view.layers[0]?.cost?.caches.choices.default.refcount, 256n * KiB);
+    assert.equal(legacy.view.layers[0]?.cost?.caches.choices.wholeDisk.refcount, 8n * MiB);
+    assert.equal(legacy.view.layers[0]?.cost?.caches.choices.wholeDisk.l2, 32n * MiB, 'full coverage does not depend on the driver');
     assert.equal(legacy.progressReports, first.progressReports, 'the image was not walked again');
     assert.equal(legacy.view.state, 'done');
   });
@@ -169,24 +169,24 @@ describe('qcow2 image viewer', () => {
     assert.equal(view.state, 'done');
     assert.equal(view.layers.length, 2);
     const [top, back] = view.layers;
-    assert.equal(top?.facts?.clusterSize, 64n * KiB);
-    assert.equal(top?.facts?.backing, 'chain-base.qcow2');
-    assert.equal(top?.facts?.backingFormat, 'qcow2');
+    assert.equal(top?.cost?.layout.clusterSize, 64n * KiB);
+    assert.equal(top?.notes?.backing, 'chain-base.qcow2');
+    assert.equal(top?.notes?.backingFormat, 'qcow2');
     assert.equal(back?.path, base.path, 'the backing name resolves relative to the image\'s folder');
     assert.equal(back?.name, 'chain-base.qcow2');
-    assert.equal(back?.facts?.clusterSize, 1n * MiB);
-    assert.equal(back?.walk?.l2TablesAllocated, base.truth.l2TablesAllocated);
+    assert.equal(back?.cost?.layout.clusterSize, 1n * MiB);
+    assert.equal(back?.cost?.allocation.l2Tables, base.truth.l2TablesAllocated);
     // Overlay [CACHE]: 4 GiB / 64 KiB x 8 B = 512 KiB full coverage; refcount 4 x 64 KiB.
-    assert.equal(top?.caches?.full.l2, 512n * KiB);
+    assert.equal(top?.cost?.caches.choices.wholeDisk.l2, 512n * KiB);
     // Base [CACHE]: 4 GiB / 1 MiB x 8 B = 32 KiB of entries, one whole 1 MiB table, but the L2 cache
     // holds at least 2 entries (2 MiB); the refcount cache at least 4 clusters (4 MiB).
-    assert.equal(back?.caches?.full.l2, 2n * MiB);
-    assert.equal(back?.caches?.full.refcount, 4n * MiB);
+    assert.equal(back?.cost?.caches.choices.wholeDisk.l2, 2n * MiB);
+    assert.equal(back?.cost?.caches.choices.wholeDisk.refcount, 4n * MiB);
     // Each layer has its own caches; the chain costs their sum [CACHE].
-    assert.equal(view.memory?.full, 512n * KiB + 256n * KiB + 2n * MiB + 4n * MiB);
-    assert.equal(view.memory?.layersSized, 2);
+    assert.equal(view.chain?.wholeDisk, 512n * KiB + 256n * KiB + 2n * MiB + 4n * MiB);
+    assert.equal(view.chain?.layersSized, 2);
     assert.equal(drawn.layers, 2);
-    assert.equal(drawn.cacheRows, 3);
+    assert.equal(drawn.cacheRows, 12, 'four rows in each layer\'s caches group and four for the chain\'s sum');
   });
 
   it('shows a missing backing file plainly', async () => {
@@ -202,9 +202,9 @@ describe('qcow2 image viewer', () => {
     assert.match(missing?.error?.message ?? '', /no-such-base\.qcow2/);
     assert.match(view.status, /Backing layer 1 could not be read \(missing file\)/);
     // The image itself was still read and sized.
-    assert.equal(view.layers[0]?.walk?.l2TablesAllocated, lost.truth.l2TablesAllocated);
-    assert.equal(view.memory?.layersSized, 1);
-    assert.equal(view.memory?.layersTotal, 2);
+    assert.equal(view.layers[0]?.cost?.allocation.l2Tables, lost.truth.l2TablesAllocated);
+    assert.equal(view.chain?.layersSized, 1);
+    assert.equal(view.chain?.layers, 2);
   });
 
   it('shows a backing cycle plainly', async () => {
@@ -216,7 +216,7 @@ describe('qcow2 image viewer', () => {
     const cyclic = view.layers.find((l) => l.error);
     assert.equal(cyclic?.error?.kind, 'cycle');
     assert.match(view.status, /could not be read \(backing cycle\)/);
-    assert.equal(view.layers[1]?.facts?.backing, 'loop-a.qcow2');
+    assert.equal(view.layers[1]?.notes?.backing, 'loop-a.qcow2');
   });
 
   it('says plainly that a text file or an empty file named .qcow2 is not an image', async () => {
@@ -231,8 +231,8 @@ describe('qcow2 image viewer', () => {
       assert.equal(drawn.state, 'failed');
       assert.equal(view.layers[0]?.error?.kind, 'not-qcow2');
       assert.match(view.status, /The image could not be read \(not a qcow2 image\)/);
-      assert.equal(view.layers[0]?.facts, null);
-      assert.equal(view.memory, null, 'nothing to size');
+      assert.equal(view.layers[0]?.cost, null);
+      assert.equal(view.chain, null, 'nothing to size');
       assert.equal(drawn.mapRegions, 0);
       assert.equal(sha256(file), before);
       await vscode.commands.executeCommand('workbench.action.closeAllEditors');
@@ -246,13 +246,14 @@ describe('qcow2 image viewer', () => {
     });
     const { view } = await openImage(ext.path);
     const top = view.layers[0];
-    assert.equal(top?.facts?.extendedL2, true);
+    assert.equal(top?.cost?.layout.subclusters, 32);
+    assert.equal(top?.cost?.layout.l2EntryWidth, 16);
     // [SPEC] extended L2: 32 subclusters per cluster.
-    assert.equal(top?.facts?.subclusterSize, 2n * KiB);
-    assert.equal(top?.walk?.subclustersAllocated, ext.truth.subclustersAllocated);
-    assert.equal(top?.walk?.subclustersZero, ext.truth.subclustersZero);
+    assert.equal((top?.cost?.layout.clusterSize ?? 0n) / 32n, 2n * KiB);
+    assert.equal(top?.cost?.allocation.subclustersAllocated, ext.truth.subclustersAllocated);
+    assert.equal(top?.cost?.allocation.subclustersZero, ext.truth.subclustersZero);
     // FACTS.md: 16-byte entries; 1 GiB / 64 KiB x 16 B = 256 KiB.
-    assert.equal(top?.caches?.full.l2, 256n * KiB);
+    assert.equal(top?.cost?.caches.choices.wholeDisk.l2, 256n * KiB);
   });
 
   it('reports progress, stops mid-walk and reads again on request', async () => {
@@ -269,18 +270,19 @@ describe('qcow2 image viewer', () => {
     assert.equal(stopped.drawn.state, 'cancelled');
     assert.ok(stopped.progressReports >= 1, 'the walk reported progress');
     assert.ok(stopped.view.progress && stopped.view.progress.l1Done < stopped.view.progress.l1Total, 'it stopped before the end of the L1 table');
-    assert.equal(stopped.view.layers[0]?.facts?.clusterSize, 512n, 'header facts stay after a stop');
-    assert.equal(stopped.view.layers[0]?.walk, null, 'the stopped layer has no walk counts');
+    assert.equal(stopped.view.layers[0]?.cost?.layout.clusterSize, 512n, 'header facts stay after a stop');
+    assert.equal(stopped.view.layers[0]?.walked, false, 'the stopped layer has no walk counts');
+    assert.equal(stopped.view.layers[0]?.cost?.allocation.l2Tables, null);
 
     await vscode.commands.executeCommand('cachewright.imageViewer.reread', uri.toString());
     const done = await waitFor('the second read', async () => {
       const shot = await snapshot(uri);
       return shot?.view.state === 'done' ? shot : undefined;
     }, 20_000);
-    assert.equal(done.view.layers[0]?.walk?.l2TablesAllocated, many.truth.l2TablesAllocated);
-    assert.equal(done.view.layers[0]?.walk?.l2TablesAllocated, 2048);
+    assert.equal(done.view.layers[0]?.cost?.allocation.l2Tables, many.truth.l2TablesAllocated);
+    assert.equal(done.view.layers[0]?.cost?.allocation.l2Tables, 2048);
     // 2,048 tables of one cluster each [SPEC].
-    assert.equal(done.view.layers[0]?.caches?.now?.l2, 2048n * 512n);
+    assert.equal(done.view.layers[0]?.cost?.caches.choices.allocated?.l2, 2048n * 512n);
   });
 
   it('says when the file changed on disk after it was read, and reads it afresh', async () => {
@@ -288,7 +290,7 @@ describe('qcow2 image viewer', () => {
     const first = writeImage(file, { version: 3, clusterBits: 16, virtualSize: 2n * GiB, clusters: [{ guest: 0, kind: 'data' }] });
     const uri = vscode.Uri.file(file);
     const read = await openImage(file);
-    assert.equal(read.view.layers[0]?.walk?.l2TablesAllocated, first.truth.l2TablesAllocated);
+    assert.equal(read.view.layers[0]?.cost?.allocation.l2Tables, first.truth.l2TablesAllocated);
     assert.equal(read.view.changedOnDisk, null);
     // The guest writes into two more L2 tables' ranges (8192 clusters per table [SPEC]).
     const second = writeImage(file, {
@@ -299,14 +301,14 @@ describe('qcow2 image viewer', () => {
       const shot = await snapshot(uri);
       return shot?.view.changedOnDisk === 'changed' && shot.drawn.changedNotice ? shot : undefined;
     }, 15_000);
-    assert.equal(stale.view.layers[0]?.walk?.l2TablesAllocated, first.truth.l2TablesAllocated, 'the old numbers stay until read again');
+    assert.equal(stale.view.layers[0]?.cost?.allocation.l2Tables, first.truth.l2TablesAllocated, 'the old numbers stay until read again');
     await vscode.commands.executeCommand('cachewright.imageViewer.reread', uri.toString());
     const fresh = await waitFor('the fresh read', async () => {
       const shot = await snapshot(uri);
       return shot?.view.state === 'done' && shot.view.changedOnDisk === null ? shot : undefined;
     }, 15_000);
-    assert.equal(fresh.view.layers[0]?.walk?.l2TablesAllocated, second.truth.l2TablesAllocated);
-    assert.equal(fresh.view.layers[0]?.walk?.l2TablesAllocated, 3);
+    assert.equal(fresh.view.layers[0]?.cost?.allocation.l2Tables, second.truth.l2TablesAllocated);
+    assert.equal(fresh.view.layers[0]?.cost?.allocation.l2Tables, 3);
     assert.equal(fresh.drawn.changedNotice, false);
   });
 
@@ -345,7 +347,7 @@ describe('qcow2 image viewer', () => {
     assert.equal(view.state, 'done');
     assert.equal(view.layers.length, 2);
     assert.equal(path.basename(view.layers[1]?.path ?? ''), 'tern-golden.qcow2');
-    assert.ok(view.memory && view.memory.layersSized === 2);
+    assert.ok(view.chain && view.chain.layersSized === 2);
     assert.equal(sha256(overlay.fsPath), before);
   });
 });

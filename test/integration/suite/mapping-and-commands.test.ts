@@ -1,7 +1,7 @@
 // The mapping file's own checks, the commands, the status bar and the sizing panel's host side.
 import * as assert from 'node:assert/strict';
 import * as vscode from 'vscode';
-import { formatSize } from '../../../src/core/units';
+import { formatSize } from '../../../src/core/format';
 import { loadMapping } from '../../../src/lint';
 import { proposeMapping } from '../../../src/extension/starterProposal';
 import { parse as parseYaml } from 'yaml';

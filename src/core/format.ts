@@ -1,0 +1,69 @@
+// The one way every front end (CLI text, rule messages, the sizing panel, the image viewer) writes
+// numbers for people: sizes in binary units (IEC 80000-13), shares as percent, counts with thousands
+// separators, intervals in seconds with the unit a person would pick. Pure: runs in the webviews too.
+// Values written back into definition files are not formatted here (see units.ts, formatSizeExact).
+
+const KI = 1024n;
+const BINARY_NAMES = ['B', 'KiB', 'MiB', 'GiB', 'TiB', 'PiB', 'EiB'] as const;
+
+/**
+ * A size: the largest binary unit that leaves a value of at least 1, with up to two decimals
+ * ("2.5 MiB", "192 KiB"). Prefixed with "~" when those decimals are not exact.
+ */
+export function formatSize(bytes: bigint): string {
+  let index = 0;
+  while (index < BINARY_NAMES.length - 1 && bytes >= KI ** BigInt(index + 1)) index++;
+  const unit = KI ** BigInt(index);
+  const hundredths = (bytes * 100n) / unit;
+  const exact = (bytes * 100n) % unit === 0n;
+  const whole = hundredths / 100n;
+  const cents = hundredths % 100n;
+  const decimals = cents === 0n ? '' : `.${cents.toString().padStart(2, '0').replace(/0$/, '')}`;
+  return `${exact ? '' : '~'}${whole}${decimals} ${BINARY_NAMES[index]}`;
+}
+
+/**
+ * A share as percent with one decimal, rounded down so that anything short of the whole never reads
+ * 100 %; a trailing ".0" is dropped ("6.2 %", "25 %", "100 %"). A share above 0 that rounds to 0
+ * reads "under 0.1 %".
+ */
+export function formatShare(share: number): string {
+  if (!Number.isFinite(share) || share <= 0) return '0 %';
+  if (share >= 1) return share === 1 ? '100 %' : `${trimTenths(Math.floor(share * 1000 + 1e-9))} %`;
+  const tenths = Math.floor(share * 1000 + 1e-9);
+  if (tenths === 0) return 'under 0.1 %';
+  return `${trimTenths(tenths)} %`;
+}
+
+/** part / whole as formatShare writes it, exactly for byte counts of any size. */
+export function formatPercent(part: bigint, whole: bigint): string {
+  if (whole <= 0n || part >= whole) return part === whole || whole <= 0n ? '100 %' : `${trimTenths(Number((part * 1000n) / whole))} %`;
+  if (part <= 0n) return '0 %';
+  const tenths = (part * 1000n) / whole;
+  if (tenths === 0n) return 'under 0.1 %';
+  return `${trimTenths(Number(tenths))} %`;
+}
+
+function trimTenths(tenths: number): string {
+  const whole = Math.floor(tenths / 10);
+  const rest = tenths % 10;
+  return rest === 0 ? whole.toLocaleString('en-US') : `${whole.toLocaleString('en-US')}.${rest}`;
+}
+
+/** A count with thousands separators: "12,345". */
+export function formatCount(n: number | bigint): string {
+  return n.toLocaleString('en-US');
+}
+
+/** "1 table", "2 tables", "1,024 entries". */
+export function formatCounted(n: number | bigint, one: string, many = `${one}s`): string {
+  return `${formatCount(n)} ${n === 1 || n === 1n ? one : many}`;
+}
+
+/** An interval in the notation the mapping file reads back: "10m", "90s", "1h"; 0 is "0 (off)". */
+export function formatInterval(seconds: number): string {
+  if (seconds === 0) return '0 (off)';
+  if (seconds % 3600 === 0) return `${seconds / 3600}h`;
+  if (seconds % 60 === 0) return `${seconds / 60}m`;
+  return `${seconds}s`;
+}
