@@ -61,6 +61,9 @@ export interface MachineReport {
   pointer: string;
   range: SourceRange;
   memory?: bigint;
+  /** The hypervisor host it runs on, and where the definition says so. */
+  host?: string;
+  hostPointer?: string;
   budget?: bigint;
   cacheMemoryTotal: bigint;
   /** Indices into FileReport.disks. */
@@ -473,6 +476,7 @@ function assemble(lint: FileLint, units: Units): FileReport {
       pointer: machine.pointer,
       range: machine.range,
       memory,
+      ...(machine.host ? { host: machine.host.value, hostPointer: machine.host.pointer } : {}),
       budget: memory === undefined ? undefined : (memory * BigInt(Math.round(mapping.cacheShareOfMemory * 1_000_000))) / 1_000_000n,
       cacheMemoryTotal: total,
       disks: indices,
@@ -609,6 +613,7 @@ export class LintSession {
     for (const machine of state.machines) {
       machine.range = shiftRange(machine.range, change, lines);
       if (machine.memory) machine.memory.range = shiftRange(machine.memory.range, change, lines);
+      if (machine.host) machine.host.range = shiftRange(machine.host.range, change, lines);
       for (const disk of machine.disks) if (disk !== old.disk) shiftDisk(disk, change, lines);
     }
     const value = valueAtPath(document.data, old.disk.path);

@@ -143,3 +143,16 @@ export function formatInterval(seconds: number): string {
   if (seconds % 60 === 0) return `${seconds / 60}m`;
   return `${seconds}s`;
 }
+
+/** A share of a whole: a fraction such as 0.02, or a percentage such as "2%" (above 0, at most 1). */
+export function parseShare(input: unknown): Outcome<number> {
+  let value: number | undefined;
+  if (typeof input === 'number') value = input;
+  else if (typeof input === 'string') {
+    const match = /^\s*(\d+(?:\.\d+)?|\.\d+)\s*(%?)\s*$/.exec(input);
+    if (match) value = Number(match[1]) / (match[2] === '%' ? 100 : 1);
+  }
+  if (value === undefined || !Number.isFinite(value)) return { ok: false, error: `a share is a fraction such as 0.02 or a percentage such as "2%", got ${JSON.stringify(input)}` };
+  if (value <= 0 || value > 1) return { ok: false, error: `a share must be above 0 and at most 1 (100%), got ${JSON.stringify(input)}` };
+  return { ok: true, value };
+}
