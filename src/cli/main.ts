@@ -2,6 +2,7 @@
 // message and an exit code, never a stack trace.
 import { runLint } from './lint';
 import { runInspect } from './inspect';
+import { runCompare } from './compare';
 import { runSize } from './size';
 import { EXIT_USAGE, processIO, type CommandIO } from './io';
 
@@ -14,6 +15,7 @@ commands:
   lint [PATH...]     check the qcow2 cache settings of VM definition files
   size --size SIZE   the cache sizing numbers of one disk
   inspect IMAGE...   read qcow2 images and their backing chains (read-only)
+  compare BASE HEAD  what a change does to findings and cache memory (or --git REF [HEAD])
 
 Run "cachewright <command> --help" for a command's options.
 `;
@@ -27,6 +29,8 @@ export async function runCommand(argv: readonly string[], io: CommandIO): Promis
       return runSize(rest, io);
     case 'inspect':
       return runInspect(rest, io);
+    case 'compare':
+      return runCompare(rest, io, VERSION);
     case '--version':
     case '-v':
       io.stdout(`${VERSION}\n`);
