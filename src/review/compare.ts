@@ -4,7 +4,7 @@
 import type { Finding, Severity, SizingReport } from '../core/results';
 import { hostBudget, type HostPlan } from '../model/mapping';
 import { identify, pairUp, type IdentifiedFinding } from './identity';
-import type { ReviewedFile, ReviewedMachine } from './types';
+import type { ReviewedDisk, ReviewedFile, ReviewedMachine } from './types';
 
 export interface ComparedFinding {
   rule: string;
@@ -116,6 +116,13 @@ function machinesOf(files: readonly ReviewedFile[]): Map<string, MachineSide> {
 interface DiskSide {
   ref: DiskRef;
   sizing: SizingReport;
+  configured: ReviewedDisk['configured'];
+}
+
+function tuningOf(side: DiskSide): string {
+  const settings = Object.entries(side.configured ?? {}).flatMap(([key, value]) => (value ? [[key, value.raw]] : [])).sort(([a], [b]) => byText(String(a), String(b)));
+  const { clusterSize, l2EntryBytes, layers } = side.sizing;
+  return JSON.stringify([settings, String(clusterSize), String(l2EntryBytes), layers]);
 }
 
 function disksOf(files: readonly ReviewedFile[]): Map<string, DiskSide[]> {
@@ -127,7 +134,7 @@ function disksOf(files: readonly ReviewedFile[]): Map<string, DiskSide[]> {
       const diskId = disk.named ? disk.name : disk.pointer;
       const key = `${file.path}\u0000${machineId}\u0000${diskId}`;
       const ref: DiskRef = { file: file.path, machine: machine ? machineLabel(file.path, machine) : disk.machine, disk: disk.named ? disk.name : `${disk.name} (${disk.pointer})`, cacheMemory: disk.sizing.cacheMemoryTotal };
-      out.set(key, [...(out.get(key) ?? []), { ref, sizing: disk.sizing }]);
+      out.set(key, [...(out.get(key) ?? []), { ref, sizing: disk.sizing, configured: disk.configured }]);
     }
   }
   return out;
@@ -151,10 +158,8 @@ function diskChanges(base: readonly ReviewedFile[], head: readonly ReviewedFile[
       }
       const how: DiskChangeKind[] = [];
       if (was.sizing.virtualSize !== now.sizing.virtualSize) how.push('resized');
-      const tuning = (s: SizingReport) => [s.clusterSize, s.l2Effective, s.refcountEffective, s.layers, s.cacheMemoryTotal, s.l2EntryBytes].join(',');
-      // A resize moves the caches with it; only a change the size does not explain is a re-tune.
-      const resizedOnly = { ...was.sizing, virtualSize: now.sizing.virtualSize };
-      if (tuning(was.sizing) !== tuning(now.sizing) && !(how.includes('resized') && tuning(resizedOnly) === tuning(now.sizing))) how.push('re-tuned');
+      // Re-tuned: the settings written or the layout changed (a resize alone moves default caches too).
+      if (tuningOf(was) !== tuningOf(now)) how.push('re-tuned');
       if (how.length > 0) disks.changed.push({ ...now.ref, how, before: sizingFacts(was.sizing), after: sizingFacts(now.sizing) });
     });
     for (const gone of bases.slice(heads.length)) disks.removed.push(gone.ref);
