@@ -112,12 +112,12 @@ async function lintTree(io: CommandIO, mapping: Mapping, mappingText: string, la
   const selection = selectFiles(mapping, mapping.dir, []);
   // Image files are not part of a change's text and a checkout of the base has none: compare
   // reviews the definitions alone (lint reads the images).
-  const request: LintRequest = { paths: [], config: mapping.path, mappingText, format: 'json', fix: false, quiet: false, images: false };
+  const request: LintRequest = { paths: [], mappingPath: mapping.path, mappingText, format: 'json', fix: false, errorsOnly: false, images: false };
   const progress = startProgress(io, selection.files.length, `linting ${label}`);
   const linted = await lintFiles(selection.files, mapping, request, mapping.dir, progress);
   progress.done();
   const files: LintedFile[] = [...linted.files].sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
-  const run: LintRun = { mapping, cwd: io.cwd, files, quiet: false, fix: false, version };
+  const run: LintRun = { mapping, cwd: io.cwd, files, errorsOnly: false, fix: false, version };
   completeRun(run);
   return run;
 }

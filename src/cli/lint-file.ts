@@ -11,14 +11,14 @@ export type LintFormat = 'text' | 'json' | 'sarif';
 
 export interface LintRequest {
   paths: string[];
-  config?: string;
+  mappingPath?: string;
   format: LintFormat;
   fix: boolean;
-  maxWarnings?: number;
-  quiet: boolean;
+  allowWarnings?: number;
+  errorsOnly: boolean;
   images: boolean;
   /**
-   * The mapping file's text when it is not to be read from `config` (compare lints the base tree
+   * The mapping file's text when it is not to be read from `mappingPath` (compare lints the base tree
    * with the head's mapping, placed at the same spot in the base tree): threads load it from here.
    */
   mappingText?: string;

@@ -119,8 +119,8 @@ async function serveShare(job: ShareJob): Promise<void> {
   const port = parentPort;
   if (!port) return;
   try {
-    const { mappingText, config } = job.request;
-    const mapping = mappingText !== undefined && config !== undefined ? loadMappingText(mappingText, config) : resolveMapping(job.cwd, config, job.request.paths);
+    const { mappingText, mappingPath } = job.request;
+    const mapping = mappingText !== undefined && mappingPath !== undefined ? loadMappingText(mappingText, mappingPath) : resolveMapping(job.cwd, mappingPath, job.request.paths);
     if (!mapping.ok) {
       port.postMessage({ type: 'failed', message: mapping.error } satisfies ShareMessage);
       return;
