@@ -5,7 +5,7 @@
 import { pathToFileURL } from 'node:url';
 import { RULES, type Finding, type SourceRange } from '../lint';
 import type { Severity } from '../core/results';
-import { mappingRelative, shownFindings, suppressedByMapping, type LintRun } from './lint-results';
+import { mappingRelative, shownFindings, type LintRun } from './lint-results';
 
 /** The base id every artifact location is relative to: the mapping file's folder. */
 export const SARIF_BASE_ID = 'MAPPING_ROOT';
@@ -68,7 +68,7 @@ function result(run: LintRun, path: string, finding: Finding) {
           }]
         : undefined,
     suppressions: finding.accepted
-      ? [{ kind: suppressedByMapping(run.mapping, path, finding) ? 'external' : 'inSource', status: 'accepted', justification: finding.accepted.reason }]
+      ? [{ kind: finding.accepted.from === 'mapping' ? 'external' : 'inSource', status: 'accepted', justification: finding.accepted.reason }]
       : undefined,
   };
 }
