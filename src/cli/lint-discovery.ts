@@ -9,6 +9,7 @@ import tinyglobby = require('tinyglobby');
 import { loadMapping, type Mapping } from '../lint';
 import { DEFAULT_INCLUDE, MAPPING_FILE_NAMES } from '../model/mapping';
 import { fail, ok, type Outcome } from '../core/result';
+import { ioMessage, readRegularText } from '../files/open';
 
 /** Folders no one keeps definitions in; skipping them keeps the walk fast. */
 const NEVER_WALKED = ['**/node_modules/**', '**/.git/**'];
@@ -26,11 +27,20 @@ export function findMappingFile(start: string): string | undefined {
   for (;;) {
     for (const name of MAPPING_FILE_NAMES) {
       const candidate = nodePath.join(dir, name);
-      if (isFile(candidate)) return candidate;
+      // Anything but a folder by that name is taken, so a pipe or device there is reported, not passed over.
+      if (existsNotFolder(candidate)) return candidate;
     }
     const parent = nodePath.dirname(dir);
     if (parent === dir) return undefined;
     dir = parent;
+  }
+}
+
+function existsNotFolder(path: string): boolean {
+  try {
+    return !fs.statSync(path).isDirectory();
+  } catch {
+    return false;
   }
 }
 
@@ -42,24 +52,10 @@ function isFile(path: string): boolean {
   }
 }
 
-export const stripBom = (text: string): string => (text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
+/** A mapping file is a page of settings; anything far larger is not one (and is not read whole). */
+const MAPPING_SIZE_LIMIT = 4 * 1024 * 1024;
 
-export function ioMessage(error: unknown): string {
-  const code = typeof error === 'object' && error !== null && 'code' in error ? String((error as { code: unknown }).code) : '';
-  switch (code) {
-    case 'ENOENT':
-      return 'no such file or directory';
-    case 'EACCES':
-    case 'EPERM':
-      return 'permission denied';
-    case 'EISDIR':
-      return 'is a directory, not a file';
-    case 'ELOOP':
-      return 'too many levels of symbolic links';
-    default:
-      return error instanceof Error ? error.message : String(error);
-  }
-}
+export const stripBom = (text: string): string => (text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
 
 /**
  * Reads and checks the mapping file: `--config` when given, else the nearest one above the working
@@ -84,8 +80,7 @@ export function resolveMapping(cwd: string, config: string | undefined, paths: r
   const shown = displayPath(mappingPath, cwd);
   let text: string;
   try {
-    if (fs.statSync(mappingPath).isDirectory()) return fail(`${shown}: the mapping file is a directory, not a file`);
-    text = stripBom(fs.readFileSync(mappingPath, 'utf8'));
+    text = stripBom(readRegularText(mappingPath, { maxBytes: MAPPING_SIZE_LIMIT }));
   } catch (error) {
     return fail(`${shown}: cannot read the mapping file: ${ioMessage(error)}`);
   }

@@ -1,8 +1,8 @@
 // One definition file through `cachewright lint`: read it, lint it, fix it with --fix and write it
 // back. Shared by the command's own loop and its worker threads; never throws.
-import * as fs from 'node:fs';
 import { lintPrepared, prepareDocument, type FileReport, type LintOptions, type Mapping } from '../lint';
-import { displayPath, ioMessage, stripBom } from './lint-discovery';
+import { ioMessage, readRegularFile } from '../files/open';
+import { displayPath, stripBom } from './lint-discovery';
 import { encodeLike, fixText, writeFileAtomic } from './lint-fix';
 import type { ImageFacts } from './lint-images';
 import { viewOf, type LintedFile } from './lint-results';
@@ -17,13 +17,16 @@ export interface LintRequest {
   maxWarnings?: number;
   quiet: boolean;
   images: boolean;
+  /** --known FILE and --record-known FILE, as given. */
+  known?: string;
+  recordKnown?: string;
 }
 
 /** Reads one file, lints it and (with --fix) fixes it; never throws. */
 export async function lintFile(path: string, mapping: Mapping, request: LintRequest, images: ImageFacts, notes: string[], cwd: string): Promise<LintedFile> {
   let bytes: Buffer;
   try {
-    bytes = fs.readFileSync(path);
+    bytes = readRegularFile(path);
   } catch (error) {
     return { path, error: `cannot read: ${ioMessage(error)}`, fixed: 0 };
   }

@@ -10,6 +10,8 @@ import { startProgress } from './lint-progress';
 import { summarize, type LintedFile, type LintRun } from './lint-results';
 import { renderSarif } from './lint-sarif';
 import { renderText } from './lint-text';
+import { compareRunWithKnown, writeKnown } from './lint-known';
+import * as nodePath from 'node:path';
 
 const OPTIONS: Record<string, OptionSpec> = {
   config: { value: true },
@@ -18,6 +20,8 @@ const OPTIONS: Record<string, OptionSpec> = {
   'max-warnings': { value: true },
   quiet: { value: false },
   'no-images': { value: false },
+  known: { value: true },
+  'record-known': { value: true },
   help: { value: false },
 };
 
@@ -25,6 +29,7 @@ const FORMATS: readonly LintFormat[] = ['text', 'json', 'sarif'];
 
 export const LINT_USAGE = `usage: cachewright lint [PATH...] [--config FILE] [--format text|json|sarif]
                      [--fix] [--max-warnings N] [--quiet] [--no-images]
+                     [--known FILE] [--record-known FILE]
 
   PATH            files or folders to check (default: every file the mapping file includes);
                   a named file is always checked, a folder only for the files the mapping includes
@@ -35,6 +40,9 @@ export const LINT_USAGE = `usage: cachewright lint [PATH...] [--config FILE] [--
   --max-warnings  fail (exit 1) when more than N warnings remain
   --quiet         show errors only (warnings still count toward --max-warnings)
   --no-images     do not read the image files definitions name (where the images live elsewhere)
+  --known         a known-findings file: only findings not listed in it count toward the exit
+                  status; listed ones that are gone are reported so the file can be trimmed
+  --record-known  write every current finding to this known-findings file (sorted, stable)
 
 exit status: 0 no errors and warnings within --max-warnings; 1 errors, or too many warnings;
              2 usage, mapping file or file read/write problems
@@ -71,7 +79,29 @@ function readRequest(argv: readonly string[], io: CommandIO): LintRequest | numb
     maxWarnings,
     quiet: args.flags.has('quiet'),
     images: !args.flags.has('no-images'),
+    known: lastOption(args, 'known'),
+    recordKnown: lastOption(args, 'record-known'),
   };
+}
+
+/** --known and --record-known: an exit status when either file cannot be read or written. */
+function applyKnown(run: LintRun, request: LintRequest, io: CommandIO): number | undefined {
+  if (request.known !== undefined) {
+    const comparison = compareRunWithKnown(run, nodePath.resolve(io.cwd, request.known), io.cwd);
+    if (!comparison.ok) {
+      io.stderr(`${comparison.error}\n`);
+      return EXIT_USAGE;
+    }
+    run.known = comparison.value;
+  }
+  if (request.recordKnown !== undefined) {
+    const written = writeKnown(run, nodePath.resolve(io.cwd, request.recordKnown), io.cwd);
+    if (!written.ok) {
+      io.stderr(`${written.error}\n`);
+      return EXIT_USAGE;
+    }
+  }
+  return undefined;
 }
 
 export async function runLint(argv: readonly string[], io: CommandIO, version: string): Promise<number> {
@@ -93,6 +123,8 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   files.sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
 
   const run: LintRun = { mapping: mapping.value, cwd: io.cwd, files, quiet: request.quiet, fix: request.fix, version };
+  const known = applyKnown(run, request, io);
+  if (known !== undefined) return known;
   const render = request.format === 'json' ? renderJson : request.format === 'sarif' ? renderSarif : renderText;
   io.stdout(render(run));
 

@@ -4,6 +4,7 @@ import { promises as fs } from 'node:fs';
 import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { loadMapping, type Mapping, type MappingProblem } from '../lint';
+import { readRegularText } from '../files/open';
 import { MAPPING_FILE_NAMES } from '../model/mapping';
 import { readSettings } from './settings';
 
@@ -44,7 +45,8 @@ export async function readText(uri: vscode.Uri): Promise<string | undefined> {
   const open = vscode.workspace.textDocuments.find((d) => d.uri.toString() === uri.toString());
   if (open) return open.getText();
   try {
-    if (uri.scheme === 'file') return await fs.readFile(uri.fsPath, 'utf8');
+    // Checked for its type first: a named pipe in the workspace must not hang the extension host.
+    if (uri.scheme === 'file') return readRegularText(uri.fsPath);
     return new TextDecoder('utf-8').decode(await vscode.workspace.fs.readFile(uri));
   } catch {
     return undefined;

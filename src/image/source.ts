@@ -1,7 +1,8 @@
 // The reader sees an image only through positioned reads, so it runs the same over a file handle,
 // an in-memory buffer (tests, fuzzing) or anything an editor hands it. Nothing here can write.
 import { readSync } from 'node:fs';
-import { open, type FileHandle } from 'node:fs/promises';
+import { open, stat, type FileHandle } from 'node:fs/promises';
+import { blockDeviceSize, READ_FLAGS, refusedKind } from '../files/open';
 import { ImageError } from './errors';
 
 export interface ByteSource {
@@ -29,7 +30,11 @@ export interface FileSourceOptions {
   blocking?: boolean;
 }
 
-/** An image file opened read-only ('r'): the handle has no write access at all. */
+/**
+ * An image file (or a block device holding one, as a logical volume does) opened read-only: the
+ * handle has no write access at all. Anything else (a pipe, a socket, a character device, a folder)
+ * is refused before it is opened, so nothing a repository names can make the open wait.
+ */
 export class FileByteSource implements ByteSource {
   private constructor(
     private readonly handle: FileHandle,
@@ -40,12 +45,17 @@ export class FileByteSource implements ByteSource {
   }
 
   static async open(path: string, options: FileSourceOptions = {}): Promise<FileByteSource> {
-    const handle = await open(path, 'r');
+    const refusedBefore = refusedKind(await stat(path), IMAGE_KINDS);
+    if (refusedBefore) throw new ImageError('unreadable', refusedBefore);
+    // Non-blocking, in case a pipe took the path's place since the check above.
+    const handle = await open(path, READ_FLAGS);
     try {
-      const stat = await handle.stat();
-      if (stat.isDirectory()) throw new ImageError('unreadable', 'is a directory, not an image file');
-      if (!stat.isFile()) throw new ImageError('unreadable', 'is not a regular file');
-      return new FileByteSource(handle, stat.size, options.blocking !== false);
+      const opened = await handle.stat();
+      const refused = refusedKind(opened, IMAGE_KINDS);
+      if (refused) throw new ImageError('unreadable', refused);
+      // A block device's metadata says size 0: its end is found by reading.
+      const size = opened.isBlockDevice() ? blockDeviceSize(handle.fd) : opened.size;
+      return new FileByteSource(handle, size, options.blocking !== false);
     } catch (error) {
       await handle.close();
       throw error;
@@ -90,6 +100,8 @@ export class FileByteSource implements ByteSource {
     await this.handle.close();
   }
 }
+
+const IMAGE_KINDS = { blockDevices: true } as const;
 
 /** A source over bytes already in memory. */
 export class MemoryByteSource implements ByteSource {

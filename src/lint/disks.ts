@@ -108,6 +108,7 @@ function sizeDisk(context: FileContext, disk: DiskSpec, machines: readonly Machi
     report: {
       machine: disk.machine.name,
       name: disk.name,
+      named: disk.named,
       pointer: disk.pointer,
       range: disk.range,
       sizing: sizing.report,

@@ -3,10 +3,12 @@
 import type { Fix, Severity } from '../core/results';
 import type { SizeStyle } from '../core/units';
 import { setDiskFieldEdit, sizeStyleOfMachines } from '../model/diskEdits';
-import type { DefinitionDocument } from '../model/document';
+import { isScalar } from 'yaml';
+import { nodeAt, type DefinitionDocument } from '../model/document';
 import type { DiskSpec, MachineSpec } from '../model/disks';
 import type { NewValue } from '../model/edits';
 import type { ImageLookup } from '../model/images';
+import { parseJsonPointer } from '../model/jsonpath';
 import { loadMapping as loadMappingFile, type Mapping, type MappingLoad } from '../model/mapping';
 import { RULE_IDS, type Rule, type RuleId } from '../rules';
 import type { FixHelpers, SizeField } from '../rules/types';
@@ -30,6 +32,15 @@ export function loadMapping(text: string, path: string): MappingLoad {
   return loadMappingFile(text, path, RULE_IDS);
 }
 
+/** The scalar a finding points at, as data: part of the finding's identity across runs. */
+function scalarAt(document: DefinitionDocument, pointer: string): string | undefined {
+  if (pointer === '') return undefined;
+  const path = parseJsonPointer(pointer);
+  if (!path.ok) return undefined;
+  const node = nodeAt(document, path.value.map((p) => (typeof p === 'string' && /^(0|[1-9]\d*)$/.test(p) ? Number(p) : p)))?.node;
+  return node && isScalar(node) ? String(node.value) : undefined;
+}
+
 /** A finding as a rule hands it over, before its rule id and severity are attached. */
 export type FindingBody = Omit<LintFinding, 'rule' | 'severity'>;
 
@@ -51,7 +62,8 @@ export class FileContext {
   add(into: LintFinding[], rule: Rule<RuleId>, finding: FindingBody): void {
     const severity = this.severityOf(rule);
     if (severity === 'off') return;
-    into.push({ rule: rule.id, severity, ...finding });
+    const written = scalarAt(this.document, finding.pointer);
+    into.push({ rule: rule.id, severity, ...finding, ...(written !== undefined ? { written } : {}) });
   }
 
   /** How the file writes sizes (read once per file: inserted values follow it). */

@@ -15,6 +15,8 @@ export type LintFinding = Finding<RuleId>;
 export interface DiskReport {
   machine: string;
   name: string;
+  /** Whether the name comes from the definition (else it is "disk N", which depends on the index). */
+  named: boolean;
   pointer: string;
   range: SourceRange;
   sizing: DiskSizing['report'];
@@ -31,6 +33,8 @@ export interface DiskReport {
 
 export interface MachineReport {
   name: string;
+  /** Whether the name comes from the definition or the file (else it is "machine N"). */
+  named: boolean;
   pointer: string;
   range: SourceRange;
   memory?: bigint;
@@ -100,6 +104,7 @@ export function assemble(context: FileContext, units: Units): FileReport {
     const memory = machine.memory?.value;
     machineReports.push({
       name: machine.name,
+      named: machine.named,
       pointer: machine.pointer,
       range: machine.range,
       memory,
