@@ -42,8 +42,8 @@ export interface LintRun {
   mapping: Mapping;
   cwd: string;
   files: LintedFile[];
-  /** --quiet: only errors are shown (counts and the exit code still see everything). */
-  quiet: boolean;
+  /** --errors-only: only errors are shown (counts and the exit code still see everything). */
+  errorsOnly: boolean;
   fix: boolean;
   version: string;
   /** With --known: which findings the known-findings file already lists, and which of it are gone. */
@@ -96,24 +96,12 @@ export function summarize(run: LintRun): LintSummary {
   return summary;
 }
 
-/** The findings an output shows: everything, or under --quiet the unsuppressed errors only. */
+/** The findings an output shows: everything, or under --errors-only the errors not accepted. */
 export function shownFindings(run: LintRun, report: ReportView): Finding[] {
-  return run.quiet ? report.findings.filter((f) => f.severity === 'error' && !f.accepted) : report.findings;
+  return run.errorsOnly ? report.findings.filter((f) => f.severity === 'error' && !f.accepted) : report.findings;
 }
 
 /** A definition file's path relative to the mapping file's folder, with forward slashes. */
 export function mappingRelative(mapping: Mapping, absolutePath: string): string {
   return nodePath.relative(mapping.dir, absolutePath).split(nodePath.sep).join('/');
-}
-
-/**
- * Whether a suppression came from the mapping file's accept list (rather than a comment in the
- * definition): the engine records only the reason, so the CLI matches the list the same way.
- */
-export function suppressedByMapping(mapping: Mapping, path: string, finding: Finding): boolean {
-  if (!finding.accepted) return false;
-  const within = (pointer: string, scope: string) => scope === '' || pointer === scope || pointer.startsWith(`${scope}/`);
-  return mapping.accept.some(
-    (entry) => entry.rule === finding.rule && entry.reason === finding.accepted?.reason && (entry.file === undefined || entry.file === path) && within(finding.pointer, entry.pointer),
-  );
 }
