@@ -5,7 +5,7 @@ import type { FileReport, Finding, Mapping } from '../lint';
 import type { BaselineState, KnownComparison } from '../review/known';
 
 /** What the outputs read of a disk's report. */
-export type DiskView = Pick<FileReport['disks'][number], 'machine' | 'name' | 'named' | 'pointer' | 'sizing' | 'recommended'>;
+export type DiskView = Pick<FileReport['disks'][number], 'machine' | 'name' | 'named' | 'pointer' | 'sizing' | 'recommended' | 'configured'>;
 
 /** What the outputs and the review read of a machine's report. */
 export type MachineView = Omit<FileReport['machines'][number], 'disks' | 'budget'>;
@@ -21,7 +21,7 @@ export interface ReportView {
 export function viewOf(report: FileReport): ReportView {
   return {
     parsed: report.parsed,
-    disks: report.disks.map((d) => ({ machine: d.machine, name: d.name, named: d.named, pointer: d.pointer, sizing: d.sizing, recommended: d.recommended })),
+    disks: report.disks.map((d) => ({ machine: d.machine, name: d.name, named: d.named, pointer: d.pointer, sizing: d.sizing, recommended: d.recommended, configured: d.configured })),
     machines: report.machines.map(({ disks: _disks, budget: _budget, ...machine }) => machine),
     findings: report.findings,
   };
@@ -104,16 +104,4 @@ export function shownFindings(run: LintRun, report: ReportView): Finding[] {
 /** A definition file's path relative to the mapping file's folder, with forward slashes. */
 export function mappingRelative(mapping: Mapping, absolutePath: string): string {
   return nodePath.relative(mapping.dir, absolutePath).split(nodePath.sep).join('/');
-}
-
-/**
- * Whether a suppression came from the mapping file's accept list (rather than a comment in the
- * definition): the engine records only the reason, so the CLI matches the list the same way.
- */
-export function suppressedByMapping(mapping: Mapping, path: string, finding: Finding): boolean {
-  if (!finding.accepted) return false;
-  const within = (pointer: string, scope: string) => scope === '' || pointer === scope || pointer.startsWith(`${scope}/`);
-  return mapping.accept.some(
-    (entry) => entry.rule === finding.rule && entry.reason === finding.accepted?.reason && (entry.file === undefined || entry.file === path) && within(finding.pointer, entry.pointer),
-  );
 }
