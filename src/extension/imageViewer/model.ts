@@ -39,7 +39,7 @@ export function buildImageView(input: ViewInput): ImageView {
     chain: chainCost(input.layers, profile),
     profile: profile.name,
     profileChoice: { generation: profile.generation, platform: profile.platform },
-    cautions: Object.values(CAUTIONS),
+    cautions: [CAUTIONS.reopen, CAUTIONS.hostMemory, CAUTIONS.fixedAtCreation, CAUTIONS.review],
   };
 }
 
