@@ -11,7 +11,7 @@ import { loadMapping as loadMappingFile, type Mapping, type MappingLoad } from '
 import { readSuppressions } from './model/suppressions';
 import { RULE_IDS, RULES, type Rule } from './rules';
 import type { DiskCheck, FindingInput, FixHelpers, SizedDisk, SizeField } from './rules/types';
-import type { SizeStyle } from './core/units';
+import { formatSize, type SizeStyle } from './core/units';
 import type { ImageChainFacts, ImageLookup } from './model/images';
 import * as nodePath from 'node:path';
 import { diffTexts, hasSharedNodes, reparseItem, type TextChange } from './model/incremental';
@@ -337,6 +337,16 @@ function unparsedReport(path: string, problems: readonly { message: string; rang
     findings: problems.map((p) => ({ rule: rule.id, severity: 'error' as const, message: p.message, pointer: '', range: p.range })),
     parsed: false,
   };
+}
+
+/**
+ * A definition file above the size limit, left unread: one parse-error finding at its start that
+ * names its size and the limit; `raise` says how to change the limit in the front end at hand.
+ */
+export function oversizedFileReport(path: string, size: bigint, limit: bigint, raise: string): FileReport {
+  const at: SourceRange = { offset: 0, length: 0, line: 1, column: 1, endLine: 1, endColumn: 1 };
+  const message = `${nodePath.basename(path)} is ${formatSize(size)} (${size} bytes), above the size limit of ${formatSize(limit)} for definition files, so it is not linted; ${raise}`;
+  return unparsedReport(path, [{ message, range: at }]);
 }
 
 /** The findings of one disk (its values and its rules) and its sizing, kept apart so an edit inside it re-checks it alone. */

@@ -1,5 +1,7 @@
 // `cachewright lint` (CONTRACTS.md §2): find the mapping file, pick the definition files, lint each
 // one (and fix it with --fix), print text, JSON or SARIF, and exit 0, 1 or 2 as the contract says.
+import { formatSize, parseSize, SIZE_UNITS_HELP } from '../core/units';
+import { DEFINITION_SIZE_LIMIT, MAX_FILE_SIZE_LIMIT } from '../files/open';
 import { lastOption, parseArgs, type OptionSpec } from './args';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { displayPath, resolveMapping, selectFiles } from './lint-discovery';
@@ -18,13 +20,14 @@ const OPTIONS: Record<string, OptionSpec> = {
   'max-warnings': { value: true },
   quiet: { value: false },
   'no-images': { value: false },
+  'file-size-limit': { value: true },
   help: { value: false },
 };
 
 const FORMATS: readonly LintFormat[] = ['text', 'json', 'sarif'];
 
 export const LINT_USAGE = `usage: cachewright lint [PATH...] [--config FILE] [--format text|json|sarif]
-                     [--fix] [--max-warnings N] [--quiet] [--no-images]
+                     [--fix] [--max-warnings N] [--quiet] [--no-images] [--file-size-limit SIZE]
 
   PATH            files or folders to check (default: every file the mapping file includes);
                   a named file is always checked, a folder only for the files the mapping includes
@@ -35,6 +38,9 @@ export const LINT_USAGE = `usage: cachewright lint [PATH...] [--config FILE] [--
   --max-warnings  fail (exit 1) when more than N warnings remain
   --quiet         show errors only (warnings still count toward --max-warnings)
   --no-images     do not read the image files definitions name (where the images live elsewhere)
+  --file-size-limit SIZE
+                  definition files larger than this are not linted but reported as one error each
+                  (default 32M; K, M, G as in the mapping file)
 
 exit status: 0 no errors and warnings within --max-warnings; 1 errors, or too many warnings;
              2 usage, mapping file or file read/write problems
@@ -63,7 +69,10 @@ function readRequest(argv: readonly string[], io: CommandIO): LintRequest | numb
     if (!/^\d+$/.test(maxRaw) || !Number.isSafeInteger(Number(maxRaw))) return usageError(io, `--max-warnings needs a whole number of warnings (0 or more), not "${maxRaw}"`);
     maxWarnings = Number(maxRaw);
   }
+  const fileSizeLimit = readFileSizeLimit(lastOption(args, 'file-size-limit'));
+  if (typeof fileSizeLimit === 'string') return usageError(io, fileSizeLimit);
   return {
+    fileSizeLimit,
     paths: args.positionals,
     config: lastOption(args, 'config'),
     format: format as LintFormat,
@@ -72,6 +81,14 @@ function readRequest(argv: readonly string[], io: CommandIO): LintRequest | numb
     quiet: args.flags.has('quiet'),
     images: !args.flags.has('no-images'),
   };
+}
+
+/** The --file-size-limit value in bytes, or why it cannot be one. */
+function readFileSizeLimit(raw: string | undefined): number | string {
+  if (raw === undefined) return DEFINITION_SIZE_LIMIT;
+  const size = parseSize(raw);
+  if (!size.ok || size.value < 1n || size.value > BigInt(MAX_FILE_SIZE_LIMIT)) return `--file-size-limit needs a size from 1 byte to ${formatSize(BigInt(MAX_FILE_SIZE_LIMIT))} (${SIZE_UNITS_HELP}), not "${raw}"`;
+  return Number(size.value);
 }
 
 export async function runLint(argv: readonly string[], io: CommandIO, version: string): Promise<number> {
