@@ -15,7 +15,8 @@ import { formatSize, type SizeStyle } from './core/units';
 import type { ImageChainFacts, ImageLookup } from './model/images';
 import * as nodePath from 'node:path';
 import { diffTexts, hasSharedNodes, reparseItem, type TextChange } from './model/incremental';
-import { valueAtPath } from './model/jsonpath';
+import { parseJsonPointer, valueAtPath } from './model/jsonpath';
+import { isScalar } from 'yaml';
 
 export type { Finding, Fix, Severity, SourceRange } from './core/results';
 export type { Mapping, MappingProblem } from './model/mapping';
@@ -37,6 +38,8 @@ export interface LintOptions {
 export interface DiskReport {
   machine: string;
   name: string;
+  /** Whether the name comes from the definition (else it is "disk N", which depends on the index). */
+  named: boolean;
   pointer: string;
   range: SourceRange;
   sizing: DiskSizing['report'];
@@ -53,6 +56,8 @@ export interface DiskReport {
 
 export interface MachineReport {
   name: string;
+  /** Whether the name comes from the definition or the file (else it is "machine N"). */
+  named: boolean;
   pointer: string;
   range: SourceRange;
   memory?: bigint;
@@ -86,6 +91,15 @@ function headRange(document: DefinitionDocument, range: SourceRange): SourceRang
   return document.lines.range(range.offset, Math.max(range.offset, Math.min(end, range.offset + range.length)));
 }
 
+/** The scalar a finding points at, as data: part of the finding's identity across runs. */
+function scalarAt(document: DefinitionDocument, pointer: string): string | undefined {
+  if (pointer === '') return undefined;
+  const path = parseJsonPointer(pointer);
+  if (!path.ok) return undefined;
+  const node = nodeAt(document, path.value.map((p) => (typeof p === 'string' && /^(0|[1-9]\d*)$/.test(p) ? Number(p) : p)))?.node;
+  return node && isScalar(node) ? String(node.value) : undefined;
+}
+
 class FileLint {
   /** Where findings go: the list of the disk, machine or file being checked. */
   sink: Finding[] = [];
@@ -106,7 +120,8 @@ class FileLint {
   add(rule: Rule, finding: Omit<Finding, 'rule' | 'severity'>): void {
     const severity = this.severityOf(rule);
     if (severity === 'off') return;
-    this.sink.push({ rule: rule.id, severity, ...finding });
+    const written = scalarAt(this.document, finding.pointer);
+    this.sink.push({ rule: rule.id, severity, ...finding, ...(written !== undefined ? { written } : {}) });
   }
 
   fileSizeStyle(machines: readonly MachineSpec[]): SizeStyle | undefined {
@@ -241,6 +256,7 @@ function lintDisk(lint: FileLint, disk: DiskSpec, machines: readonly MachineSpec
     report: {
       machine: disk.machine.name,
       name: disk.name,
+      named: disk.named,
       pointer: disk.pointer,
       range: disk.range,
       sizing: sizing.report,
@@ -463,6 +479,7 @@ function assemble(lint: FileLint, units: Units): FileReport {
     const memory = machine.memory?.value;
     machineReports.push({
       name: machine.name,
+      named: machine.named,
       pointer: machine.pointer,
       range: machine.range,
       memory,

@@ -19,6 +19,9 @@ export interface LintRequest {
   images: boolean;
   /** Definition files above this many bytes are reported, not read (--file-size-limit). */
   fileSizeLimit: number;
+  /** --known FILE and --record-known FILE, as given. */
+  known?: string;
+  recordKnown?: string;
 }
 
 /** Reads one file, lints it and (with --fix) fixes it; never throws. */

@@ -3,7 +3,7 @@
 import { CAUTIONS } from '../core/cautions';
 import { stringifyJson } from '../core/json';
 import type { Finding, SourceRange } from '../lint';
-import { mappingRelative, shownFindings, summarize, type LintRun } from './lint-results';
+import { baselineOf, mappingRelative, shownFindings, summarize, type LintRun } from './lint-results';
 
 /**
  * A byte-count object with its bigints as plain numbers, so the whole document can go through the
@@ -23,7 +23,7 @@ function plainCounts(counts: object): Record<string, number | string | boolean> 
 
 const position = (range: SourceRange) => ({ line: range.line, column: range.column, endLine: range.endLine, endColumn: range.endColumn });
 
-function findingJson(finding: Finding) {
+function findingJson(run: LintRun, finding: Finding) {
   return {
     rule: finding.rule,
     severity: finding.severity,
@@ -33,6 +33,7 @@ function findingJson(finding: Finding) {
     fix: finding.fix ? { title: finding.fix.title, edits: finding.fix.edits.map((e) => ({ offset: e.offset, length: e.length, text: e.text })) } : undefined,
     related: finding.related?.map((r) => ({ message: r.message, pointer: r.pointer, ...position(r.range) })),
     accepted: finding.accepted ? { reason: finding.accepted.reason } : undefined,
+    baselineState: baselineOf(run, finding),
   };
 }
 
@@ -56,7 +57,7 @@ export function renderJson(run: LintRun): string {
       sizing: counts(disk.sizing),
       recommended: counts(disk.recommended),
     })),
-    findings: file.report ? shownFindings(run, file.report).map(findingJson) : [],
+    findings: file.report ? shownFindings(run, file.report).map((f) => findingJson(run, f)) : [],
   }));
   const document = {
     tool: 'cachewright',
@@ -72,7 +73,10 @@ export function renderJson(run: LintRun): string {
       fixable: summary.fixable,
       fixed: run.fix ? summary.fixed : undefined,
       unreadable: summary.failed > 0 ? summary.failed : undefined,
+      known: run.known ? summary.known : undefined,
+      knownGone: run.known ? summary.knownGone : undefined,
     },
+    knownGone: run.known?.gone,
     cautions: run.fix && summary.fixed > 0 ? [CAUTIONS.reopen, CAUTIONS.hostMemory, CAUTIONS.review] : undefined,
   };
   // Past 2^53 bytes (a disk of 8 PiB and more) only the bigint-aware writer keeps counts exact.

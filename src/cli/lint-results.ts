@@ -2,21 +2,27 @@
 // their reports, and the counts the summary line and the exit code are computed from.
 import * as nodePath from 'node:path';
 import type { FileReport, Finding, Mapping } from '../lint';
+import type { BaselineState, KnownComparison } from '../review/known';
 
 /** What the outputs read of a disk's report. */
-export type DiskView = Pick<FileReport['disks'][number], 'machine' | 'name' | 'pointer' | 'sizing' | 'recommended'>;
+export type DiskView = Pick<FileReport['disks'][number], 'machine' | 'name' | 'named' | 'pointer' | 'sizing' | 'recommended'>;
+
+/** What the outputs and the review read of a machine's report. */
+export type MachineView = Omit<FileReport['machines'][number], 'disks' | 'budget'>;
 
 /** What the outputs read of a file's report: small enough to pass between threads cheaply. */
 export interface ReportView {
   parsed: boolean;
   disks: DiskView[];
+  machines: MachineView[];
   findings: Finding[];
 }
 
 export function viewOf(report: FileReport): ReportView {
   return {
     parsed: report.parsed,
-    disks: report.disks.map((d) => ({ machine: d.machine, name: d.name, pointer: d.pointer, sizing: d.sizing, recommended: d.recommended })),
+    disks: report.disks.map((d) => ({ machine: d.machine, name: d.name, named: d.named, pointer: d.pointer, sizing: d.sizing, recommended: d.recommended })),
+    machines: report.machines.map(({ disks: _disks, budget: _budget, ...machine }) => machine),
     findings: report.findings,
   };
 }
@@ -40,7 +46,12 @@ export interface LintRun {
   quiet: boolean;
   fix: boolean;
   version: string;
+  /** With --known: which findings the known-findings file already lists, and which of it are gone. */
+  known?: KnownComparison;
 }
+
+/** With --known, whether a finding is new or already known; undefined otherwise (and for accepted ones). */
+export const baselineOf = (run: Pick<LintRun, 'known'>, finding: Finding): BaselineState | undefined => run.known?.stateOf.get(finding);
 
 export interface LintSummary {
   files: number;
@@ -54,10 +65,13 @@ export interface LintSummary {
   fixed: number;
   /** Files that could not be read or written. */
   failed: number;
+  /** With --known: findings the known-findings file lists (not counted above), and its entries no longer found. */
+  known: number;
+  knownGone: number;
 }
 
 export function summarize(run: LintRun): LintSummary {
-  const summary: LintSummary = { files: 0, disks: 0, errors: 0, warnings: 0, infos: 0, accepted: 0, fixable: 0, fixed: 0, failed: 0 };
+  const summary: LintSummary = { files: 0, disks: 0, errors: 0, warnings: 0, infos: 0, accepted: 0, fixable: 0, fixed: 0, failed: 0, known: 0, knownGone: run.known?.gone.length ?? 0 };
   for (const file of run.files) {
     summary.fixed += file.fixed;
     if (file.error !== undefined) summary.failed++;
@@ -67,6 +81,10 @@ export function summarize(run: LintRun): LintSummary {
     for (const finding of file.report.findings) {
       if (finding.accepted) {
         summary.accepted++;
+        continue;
+      }
+      if (baselineOf(run, finding) === 'unchanged') {
+        summary.known++;
         continue;
       }
       if (finding.severity === 'error') summary.errors++;

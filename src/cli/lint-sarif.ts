@@ -2,10 +2,13 @@
 // mapping file's folder (a base id the log resolves itself), columns and character offsets are
 // UTF-16 code units, fixes carry the engine's own edits, and suppressed findings stay in the log
 // with their justification.
+import * as nodePath from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { RULES, type Finding, type SourceRange } from '../lint';
 import type { Severity } from '../core/results';
-import { mappingRelative, shownFindings, suppressedByMapping, type LintRun } from './lint-results';
+import { baselineOf, mappingRelative, shownFindings, suppressedByMapping, type LintRun } from './lint-results';
+import { FINGERPRINT_KEY, fingerprintOf, subjectOf } from '../review/identity';
+import type { KnownEntry } from '../review/known';
 
 /** The base id every artifact location is relative to: the mapping file's folder. */
 export const SARIF_BASE_ID = 'MAPPING_ROOT';
@@ -45,14 +48,18 @@ function location(artifact: ArtifactLocation, range: SourceRange, pointer: strin
 
 const RULE_INDEX = new Map(RULES.map((rule, index) => [rule.id, index]));
 
-function result(run: LintRun, path: string, finding: Finding) {
+function result(run: LintRun, path: string, finding: Finding, report: NonNullable<LintRun['files'][number]['report']>) {
   const artifact = artifactLocation(run, path);
+  // The identity that survives unrelated edits lets a code-scanning service follow a result across runs.
+  const subject = subjectOf({ path: mappingRelative(run.mapping, path), disks: report.disks, machines: report.machines, findings: report.findings }, finding);
   return {
     ruleId: finding.rule,
     ruleIndex: RULE_INDEX.get(finding.rule),
     level: LEVEL[finding.severity],
     message: { text: finding.message },
     locations: [location(artifact, finding.range, finding.pointer)],
+    partialFingerprints: { [FINGERPRINT_KEY]: fingerprintOf(subject) },
+    baselineState: baselineOf(run, finding),
     relatedLocations: finding.related?.map((r, i) => location(artifact, r.range, r.pointer, r.message, i + 1)),
     fixes:
       finding.fix && finding.fix.edits.length > 0
@@ -73,8 +80,26 @@ function result(run: LintRun, path: string, finding: Finding) {
   };
 }
 
+/** A known finding the run no longer has: SARIF's "absent" result, placed at its file. */
+function absentResult(run: LintRun, entry: KnownEntry) {
+  const subject = entry.host !== undefined ? `host ${entry.host}` : [entry.machine, entry.disk].filter((p) => p !== undefined).join(' / ');
+  return {
+    ruleId: entry.rule,
+    ruleIndex: RULE_INDEX.get(entry.rule),
+    kind: 'pass',
+    level: 'none',
+    message: { text: `no longer found: ${entry.rule}${subject ? ` on ${subject}` : ''}${entry.field ? ` at ${entry.field}` : ''}` },
+    locations: [{ physicalLocation: { artifactLocation: artifactLocation(run, nodePath.resolve(run.mapping.dir, entry.file)) } }],
+    partialFingerprints: { [FINGERPRINT_KEY]: entry.fingerprint },
+    baselineState: 'absent',
+  };
+}
+
 export function renderSarif(run: LintRun): string {
-  const results = run.files.flatMap((file) => (file.report ? shownFindings(run, file.report).map((f) => result(run, file.path, f)) : []));
+  const results = [
+    ...run.files.flatMap((file) => (file.report ? shownFindings(run, file.report).map((f) => result(run, file.path, f, file.report as NonNullable<typeof file.report>)) : [])),
+    ...(run.known?.gone ?? []).map((entry) => absentResult(run, entry)),
+  ];
   const notifications = run.files
     .filter((file) => file.error !== undefined)
     .map((file) => ({

@@ -4,7 +4,8 @@
 import { CAUTIONS } from '../core/cautions';
 import type { Finding } from '../lint';
 import { displayPath } from './lint-discovery';
-import { shownFindings, summarize, type LintRun, type LintSummary } from './lint-results';
+import { baselineOf, shownFindings, summarize, type LintRun, type LintSummary } from './lint-results';
+import type { KnownEntry } from '../review/known';
 
 const plural = (count: number, one: string, many = `${one}s`) => `${count} ${count === 1 ? one : many}`;
 
@@ -17,17 +18,25 @@ export function summaryLine(summary: LintSummary, run: Pick<LintRun, 'fix'>): st
   const counts = [plural(summary.errors, 'error'), plural(summary.warnings, 'warning'), `${summary.infos} info`];
   const extras: string[] = [];
   if (summary.accepted > 0) extras.push(`${summary.accepted} accepted by a suppression`);
+  if (summary.known > 0) extras.push(`${summary.known} already known, not counted`);
+  if (summary.knownGone > 0) extras.push(`${summary.knownGone} known no longer found`);
   if (run.fix && summary.fixed > 0) extras.push(`${plural(summary.fixed, 'fix', 'fixes')} applied`);
   if (summary.fixable > 0) extras.push(run.fix ? `${summary.fixable} fixable still open` : `${summary.fixable} fixable with --fix`);
   if (summary.failed > 0) extras.push(`${plural(summary.failed, 'file')} could not be read`);
   return `${checked}: ${counts.join(', ')}${extras.length > 0 ? ` (${extras.join('; ')})` : ''}.`;
 }
 
+function goneLine(entry: KnownEntry): string {
+  const subject = entry.host !== undefined ? `host ${entry.host}` : [entry.machine, entry.disk].filter((p) => p !== undefined).join(' / ');
+  return `  ${entry.file}  ${entry.rule}${subject ? `  ${subject}` : ''}${entry.field ? `  ${entry.field}` : ''}`;
+}
+
 export function renderText(run: LintRun): string {
   const out: string[] = [];
   for (const file of run.files) {
     if (!file.report) continue;
-    const findings = shownFindings(run, file.report).filter((f) => !f.accepted);
+    // Known findings are the repository's old debt: only new ones are listed.
+    const findings = shownFindings(run, file.report).filter((f) => !f.accepted && baselineOf(run, f) !== 'unchanged');
     if (findings.length === 0) continue;
     const path = displayPath(file.path, run.cwd);
     const place = (f: Finding) => `${path}:${f.range.line}:${f.range.column}`;
@@ -41,6 +50,7 @@ export function renderText(run: LintRun): string {
     }
   }
   if (out.length > 0) out.push('');
+  if (run.known && run.known.gone.length > 0) out.push('Known findings no longer found (they can go from the known-findings file):', ...run.known.gone.map(goneLine), '');
   const summary = summarize(run);
   out.push(summaryLine(summary, run));
   // Changed settings reach running machines only through the user's own rollout: say so.

@@ -12,6 +12,8 @@ import { startProgress } from './lint-progress';
 import { summarize, type LintedFile, type LintRun } from './lint-results';
 import { renderSarif } from './lint-sarif';
 import { renderText } from './lint-text';
+import { compareRunWithKnown, writeKnown } from './lint-known';
+import * as nodePath from 'node:path';
 
 const OPTIONS: Record<string, OptionSpec> = {
   config: { value: true },
@@ -21,13 +23,16 @@ const OPTIONS: Record<string, OptionSpec> = {
   quiet: { value: false },
   'no-images': { value: false },
   'file-size-limit': { value: true },
+  known: { value: true },
+  'record-known': { value: true },
   help: { value: false },
 };
 
 const FORMATS: readonly LintFormat[] = ['text', 'json', 'sarif'];
 
 export const LINT_USAGE = `usage: cachewright lint [PATH...] [--config FILE] [--format text|json|sarif]
-                     [--fix] [--max-warnings N] [--quiet] [--no-images] [--file-size-limit SIZE]
+                     [--fix] [--max-warnings N] [--quiet] [--no-images]
+                     [--known FILE] [--record-known FILE] [--file-size-limit SIZE]
 
   PATH            files or folders to check (default: every file the mapping file includes);
                   a named file is always checked, a folder only for the files the mapping includes
@@ -41,6 +46,9 @@ export const LINT_USAGE = `usage: cachewright lint [PATH...] [--config FILE] [--
   --file-size-limit SIZE
                   definition files larger than this are not linted but reported as one error each
                   (default 32M; K, M, G as in the mapping file)
+  --known         a known-findings file: only findings not listed in it count toward the exit
+                  status; listed ones that are gone are reported so the file can be trimmed
+  --record-known  write every current finding to this known-findings file (sorted, stable)
 
 exit status: 0 no errors and warnings within --max-warnings; 1 errors, or too many warnings;
              2 usage, mapping file or file read/write problems
@@ -80,6 +88,8 @@ function readRequest(argv: readonly string[], io: CommandIO): LintRequest | numb
     maxWarnings,
     quiet: args.flags.has('quiet'),
     images: !args.flags.has('no-images'),
+    known: lastOption(args, 'known'),
+    recordKnown: lastOption(args, 'record-known'),
   };
 }
 
@@ -89,6 +99,26 @@ function readFileSizeLimit(raw: string | undefined): number | string {
   const size = parseSize(raw);
   if (!size.ok || size.value < 1n || size.value > BigInt(MAX_FILE_SIZE_LIMIT)) return `--file-size-limit needs a size from 1 byte to ${formatSize(BigInt(MAX_FILE_SIZE_LIMIT))} (${SIZE_UNITS_HELP}), not "${raw}"`;
   return Number(size.value);
+}
+
+/** --known and --record-known: an exit status when either file cannot be read or written. */
+function applyKnown(run: LintRun, request: LintRequest, io: CommandIO): number | undefined {
+  if (request.known !== undefined) {
+    const comparison = compareRunWithKnown(run, nodePath.resolve(io.cwd, request.known), io.cwd);
+    if (!comparison.ok) {
+      io.stderr(`${comparison.error}\n`);
+      return EXIT_USAGE;
+    }
+    run.known = comparison.value;
+  }
+  if (request.recordKnown !== undefined) {
+    const written = writeKnown(run, nodePath.resolve(io.cwd, request.recordKnown), io.cwd);
+    if (!written.ok) {
+      io.stderr(`${written.error}\n`);
+      return EXIT_USAGE;
+    }
+  }
+  return undefined;
 }
 
 export async function runLint(argv: readonly string[], io: CommandIO, version: string): Promise<number> {
@@ -110,6 +140,8 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   files.sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
 
   const run: LintRun = { mapping: mapping.value, cwd: io.cwd, files, quiet: request.quiet, fix: request.fix, version };
+  const known = applyKnown(run, request, io);
+  if (known !== undefined) return known;
   const render = request.format === 'json' ? renderJson : request.format === 'sarif' ? renderSarif : renderText;
   io.stdout(render(run));
 

@@ -3,6 +3,7 @@
 import { runLint } from './lint';
 import { runInspect } from './inspect';
 import { runSize } from './size';
+import { runCurve } from './curve';
 import { EXIT_USAGE, processIO, type CommandIO } from './io';
 
 declare const CACHEWRIGHT_VERSION: string | undefined;
@@ -14,6 +15,7 @@ commands:
   lint [PATH...]     check the qcow2 cache settings of VM definition files
   size --size SIZE   the cache sizing numbers of one disk
   inspect IMAGE...   read qcow2 images and their backing chains (read-only)
+  curve TRACE...     measured L2 cache hit ratio at every cache size, from I/O traces
 
 Run "cachewright <command> --help" for a command's options.
 `;
@@ -27,6 +29,8 @@ export async function runCommand(argv: readonly string[], io: CommandIO): Promis
       return runSize(rest, io);
     case 'inspect':
       return runInspect(rest, io);
+    case 'curve':
+      return runCurve(rest, io);
     case '--version':
     case '-v':
       io.stdout(`${VERSION}\n`);

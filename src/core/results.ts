@@ -41,6 +41,10 @@ export interface Finding {
   fix?: Fix;
   related?: RelatedLocation[];
   accepted?: { reason: string };
+  /** A finding about a whole hypervisor host (it spans files): the host's name. */
+  host?: string;
+  /** The scalar value the finding points at, as data (absent when it points at a disk or machine). */
+  written?: string;
 }
 
 /** The sizing numbers of one disk (CONTRACTS.md §3). Byte counts are exact integers. */

@@ -143,3 +143,29 @@ export function formatInterval(seconds: number): string {
   if (seconds % 60 === 0) return `${seconds / 60}m`;
   return `${seconds}s`;
 }
+
+export const SHARE_HELP = 'a number from 0 to 1, or a percentage such as "99%"';
+
+/** Reads a share: `0.99`, `"0.99"` or `"99%"` (CONTRACTS.md §1), from 0 to 1 inclusive. */
+export function parseShare(input: unknown): Outcome<number> {
+  let value: number;
+  if (typeof input === 'number') value = input;
+  else if (typeof input === 'string') {
+    const match = /^(\d+(?:\.\d+)?|\.\d+)\s*(%?)$/.exec(input.trim());
+    if (!match) return fail(`"${input}" is not a share; expected ${SHARE_HELP}`);
+    value = Number(match[1]) / (match[2] === '%' ? 100 : 1);
+  } else return fail(`expected a share (${SHARE_HELP}), got ${describe(input)}`);
+  if (!Number.isFinite(value) || value < 0 || value > 1) return fail(`${typeof input === 'string' ? `"${input}"` : input} is out of range; expected ${SHARE_HELP}`);
+  return ok(value);
+}
+
+/**
+ * A ratio as a percentage for people, rounded down so that a cache missing now and then never reads
+ * "100%": 0.99996 -> "99.9%" (one decimal), exactly 1 -> "100%".
+ */
+export function formatPercent(ratio: number, decimals = 1): string {
+  if (ratio >= 1) return '100%';
+  const scale = 10 ** decimals;
+  const floored = Math.floor(ratio * 100 * scale + 1e-9) / scale;
+  return `${floored.toFixed(decimals)}%`;
+}

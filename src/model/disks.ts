@@ -59,6 +59,8 @@ export interface DiskSpec {
   isQcow2: boolean;
   /** The name used when the definition gives none ("disk 2"). */
   fallbackName: string;
+  /** Whether the name comes from the definition (else it is the fallback, which depends on the disk's index). */
+  named: boolean;
 }
 
 export interface MachineSpec {
@@ -69,6 +71,8 @@ export interface MachineSpec {
   node?: Node;
   memory?: Located<bigint>;
   disks: DiskSpec[];
+  /** Whether the name comes from the definition or the file (else it depends on the machine's index). */
+  named: boolean;
 }
 
 export interface Extraction {
@@ -124,8 +128,10 @@ class Extractor {
     const fields = this.mapping.machineFields;
     const nameAt = this.raw(fields.name, path, value);
     const memory = this.typed('memory', this.raw(fields.memory, path, value), parseSize);
+    const hasName = nameAt !== undefined && (typeof nameAt.raw === 'string' || typeof nameAt.raw === 'number');
     const machine: MachineSpec = {
-      name: nameAt && (typeof nameAt.raw === 'string' || typeof nameAt.raw === 'number') ? String(nameAt.raw) : this.mapping.machines ? `machine ${index + 1}` : this.document.path.split(/[\\/]/).pop() ?? 'machine',
+      name: hasName ? String(nameAt.raw) : this.mapping.machines ? `machine ${index + 1}` : this.document.path.split(/[\\/]/).pop() ?? 'machine',
+      named: hasName || !this.mapping.machines,
       path,
       pointer: toJsonPointer(path),
       range: place?.range ?? this.document.lines.range(0, 0),
@@ -188,8 +194,10 @@ class Extractor {
     }
     if (values.size && values.size.value === 0n) this.problem('size', values.size, 'a virtual size of 0 bytes has nothing to cache'), (values.size = undefined);
     const format = values.format?.value ?? this.mapping.assume.format;
+    const hasName = nameAt !== undefined && (typeof nameAt.raw === 'string' || typeof nameAt.raw === 'number');
     const disk: DiskSpec = {
-      name: nameAt && (typeof nameAt.raw === 'string' || typeof nameAt.raw === 'number') ? String(nameAt.raw) : fallbackName,
+      name: hasName ? String(nameAt.raw) : fallbackName,
+      named: hasName,
       machine,
       path,
       pointer: toJsonPointer(path),

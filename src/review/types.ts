@@ -1,0 +1,31 @@
+// What the review reads of a lint run: per definition file, its disks, machines and findings. The
+// CLI's report views fit these shapes as they are; nothing here reads files or runs git.
+import type { Finding, SizingReport, SourceRange } from '../core/results';
+
+export interface ReviewedDisk {
+  machine: string;
+  name: string;
+  /** Whether the name comes from the definition (else it depends on the disk's index). */
+  named: boolean;
+  pointer: string;
+  sizing: SizingReport;
+}
+
+export interface ReviewedMachine {
+  name: string;
+  named: boolean;
+  pointer: string;
+  range: SourceRange;
+  memory?: bigint;
+  /** The hypervisor host the machine runs on, when the mapping says where that is written. */
+  host?: string;
+  cacheMemoryTotal: bigint;
+}
+
+export interface ReviewedFile {
+  /** Relative to the mapping file's folder, with forward slashes: the same on every checkout. */
+  path: string;
+  disks: readonly ReviewedDisk[];
+  machines: readonly ReviewedMachine[];
+  findings: readonly Finding[];
+}

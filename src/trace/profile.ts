@@ -1,0 +1,76 @@
+// The hit ratio of every cache size from a stack-distance histogram [MATTSON]: a cache of C entries
+// hits the lookups with distance < C; first touches always miss. With sampling at rate R [SHARDS] a
+// sampled distance d (0-based) stands for a full stack position (d + 1) / R, so it hits when
+// d + 1 <= C * R; counts stand for 1/R as many.
+
+import type { StackDistances } from './stack-distance';
+
+/** Guards the floor of C * R against a product such as 3 * 0.1 = 0.30000000000000004 rounding down. */
+const EPSILON = 1e-9;
+
+export interface ProfileCounts {
+  /** Every lookup of the trace (exact, sampled or not). */
+  lookups: number;
+  /** Lookups of entries never looked up before (estimated when sampled). */
+  firstTouches: number;
+  /** Distinct cache entries looked up (estimated when sampled). */
+  entriesTouched: number;
+  /** 1 when every lookup was counted; else the share of entries sampled. */
+  sampleRate: number;
+}
+
+export class HitProfile implements ProfileCounts {
+  readonly lookups: number;
+  readonly firstTouches: number;
+  readonly entriesTouched: number;
+  readonly sampleRate: number;
+  /** cumulative[d]: sampled lookups with distance <= d. */
+  private readonly cumulative: Float64Array;
+  private readonly sampledLookups: number;
+
+  constructor(distances: StackDistances, allLookups: number, sampleRate: number) {
+    const histogram = distances.distanceHistogram();
+    this.cumulative = new Float64Array(histogram.length);
+    let sum = 0;
+    for (let d = 0; d < histogram.length; d++) {
+      sum += histogram[d] as number;
+      this.cumulative[d] = sum;
+    }
+    this.sampledLookups = distances.lookups;
+    this.lookups = allLookups;
+    this.sampleRate = sampleRate;
+    this.firstTouches = sampleRate === 1 ? distances.firstTouches : Math.round(distances.firstTouches / sampleRate);
+    this.entriesTouched = sampleRate === 1 ? distances.entries : Math.round(distances.entries / sampleRate);
+  }
+
+  /** Lookups that hit in a cache of `entries` entries, as a share of all lookups. */
+  hitRatio(entries: number): number {
+    if (this.sampledLookups === 0) return 0;
+    const reach = Math.floor(entries * this.sampleRate + EPSILON);
+    if (reach < 1) return 0;
+    const index = Math.min(reach, this.cumulative.length) - 1;
+    return (this.cumulative[index] as number) / this.sampledLookups;
+  }
+
+  /** The best any cache reaches on this trace: every lookup but the first touches. */
+  get ceiling(): number {
+    return this.hitRatio(Number.MAX_SAFE_INTEGER);
+  }
+
+  /** The smallest cache, in entries, whose hit ratio reaches `target`; undefined when none does. */
+  smallestEntriesFor(target: number): number | undefined {
+    if (target <= 0) return 1;
+    const needed = target * this.sampledLookups * (1 - 1e-12);
+    // cumulative is non-decreasing: binary search the first distance whose count reaches the need.
+    let low = 0;
+    let high = this.cumulative.length;
+    while (low < high) {
+      const mid = (low + high) >>> 1;
+      if ((this.cumulative[mid] as number) >= needed) high = mid;
+      else low = mid + 1;
+    }
+    if (low === this.cumulative.length || this.sampledLookups === 0) return undefined;
+    // Distance `low` hits once C * R >= low + 1.
+    return Math.max(1, Math.ceil((low + 1) / this.sampleRate - EPSILON));
+  }
+}
