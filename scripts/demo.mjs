@@ -9,8 +9,8 @@ const run = (title, args) => {
   return result.status ?? 2;
 };
 
-const lint = run('lint the demo fleet (examples/)', ['lint', '--config', 'examples/cachewright.yaml']);
+const lint = run('lint the demo fleet (examples/)', ['lint', '--mapping', 'examples/cachewright.yaml']);
 const inspect = run('read a qcow2 overlay and its backing file', ['inspect', 'examples/images/tern-db-root.qcow2']);
-const size = run('the numbers for one disk', ['size', '--size', '1T', '--cache', '8M', '--access', 'zipf:0.8']);
-process.stdout.write(`\nThe lint exited ${lint} (0: clean, 1: findings, 2: broken input). Try "node dist/cli.js lint --config examples/cachewright.yaml --format sarif",\nor open examples/ in VS Code with the extension (npm run package builds the .vsix).\n`);
+const size = run('the numbers for one disk', ['size', '--size', '1T', '--cache', '8M', '--access', 'zipf(0.8)']);
+process.stdout.write(`\nThe lint exited ${lint} (0: clean, 1: findings, 2: broken input). Try "node dist/cli.js lint --mapping examples/cachewright.yaml --format sarif",\nor open examples/ in VS Code with the extension (npm run package builds the .vsix).\n`);
 process.exit(lint === 2 || inspect !== 0 || size !== 0 ? 1 : 0);

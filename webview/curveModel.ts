@@ -260,7 +260,7 @@ export function chartModel(input: ChartInput): ChartOutcome {
 
 function describeAccess(pattern: string, access: AccessPattern): string {
   const spec = formatAccessSpec(access);
-  const word = pattern.trim().toLowerCase();
-  const model = access.kind === 'uniform' ? 'uniform access' : access.kind === 'sequential' ? 'sequential access' : `${spec} access`;
-  return word === spec ? model : `"${pattern.trim()}" read as ${model}`;
+  const written = pattern.trim();
+  const model = `${spec} access`;
+  return written.toLowerCase() === spec || written === spec ? model : `"${written}" read as ${model}`;
 }

@@ -55,7 +55,7 @@ function isFile(path: string): boolean {
 export const stripBom = (text: string): string => (text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
 
 /**
- * Reads and checks the mapping file: `--config` when given, else the nearest one above the working
+ * Reads and checks the mapping file: `--mapping` when given, else the nearest one above the working
  * directory, else the nearest one above the first named path (so `cachewright lint other/repo/x.yaml`
  * finds that repository's mapping). Problems come back as `path:line:col: message` lines.
  */
@@ -71,7 +71,7 @@ export function resolveMapping(cwd: string, config: string | undefined, paths: r
       mappingPath = findMappingFile(isFile(resolved) ? nodePath.dirname(resolved) : resolved);
     }
     if (!mappingPath) {
-      return fail(`no mapping file (${MAPPING_FILE_NAMES.join(', ')}) in ${displayPath(cwd, cwd) === '.' ? 'this folder' : cwd} or any folder above it; create one or name it with --config FILE`);
+      return fail(`no mapping file (${MAPPING_FILE_NAMES.join(', ')}) in ${displayPath(cwd, cwd) === '.' ? 'this folder' : cwd} or any folder above it; create one or name it with --mapping FILE`);
     }
   }
   const shown = displayPath(mappingPath, cwd);

@@ -11,11 +11,11 @@ export type LintFormat = 'text' | 'json' | 'sarif';
 
 export interface LintRequest {
   paths: string[];
-  config?: string;
+  mappingPath?: string;
   format: LintFormat;
   fix: boolean;
-  maxWarnings?: number;
-  quiet: boolean;
+  allowWarnings?: number;
+  errorsOnly: boolean;
   images: boolean;
   /** Definition files above this many bytes are reported, not read (--file-size-limit). */
   fileSizeLimit: number;

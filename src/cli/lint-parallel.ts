@@ -119,7 +119,7 @@ async function serveShare(job: ShareJob): Promise<void> {
   const port = parentPort;
   if (!port) return;
   try {
-    const mapping = resolveMapping(job.cwd, job.request.config, job.request.paths);
+    const mapping = resolveMapping(job.cwd, job.request.mappingPath, job.request.paths);
     if (!mapping.ok) {
       port.postMessage({ type: 'failed', message: mapping.error } satisfies ShareMessage);
       return;

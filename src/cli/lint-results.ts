@@ -42,8 +42,8 @@ export interface LintRun {
   mapping: Mapping;
   cwd: string;
   files: LintedFile[];
-  /** --quiet: only errors are shown (counts and the exit code still see everything). */
-  quiet: boolean;
+  /** --errors-only: only errors are shown (counts and the exit code still see everything). */
+  errorsOnly: boolean;
   fix: boolean;
   version: string;
   /** With --known: which findings the known-findings file already lists, and which of it are gone. */
@@ -96,9 +96,9 @@ export function summarize(run: LintRun): LintSummary {
   return summary;
 }
 
-/** The findings an output shows: everything, or under --quiet the unsuppressed errors only. */
+/** The findings an output shows: everything, or under --errors-only the errors not accepted. */
 export function shownFindings(run: LintRun, report: ReportView): Finding[] {
-  return run.quiet ? report.findings.filter((f) => f.severity === 'error' && !f.accepted) : report.findings;
+  return run.errorsOnly ? report.findings.filter((f) => f.severity === 'error' && !f.accepted) : report.findings;
 }
 
 /** A definition file's path relative to the mapping file's folder, with forward slashes. */

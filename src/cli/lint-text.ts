@@ -1,6 +1,6 @@
 // `cachewright lint` for people: findings grouped by file, one line each that terminals and editors
 // turn into a link (`path:line:col`), a hint under each fixable one, and one closing summary.
-// Suppressed findings are not shown; the summary counts them.
+// Accepted findings are not shown; the summary counts them.
 import { CAUTIONS } from '../core/cautions';
 import type { Finding } from '../lint';
 import { displayPath } from './lint-discovery';
@@ -13,17 +13,22 @@ function padEnd(text: string, width: number): string {
   return text.length >= width ? text : text + ' '.repeat(width - text.length);
 }
 
+/**
+ * One closing line: what was checked, what is wrong, what --fix would change (or did), what was
+ * accepted. e.g. `2 files, 6 qcow2 disks: 3 errors, 8 warnings; --fix can settle 4; 2 accepted with a reason.`
+ */
 export function summaryLine(summary: LintSummary, run: Pick<LintRun, 'fix'>): string {
-  const checked = `Checked ${plural(summary.files, 'file')} with ${plural(summary.disks, 'qcow2 disk')}`;
-  const counts = [plural(summary.errors, 'error'), plural(summary.warnings, 'warning'), `${summary.infos} info`];
-  const extras: string[] = [];
-  if (summary.accepted > 0) extras.push(`${summary.accepted} accepted by a suppression`);
-  if (summary.known > 0) extras.push(`${summary.known} already known, not counted`);
-  if (summary.knownGone > 0) extras.push(`${summary.knownGone} known no longer found`);
-  if (run.fix && summary.fixed > 0) extras.push(`${plural(summary.fixed, 'fix', 'fixes')} applied`);
-  if (summary.fixable > 0) extras.push(run.fix ? `${summary.fixable} fixable still open` : `${summary.fixable} fixable with --fix`);
-  if (summary.failed > 0) extras.push(`${plural(summary.failed, 'file')} could not be read`);
-  return `${checked}: ${counts.join(', ')}${extras.length > 0 ? ` (${extras.join('; ')})` : ''}.`;
+  const checked = `${plural(summary.files, 'file')}, ${plural(summary.disks, 'qcow2 disk')}`;
+  const wrong = [plural(summary.errors, 'error'), plural(summary.warnings, 'warning')];
+  if (summary.infos > 0) wrong.push(`${summary.infos} info`);
+  const parts = [`${checked}: ${wrong.join(', ')}`];
+  if (run.fix && summary.fixed > 0) parts.push(`--fix settled ${summary.fixed}`);
+  if (summary.fixable > 0) parts.push(run.fix ? `${summary.fixable} fixable still open` : `--fix can settle ${summary.fixable}`);
+  if (summary.accepted > 0) parts.push(`${summary.accepted} accepted with a reason`);
+  if (summary.known > 0) parts.push(`${summary.known} already known, not counted`);
+  if (summary.knownGone > 0) parts.push(`${summary.knownGone} known no longer found`);
+  if (summary.failed > 0) parts.push(`${plural(summary.failed, 'file')} could not be read`);
+  return `${parts.join('; ')}.`;
 }
 
 function goneLine(entry: KnownEntry): string {

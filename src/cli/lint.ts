@@ -16,11 +16,11 @@ import { compareRunWithKnown, writeKnown } from './lint-known';
 import * as nodePath from 'node:path';
 
 const OPTIONS: Record<string, OptionSpec> = {
-  config: { value: true },
+  mapping: { value: true },
   format: { value: true },
   fix: { value: false },
-  'max-warnings': { value: true },
-  quiet: { value: false },
+  'allow-warnings': { value: true },
+  'errors-only': { value: false },
   'no-images': { value: false },
   'file-size-limit': { value: true },
   known: { value: true },
@@ -30,31 +30,32 @@ const OPTIONS: Record<string, OptionSpec> = {
 
 const FORMATS: readonly LintFormat[] = ['text', 'json', 'sarif'];
 
-export const LINT_USAGE = `usage: cachewright lint [PATH...] [--config FILE] [--format text|json|sarif]
-                     [--fix] [--max-warnings N] [--quiet] [--no-images]
+export const LINT_USAGE = `usage: cachewright lint [PATH...] [--mapping FILE] [--format text|json|sarif]
+                     [--fix] [--allow-warnings N] [--errors-only] [--no-images]
                      [--known FILE] [--record-known FILE] [--file-size-limit SIZE]
 
-  PATH            files or folders to check (default: every file the mapping file includes);
-                  a named file is always checked, a folder only for the files the mapping includes
-  --config        the mapping file (default: cachewright.yaml, cachewright.yml or cachewright.json in
-                  this folder or the nearest folder above it)
-  --format        text (default), json or sarif (SARIF 2.1.0)
-  --fix           apply every fix in place, changing nothing else in the files
-  --max-warnings  fail (exit 1) when more than N warnings remain
-  --quiet         show errors only (warnings still count toward --max-warnings)
-  --no-images     do not read the image files definitions name (where the images live elsewhere)
-  --file-size-limit SIZE
-                  definition files larger than this are not linted but reported as one error each
-                  (default 32M; K, M, G as in the mapping file)
-  --known         a known-findings file: only findings not listed in it count toward the exit
-                  status; listed ones that are gone are reported so the file can be trimmed
-  --record-known  write every current finding to this known-findings file (sorted, stable)
+  PATH              definition files or folders (default: every file the mapping file includes);
+                    a file named here is always checked, a folder only for the files the mapping includes
+  --mapping         the mapping file that says where disks sit (default: cachewright.yaml,
+                    cachewright.yml or cachewright.json here or in the nearest folder above)
+  --format          text (default), json or sarif (SARIF 2.1.0)
+  --fix             write every computed fix into the files; nothing else in them changes
+  --allow-warnings  how many warnings may remain before the run counts as failed (default: any number)
+  --errors-only     print errors only; warnings are still counted against --allow-warnings
+  --no-images       leave the image files the definitions name unread (when they live elsewhere)
+  --file-size-limit definition files larger than this SIZE are not linted but reported as one
+                    error each (default 32M; sizes as in the mapping file, at most 256M)
+  --known           a known-findings file: only findings not listed in it count toward the exit
+                    status; listed ones that are gone are reported so the file can be trimmed
+  --record-known    write every current finding to this known-findings file (sorted, stable)
 
-exit status: 0 no errors and warnings within --max-warnings; 1 errors, or too many warnings;
-             2 usage, mapping file or file read/write problems
+exit status:
+  0  nothing wrong beyond accepted findings, infos and the warnings --allow-warnings lets through
+  1  at least one error, or more warnings than --allow-warnings lets through
+  2  the command could not do its job: a bad option, a broken mapping file, a file it could not
+     read or write
 environment: CACHEWRIGHT_JOBS=N lints on N threads (default: one per core for large runs)
 `;
-
 
 function usageError(io: CommandIO, message: string): number {
   io.stderr(`cachewright lint: ${message}\n\n${LINT_USAGE}`);
@@ -71,22 +72,22 @@ function readRequest(argv: readonly string[], io: CommandIO): LintRequest | numb
   }
   const format = lastOption(args, 'format') ?? 'text';
   if (!(FORMATS as readonly string[]).includes(format)) return usageError(io, `--format must be text, json or sarif, not "${format}"`);
-  const maxRaw = lastOption(args, 'max-warnings');
-  let maxWarnings: number | undefined;
-  if (maxRaw !== undefined) {
-    if (!/^\d+$/.test(maxRaw) || !Number.isSafeInteger(Number(maxRaw))) return usageError(io, `--max-warnings needs a whole number of warnings (0 or more), not "${maxRaw}"`);
-    maxWarnings = Number(maxRaw);
+  const allowedRaw = lastOption(args, 'allow-warnings');
+  let allowWarnings: number | undefined;
+  if (allowedRaw !== undefined) {
+    if (!/^\d+$/.test(allowedRaw) || !Number.isSafeInteger(Number(allowedRaw))) return usageError(io, `--allow-warnings needs a whole number of warnings (0 or more), not "${allowedRaw}"`);
+    allowWarnings = Number(allowedRaw);
   }
   const fileSizeLimit = readFileSizeLimit(lastOption(args, 'file-size-limit'));
   if (typeof fileSizeLimit === 'string') return usageError(io, fileSizeLimit);
   return {
     fileSizeLimit,
     paths: args.positionals,
-    config: lastOption(args, 'config'),
+    mappingPath: lastOption(args, 'mapping'),
     format: format as LintFormat,
     fix: args.flags.has('fix'),
-    maxWarnings,
-    quiet: args.flags.has('quiet'),
+    allowWarnings,
+    errorsOnly: args.flags.has('errors-only'),
     images: !args.flags.has('no-images'),
     known: lastOption(args, 'known'),
     recordKnown: lastOption(args, 'record-known'),
@@ -125,7 +126,7 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   const request = readRequest(argv, io);
   if (typeof request === 'number') return request;
 
-  const mapping = resolveMapping(io.cwd, request.config, request.paths);
+  const mapping = resolveMapping(io.cwd, request.mappingPath, request.paths);
   if (!mapping.ok) {
     io.stderr(`${mapping.error}\n`);
     return EXIT_USAGE;
@@ -139,7 +140,7 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   progress.done();
   files.sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
 
-  const run: LintRun = { mapping: mapping.value, cwd: io.cwd, files, quiet: request.quiet, fix: request.fix, version };
+  const run: LintRun = { mapping: mapping.value, cwd: io.cwd, files, errorsOnly: request.errorsOnly, fix: request.fix, version };
   const known = applyKnown(run, request, io);
   if (known !== undefined) return known;
   const render = request.format === 'json' ? renderJson : request.format === 'sarif' ? renderSarif : renderText;
@@ -149,8 +150,8 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   for (const file of files) if (file.error !== undefined) problems.push(`${displayPath(file.path, io.cwd)}: ${file.error}`);
   for (const folder of selection.empty) notes.push(`${folder}: the mapping file includes no definition files in this folder`);
   const summary = summarize(run);
-  const tooManyWarnings = request.maxWarnings !== undefined && summary.warnings > request.maxWarnings;
-  if (tooManyWarnings) notes.push(`${summary.warnings} warnings, more than --max-warnings ${request.maxWarnings} allows`);
+  const tooManyWarnings = request.allowWarnings !== undefined && summary.warnings > request.allowWarnings;
+  if (tooManyWarnings) notes.push(`${summary.warnings} warnings where --allow-warnings lets ${request.allowWarnings} through`);
   if (selection.files.length === 0 && request.paths.length === 0) notes.push(`the mapping file's include globs match no files below ${displayPath(mapping.value.dir, io.cwd)}`);
   for (const line of [...problems, ...notes]) io.stderr(`${line}\n`);
 

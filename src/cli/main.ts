@@ -1,50 +1,74 @@
-// The cachewright command: dispatches to lint, size and inspect. Whatever happens inside, a user sees a
+// The cachewright command: dispatches to its commands (one table below). Whatever happens inside, a user sees a
 // message and an exit code, never a stack trace.
-import { runLint } from './lint';
-import { runInspect } from './inspect';
-import { runSize } from './size';
-import { runCurve } from './curve';
+import { LINT_USAGE, runLint } from './lint';
+import { INSPECT_USAGE, runInspect } from './inspect';
+import { runSize, SIZE_USAGE } from './size';
+import { CURVE_USAGE, runCurve } from './curve';
 import { EXIT_USAGE, processIO, type CommandIO } from './io';
 
 declare const CACHEWRIGHT_VERSION: string | undefined;
 const VERSION = typeof CACHEWRIGHT_VERSION === 'string' ? CACHEWRIGHT_VERSION : '0.2.0';
 
+/** Every command: how to run it, its one-line summary for the main help, and its own help text. */
+interface Command {
+  synopsis: string;
+  summary: string;
+  usage: string;
+  run: (argv: readonly string[], io: CommandIO) => number | Promise<number>;
+}
+
+const COMMANDS: Record<string, Command> = {
+  lint: { synopsis: 'lint [PATH...]', summary: 'check the qcow2 cache settings of VM definition files', usage: LINT_USAGE, run: (argv, io) => runLint(argv, io, VERSION) },
+  size: { synopsis: 'size --size SIZE', summary: 'the cache sizing numbers of one disk', usage: SIZE_USAGE, run: runSize },
+  inspect: { synopsis: 'inspect IMAGE...', summary: 'read qcow2 images and their backing chains (read-only)', usage: INSPECT_USAGE, run: (argv, io) => runInspect([...argv], io) },
+  curve: { synopsis: 'curve TRACE...', summary: 'measured L2 cache hit ratio at every cache size, from I/O traces', usage: CURVE_USAGE, run: runCurve },
+};
+
+const synopsisWidth = Math.max(...Object.values(COMMANDS).map((c) => c.synopsis.length)) + 2;
+
 export const MAIN_USAGE = `usage: cachewright <command> [options]
 
 commands:
-  lint [PATH...]     check the qcow2 cache settings of VM definition files
-  size --size SIZE   the cache sizing numbers of one disk
-  inspect IMAGE...   read qcow2 images and their backing chains (read-only)
-  curve TRACE...     measured L2 cache hit ratio at every cache size, from I/O traces
+${Object.values(COMMANDS).map((c) => `  ${c.synopsis.padEnd(synopsisWidth)} ${c.summary}`).join('\n')}
 
-Run "cachewright <command> --help" for a command's options.
+-h, --help before or after a command shows its options; --version prints the version.
 `;
 
+const HELP = new Set(['-h', '--help']);
+
+/** The arguments before a lone `--`: only those can ask for help or the version. */
+function optionPart(argv: readonly string[]): readonly string[] {
+  const end = argv.indexOf('--');
+  return end === -1 ? argv : argv.slice(0, end);
+}
+
 export async function runCommand(argv: readonly string[], io: CommandIO): Promise<number> {
-  const [command, ...rest] = argv;
-  switch (command) {
-    case 'lint':
-      return runLint(rest, io, VERSION);
-    case 'size':
-      return runSize(rest, io);
-    case 'inspect':
-      return runInspect(rest, io);
-    case 'curve':
-      return runCurve(rest, io);
-    case '--version':
-    case '-v':
-      io.stdout(`${VERSION}\n`);
-      return 0;
-    case undefined:
-    case '--help':
-    case '-h':
-    case 'help':
-      io.stdout(MAIN_USAGE);
-      return command === undefined ? EXIT_USAGE : 0;
-    default:
-      io.stderr(`cachewright: unknown command "${command}"\n\n${MAIN_USAGE}`);
-      return EXIT_USAGE;
+  const options = optionPart(argv);
+  const name = options.find((arg) => !arg.startsWith('-'));
+  const command = name === undefined ? undefined : COMMANDS[name];
+  if (options.includes('--version')) {
+    io.stdout(`${VERSION}\n`);
+    return 0;
   }
+  if (options.some((arg) => HELP.has(arg)) || name === 'help') {
+    io.stdout(command ? command.usage : MAIN_USAGE);
+    return 0;
+  }
+  if (name === undefined) {
+    const stray = options[0];
+    if (stray !== undefined) io.stderr(`cachewright: unknown option ${stray}\n\n`);
+    (stray === undefined ? io.stdout : io.stderr)(MAIN_USAGE);
+    return EXIT_USAGE;
+  }
+  if (!command) {
+    io.stderr(`cachewright: unknown command "${name}"\n\n${MAIN_USAGE}`);
+    return EXIT_USAGE;
+  }
+  if (argv[0] !== name) {
+    io.stderr(`cachewright: options go after the command: cachewright ${name} ${argv.filter((a) => a !== name).join(' ')}\n`);
+    return EXIT_USAGE;
+  }
+  return command.run(argv.slice(1), io);
 }
 
 if (require.main === module) {

@@ -9,7 +9,7 @@ import {
   entriesPerL2Table, guestBytesPerL2Table, refcountCoveredBytes, writeAmplification,
 } from '../core/sizing';
 import { formatInterval, formatSize, parseSize } from '../core/units';
-import { modelCache, parseAccessSpec, type AccessPattern, type CacheModelReport } from '../core/cachemodel';
+import { formatAccessSpec, modelCache, parseAccessSpec, type AccessPattern, type CacheModelReport } from '../core/cachemodel';
 import { formatOption, lastOption, parseArgs, type OptionSpec, type ParsedArgs } from './args';
 import { renderColumns } from './table';
 import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
@@ -18,7 +18,7 @@ const OPTIONS: Record<string, OptionSpec> = {
   size: { value: true },
   'cluster-size': { value: true },
   'extended-l2': { value: false },
-  slice: { value: true },
+  'cache-entry-size': { value: true },
   'refcount-bits': { value: true },
   cache: { value: true },
   'request-size': { value: true },
@@ -30,29 +30,30 @@ const OPTIONS: Record<string, OptionSpec> = {
   help: { value: false },
 };
 
-export const SIZE_USAGE = `usage: cachewright size --size SIZE [--cluster-size 64K] [--extended-l2] [--slice SIZE]
+export const SIZE_USAGE = `usage: cachewright size --size SIZE [--cluster-size 64K] [--extended-l2] [--cache-entry-size SIZE]
                      [--refcount-bits 16] [--cache SIZE] [--request-size 4K]
-                     [--access uniform|zipf:S|hotspot:P/Q|sequential] [--working-set SIZE]
+                     [--access PATTERN] [--working-set SIZE]
                      [--driver current|legacy] [--platform linux|other] [--format text|json]
 
-  --size           virtual size of the disk (e.g. 20G, 1.5T, 512GiB)
-  --cluster-size   cluster size, a power of two from 512 B to 2 MiB (default 64K)
-  --extended-l2    16-byte L2 entries with 32 subclusters per cluster
-  --slice          L2 cache entry size (default: whole L2 tables)
-  --refcount-bits  refcount width: 1, 2, 4, 8, 16, 32 or 64 (default 16)
-  --cache          configured L2 cache size (default: the driver's)
-  --request-size   typical guest write size, for first-write cost (default 4K)
-  --access         guest access pattern for the predicted hit ratio (default uniform)
-  --working-set    guest bytes the workload touches (default: the whole disk)
-  --driver         driver generation whose defaults apply (default current)
-  --platform       host platform whose defaults apply (default linux)
+  --size              virtual size of the disk (e.g. 20G, 1.5T, 512GiB)
+  --cluster-size      cluster size, a power of two from 512 B to 2 MiB (default 64K)
+  --extended-l2       16-byte L2 entries with 32 subclusters per cluster
+  --cache-entry-size  L2 cache entry size (default: whole L2 tables)
+  --refcount-bits     refcount width: 1, 2, 4, 8, 16, 32 or 64 (default 16)
+  --cache             configured L2 cache size (default: the driver's)
+  --request-size      typical guest write size, for first-write cost (default 4K)
+  --access            guest access pattern for the predicted hit ratio (default random):
+                      random, sequential, mixed, zipf(S) or "P% on Q%" (e.g. "90% on 10%")
+  --working-set       guest bytes the workload touches (default: the whole disk)
+  --driver            driver generation whose defaults apply (default current)
+  --platform          host platform whose defaults apply (default linux)
 `;
 
 interface SizeRequest {
   virtualSize: bigint;
   cluster: bigint;
   extendedL2: boolean;
-  slice?: bigint;
+  cacheEntrySize?: bigint;
   refcountBits: bigint;
   cache?: bigint;
   requestSize: bigint;
@@ -90,11 +91,11 @@ function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
   const extendedL2 = args.flags.has('extended-l2');
   const extended = checkExtendedL2(cluster.value, extendedL2);
   if (!extended.ok) return fail(`--extended-l2: ${extended.error}`);
-  const sliceRaw = sizeOption(args, 'slice', 'cache entry size');
-  if (!sliceRaw.ok) return sliceRaw;
-  if (sliceRaw.value !== undefined) {
-    const slice = checkSlice(sliceRaw.value, cluster.value);
-    if (!slice.ok) return fail(`--slice: ${slice.error}`);
+  const entryRaw = sizeOption(args, 'cache-entry-size', 'cache entry size');
+  if (!entryRaw.ok) return entryRaw;
+  if (entryRaw.value !== undefined) {
+    const entry = checkSlice(entryRaw.value, cluster.value);
+    if (!entry.ok) return fail(`--cache-entry-size: ${entry.error}`);
   }
   const bitsRaw = lastOption(args, 'refcount-bits');
   let refcountBits = DEFAULT_REFCOUNT_BITS;
@@ -109,7 +110,7 @@ function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
   const request = sizeOption(args, 'request-size', 'guest write size');
   if (!request.ok) return request;
   if (request.value === 0n) return fail('--request-size (guest write size): must be at least 1 byte');
-  const accessText = lastOption(args, 'access') ?? 'uniform';
+  const accessText = lastOption(args, 'access') ?? 'random';
   const access = parseAccessSpec(accessText);
   if (!access.ok) return fail(`--access: ${access.problem.message}`);
   const workingSet = sizeOption(args, 'working-set', 'working set');
@@ -122,7 +123,7 @@ function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
   const platform = choice(args, 'platform', HOST_PLATFORMS, 'linux');
   if (!platform.ok) return platform;
   return ok({
-    virtualSize: size.value, cluster: cluster.value, extendedL2, slice: sliceRaw.value, refcountBits,
+    virtualSize: size.value, cluster: cluster.value, extendedL2, cacheEntrySize: entryRaw.value, refcountBits,
     cache: cache.value, requestSize: request.value ?? 4096n, generation: generation.value,
     platform: platform.value, format: format.value, access: access.value, workingSet: workingSet.value,
   });
@@ -141,7 +142,7 @@ export function runSize(argv: readonly string[], io: CommandIO): number {
   }
   const r = request.value;
   const profile = driverProfile(r.generation, r.platform);
-  const settings: CacheSettings = { l2Cache: r.cache, entrySize: r.slice };
+  const settings: CacheSettings = { l2Cache: r.cache, entrySize: r.cacheEntrySize };
   const geometry = { virtualSize: r.virtualSize, clusterSize: r.cluster, extendedL2: r.extendedL2, refcountBits: r.refcountBits };
   const sizing = sizeChain([{ geometry, settings }], profile);
   const layer = layerCache(geometry, settings, profile);
@@ -168,7 +169,7 @@ const round = (value: number): string => (value >= 10 ? value.toFixed(0) : value
 
 function accessName(r: SizeRequest): string {
   const a = r.access;
-  const kind = a.kind === 'zipf' ? `Zipf s=${a.exponent}` : a.kind === 'hotspot' ? `${a.share * 100}% of I/O on ${a.fraction * 100}% of the data` : `${a.kind} access`;
+  const kind = `${formatAccessSpec(a)} access`;
   return r.workingSet === undefined ? kind : `${kind} over ${formatSize(r.workingSet)}`;
 }
 
@@ -185,7 +186,7 @@ function renderSizeText(
   profileSummary: string,
   model: CacheModelReport,
 ): string {
-  const entry = layer.entrySize === r.cluster ? 'whole L2 tables' : `${formatSize(layer.entrySize)} slices`;
+  const entry = layer.entrySize === r.cluster ? 'whole L2 tables' : `${formatSize(layer.entrySize)} cache entries`;
   const amplification = writeAmplification(r.requestSize, r.cluster, r.extendedL2);
   const source = layer.l2Source === 'configured' ? (layer.l2Capped ? 'configured, capped at full coverage' : 'configured') : 'driver default';
   const rows: string[][] = [

@@ -178,7 +178,7 @@ class Extractor {
         return parsed;
       }),
       pattern: this.typed('pattern', raw('pattern'), (v) => {
-        if (typeof v !== 'string') return { ok: false, error: `the access pattern must be ${PATTERN_HELP}, got ${JSON.stringify(v)}` };
+        if (typeof v !== 'string') return { ok: false, error: `the access pattern ${JSON.stringify(v)} is not text: use ${PATTERN_HELP}` };
         const access = accessOfPattern(v);
         return access.ok ? { ok: true, value: v } : access;
       }),

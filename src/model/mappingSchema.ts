@@ -24,13 +24,13 @@ const diskFieldDescriptions: Record<DiskField, string> = {
   l2Cache: 'Configured L2 cache size',
   refcountCache: 'Configured refcount cache size',
   combinedCache: 'Configured combined (L2 + refcount) cache size',
-  cacheEntrySize: 'L2 cache entry size (slice)',
+  cacheEntrySize: 'L2 cache entry size',
   cleanupInterval: 'Idle cache cleanup interval (seconds, or 90s, 10m, 1h; 0 is off)',
   extendedL2: 'Whether the image uses extended L2 entries (subclusters)',
   image: 'Path of the image file, relative to the definition file',
   backing: 'A backing image path, or a nested disk object',
   requestSize: 'Typical guest write size',
-  pattern: 'Guest access pattern: random, sequential, mixed, uniform, zipf:S or hotspot:P/Q',
+  pattern: 'Guest access pattern: random, sequential, mixed, zipf(S) or "P% on Q%"',
 };
 
 const diskFields = z
@@ -58,7 +58,7 @@ export const mappingSchema = z
       .object({
         clusterSize: size.optional(),
         format: z.string().min(1).optional(),
-        pattern: z.string().min(1).optional().describe('random, sequential, mixed, uniform, zipf:S or hotspot:P/Q'),
+        pattern: z.string().min(1).optional().describe('random, sequential, mixed, zipf(S) or "P% on Q%"'),
         requestSize: size.optional(),
         driver: z.enum(['current', 'legacy']).optional().describe('Which generation of driver defaults applies'),
         platform: z.enum(['linux', 'other']).optional().describe('Host platform whose defaults apply'),

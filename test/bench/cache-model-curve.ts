@@ -10,14 +10,14 @@ const MiB = 1024n * KiB;
 
 // 64 KiB clusters: one whole table maps 512 MiB, so a million tables cover 500 TiB; with 4 KiB slices
 // (32 MiB each) a million slices cover 32 TiB.
-const wholeTableDisk: CacheModelGeometryInput = { virtualSize: 1_000_000n * 512n * MiB, clusterSize: 64n * KiB, extendedL2: false, access: { kind: 'uniform' } };
+const wholeTableDisk: CacheModelGeometryInput = { virtualSize: 1_000_000n * 512n * MiB, clusterSize: 64n * KiB, extendedL2: false, access: { kind: 'random' } };
 const sliceDisk: CacheModelGeometryInput = { ...wholeTableDisk, virtualSize: 1_000_000n * 32n * MiB, entrySize: 4n * KiB };
 
 const patterns: AccessPattern[] = [
   { kind: 'zipf', exponent: 0.8 },
   { kind: 'zipf', exponent: 1.2 },
-  { kind: 'hotspot', share: 0.9, fraction: 0.1 },
-  { kind: 'uniform' },
+  { kind: 'concentrated', share: 0.9, fraction: 0.1 },
+  { kind: 'random' },
   { kind: 'sequential' },
 ];
 
@@ -52,7 +52,7 @@ for (const [name, disk] of [['whole tables', wholeTableDisk], ['4 KiB slices', s
       if (prepared.value.curve(64).points.length !== 64) throw new Error('expected 64 points');
     }, 25);
     if (entries !== 1_000_000) throw new Error(`expected a million entries, got ${entries}`);
-    line(`${name}, ${access.kind}${access.kind === 'zipf' ? ` s=${access.exponent}` : access.kind === 'hotspot' ? ` ${access.share}/${access.fraction}` : ''}`, result);
+    line(`${name}, ${access.kind}${access.kind === 'zipf' ? ` s=${access.exponent}` : access.kind === 'concentrated' ? ` ${access.share}/${access.fraction}` : ''}`, result);
   }
 }
 

@@ -16,7 +16,7 @@ const cases: Array<[string, ChartInput]> = [
   ['a million 4 KiB slices (32 TiB at 64 KiB)', { virtualSize: 1_000_000n * 32n * MiB, clusterSize: 64n * KiB, extendedL2: false, entrySize: 4n * KiB, pattern: 'random', requestSize: 4n * KiB, configured: 32n * MiB, effective: 32n * MiB, fullCoverage: 4_000_000n * KiB }],
   ['64 TiB at 512 B clusters (2^31 tables)', { virtualSize: 64n * TiB, clusterSize: 512n, extendedL2: false, entrySize: 512n, pattern: 'random', requestSize: 4n * KiB, configured: 32n * MiB, effective: 32n * MiB, fullCoverage: 1024n * GiB }],
 ];
-const patterns = ['random', 'zipf:0.8', 'zipf:1.2', 'hotspot:0.9/0.1', 'sequential'];
+const patterns = ['random', 'zipf(0.8)', 'zipf(1.2)', '90% on 10%', 'sequential'];
 
 function median(run: () => void, repeats: number): number {
   run();

@@ -298,7 +298,7 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   const slicesN = Number(((TiB / (64n * KiB)) * 8n) / (4n * KiB));
   const expectedTable = Number((64n * MiB) / (64n * KiB)) / tablesN;
   const expectedSlice = Number((64n * MiB) / (4n * KiB)) / slicesN;
-  checks.check('what-if: 64M moves the configured mark left of full coverage; it reads C/N = 50 % under uniform access',
+  checks.check('what-if: 64M moves the configured mark left of full coverage; it reads C/N = 50 % under random access',
     before !== undefined && moved !== undefined && moved.x < before.x && Number(moved.table) === expectedTable && Number(moved.slice) === expectedSlice && moved.shown === '50 %',
     `x ${before?.x} -> ${moved?.x}; table ${moved?.table} (C/N ${expectedTable}), slices ${moved?.slice} (C/N ${expectedSlice}), shown ${moved?.shown}`);
   await curveIn(frame, LEDGER_CARD).scrollIntoViewIfNeeded().catch(() => undefined);

@@ -17,6 +17,10 @@ ruleTable(RULE, {
     { name: `${SPEC} the cluster range ends are allowed: 512 B and 2 MiB`, text: 'machines:\n  - name: m\n    disks:\n      - { name: a, size: 1G, cluster: 512 }\n      - { name: b, size: 1G, cluster: 2M }\n' },
     { name: `${SPEC} extended L2 on 16 KiB clusters (subclusters of 512 B)`, text: oneDisk('size: 1G\ncluster: 16K\nextendedL2: true') },
     { name: `${CACHE} a slice of 512 B, and a slice equal to the cluster`, text: 'machines:\n  - name: m\n    disks:\n      - { name: a, size: 1G, cache: { slice: 512 } }\n      - { name: b, size: 1G, cache: { slice: 64K } }\n' },
+    {
+      name: `${CONTRACT} the five access pattern forms: random, sequential, mixed, zipf(S), "P% on Q%"`,
+      text: 'machines:\n  - name: m\n    disks:\n      - { name: a, size: 1G, io: { pattern: random } }\n      - { name: b, size: 1G, io: { pattern: sequential } }\n      - { name: c, size: 1G, io: { pattern: mixed } }\n      - { name: d, size: 1G, io: { pattern: "zipf(1.1)" } }\n      - { name: e, size: 1G, io: { pattern: "90% on 10%" } }\n',
+    },
     { name: 'flags read as YAML booleans or the words on/off, yes/no', text: oneDisk('size: 1G\nextendedL2: "off"') },
     { name: 'a raw disk is still read; its values are valid', text: oneDisk('size: 100G\nformat: raw') },
   ],
@@ -81,6 +85,15 @@ ruleTable(RULE, {
       name: 'an access pattern the tool does not know',
       text: oneDisk('size: 20G\nio: { pattern: bursty }'),
       findings: [{ rule: RULE, line: 6, column: 24, messageIncludes: ['pattern', 'bursty'] }],
+    },
+    {
+      name: `${CONTRACT} spellings of other notations (zipf:S, hotspot:P/Q, uniform) name the accepted forms`,
+      text: 'machines:\n  - name: m\n    disks:\n      - { name: a, size: 1G, io: { pattern: "zipf:1.1" } }\n      - { name: b, size: 1G, io: { pattern: "hotspot:0.9/0.1" } }\n      - { name: c, size: 1G, io: { pattern: uniform } }\n',
+      findings: [
+        { rule: RULE, line: 4, column: 45, messageIncludes: ['"zipf:1.1"', 'random, sequential, mixed, zipf(S)', '"P% on Q%"'] },
+        { rule: RULE, line: 5, column: 45, messageIncludes: ['"hotspot:0.9/0.1"', 'random, sequential, mixed, zipf(S)', '"P% on Q%"'] },
+        { rule: RULE, line: 6, column: 45, messageIncludes: ['"uniform"', 'random, sequential, mixed, zipf(S)', '"P% on Q%"'] },
+      ],
     },
     {
       name: 'a guest write size of 0 and a list where a size belongs',

@@ -219,7 +219,7 @@ describe('cachewright lint --fix', () => {
       assert.equal(run.code, 1, 'the conflict has no fix and remains');
       assert.doesNotMatch(run.stdout, /undersized\.yaml.*l2-cache-undersized/);
       assert.match(run.stdout, /conflict\.json:7:\d+ +error +cache-options-conflict/);
-      assert.match(run.stdout, /2 fixes applied/);
+      assert.match(run.stdout, /; --fix settled 2;/);
       // FACTS.md "Cautions to show users": settings apply on reopen, host memory, change control
       assert.match(run.stdout, /restart the VM or reopen the disk/);
       assert.match(run.stdout, /host memory/);
@@ -259,7 +259,7 @@ describe('cachewright lint --fix', () => {
     }
   });
 
-  it(`${CONTRACT} files that do not parse, have no fixes, or only suppressed ones are not touched`, async () => {
+  it(`${CONTRACT} files that do not parse, have no fixes, or only accepted ones are not touched`, async () => {
     const dir = copyWorkspace();
     try {
       fs.writeFileSync(path.join(dir, 'hosts', 'broken.yaml'), 'guests:\n  - id: x\n    drives: [ { size: 1T, cache: { l2: 8M } }\n');
@@ -279,7 +279,7 @@ describe('cachewright lint --fix', () => {
       const doc = json(run);
       const broken = doc.files.filter((f) => f.path.startsWith('hosts/broken'));
       assert.deepEqual(broken.map((f) => [f.path, f.findings[0]?.rule, f.fixed]), [['hosts/broken.json', 'parse-error', 0], ['hosts/broken.yaml', 'parse-error', 0]]);
-      // the suppressed finding in accepted.yaml is still there, unfixed
+      // the accepted finding in accepted.yaml is still there, unfixed
       const accepted = doc.files.find((f) => f.path === 'hosts/accepted.yaml');
       assert.ok(accepted?.findings.some((f) => f.rule === 'l2-cache-undersized' && f.accepted));
     } finally {

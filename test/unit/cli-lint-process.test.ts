@@ -32,10 +32,10 @@ describe('cachewright lint in a child process', () => {
     }
   });
 
-  it(`${CONTRACT} --max-warnings decides the exit status of warnings`, async () => {
+  it(`${CONTRACT} --allow-warnings decides the exit status of warnings`, async () => {
     const [over, within] = await Promise.all([
-      lintProcess(WORKSPACE, ['hosts/undersized.yaml', '--max-warnings', '0']),
-      lintProcess(WORKSPACE, ['hosts/undersized.yaml', '--max-warnings', '1']),
+      lintProcess(WORKSPACE, ['hosts/undersized.yaml', '--allow-warnings', '0']),
+      lintProcess(WORKSPACE, ['hosts/undersized.yaml', '--allow-warnings', '1']),
     ]);
     assert.equal(over.code, 1);
     assert.equal(within.code, 0);

@@ -158,7 +158,7 @@ describe('cachewright lint --format sarif', () => {
       assertValid(log);
       const uris = new Set((log.runs[0]?.results ?? []).map((r) => r.locations[0]?.physicalLocation.artifactLocation.uri));
       assert.deepEqual([...uris].sort(), ['site%20a/broken.yaml', 'site%20a/h%C3%B4te%201.yaml']);
-      const empty = await sarif(dir, ['--quiet', 'site a/hôte 1.yaml']);
+      const empty = await sarif(dir, ['--errors-only', 'site a/hôte 1.yaml']);
       assertValid(empty.log);
       assert.deepEqual(empty.log.runs[0]?.results, []);
     } finally {

@@ -63,9 +63,9 @@ const BAD_INPUT: [string, string[], string[]][] = [
   [`${SPEC} cluster not a power of two`, ['--size', '20G', '--cluster-size', '48K'], ['49152', '48 KiB', 'power of two', '512 B to 2 MiB']],
   [`${SPEC} cluster below 512 B`, ['--size', '20G', '--cluster-size', '256'], ['256', 'power of two', '512 B to 2 MiB']],
   [`${SPEC} cluster above 2 MiB`, ['--size', '20G', '--cluster-size', '4M'], ['4194304', '4 MiB', '512 B to 2 MiB']],
-  [`${CACHE} slice larger than the cluster`, ['--size', '20G', '--slice', '128K'], ['128 KiB', 'larger than the cluster', '64 KiB', 'at most the cluster size']],
-  [`${CACHE} slice below 512 B`, ['--size', '20G', '--slice', '256'], ['256', 'at least 512 B']],
-  [`${CACHE} slice not a power of two`, ['--size', '20G', '--slice', '3000'], ['3000', 'power of two']],
+  [`${CACHE} cache entry larger than the cluster`, ['--size', '20G', '--cache-entry-size', '128K'], ['128 KiB', 'larger than the cluster', '64 KiB', 'at most the cluster size']],
+  [`${CACHE} cache entry below 512 B`, ['--size', '20G', '--cache-entry-size', '256'], ['256', 'at least 512 B']],
+  [`${CACHE} cache entry size not a power of two`, ['--size', '20G', '--cache-entry-size', '3000'], ['3000', 'power of two']],
   [`${SPEC} extended L2 below 16 KiB clusters`, ['--size', '20G', '--cluster-size', '8K', '--extended-l2'], ['8 KiB', 'at least 16 KiB']],
   [`${SPEC} refcount width not allowed`, ['--size', '20G', '--refcount-bits', '12'], ['12', '1, 2, 4, 8, 16, 32 or 64']],
   [`${SPEC} refcount width not a number`, ['--size', '20G', '--refcount-bits', 'wide'], ['"wide"', '1, 2, 4, 8, 16, 32, 64']],
@@ -78,6 +78,9 @@ const BAD_INPUT: [string, string[], string[]][] = [
   [`${CONTRACT} a flag given a value`, ['--size', '20G', '--extended-l2=yes'], ['--extended-l2 takes no value']],
   [`${CONTRACT} an option given twice`, ['--size', '20G', '--size', '30G'], ['--size is given more than once']],
   [`${COMMON} fractional cache size`, ['--size', '20G', '--cache', '1.5'], ['"1.5"', 'whole number of bytes']],
+  [`${CONTRACT} another notation's Zipf spelling`, ['--size', '20G', '--access', 'zipf:1.1'], ['--access', '"zipf:1.1"', 'random, sequential, mixed, zipf(S)', '"P% on Q%"']],
+  [`${CONTRACT} another notation's hot-spot spelling`, ['--size', '20G', '--access', 'hotspot:0.9/0.1'], ['"hotspot:0.9/0.1"', 'zipf(S)', '"P% on Q%"']],
+  [`${CONTRACT} "uniform" is spelled random`, ['--size', '20G', '--access', 'uniform'], ['"uniform"', 'random, sequential']],
 ];
 
 /** The other invocations below, started early by the before hook (results are memoized by argv). */
@@ -85,18 +88,22 @@ const OTHER_RUNS: string[][] = [
   ['size', '--size', '20G', '--format', 'json'], ['size', '--size', '20G'], ['size', '--help'], ['sizes', '--size', '20G'],
   ['size', '--size', '1T', '--extended-l2', '--format', 'json'], ['size', '--size', '1T', '--format', 'json'],
   ['size', '--size', '1T', '--format', 'json', '--platform', 'other'], ['size', '--size', '1T', '--format', 'json', '--driver', 'legacy'],
-  ['size', '--size', '1280M', '--format', 'json'], ['size', '--size', '1280M', '--slice', '4K', '--format', 'json'],
+  ['size', '--size', '1280M', '--format', 'json'], ['size', '--size', '1280M', '--cache-entry-size', '4K', '--format', 'json'],
   ['size', '--size', '20G', '--cache', '1M', '--format', 'json'], ['size', '--size', '20G', '--cache', '64M', '--format', 'json'],
   ['size', '--size', '512G', '--cluster-size', '1M', '--format', 'json'], ['size', '--size', '2048P', '--format', 'json'],
   ['size', '--size', '1T', '--cluster-size', '2M'], ['size', '--size', '1T', '--cluster-size', '2M', '--extended-l2'],
   ['size', '--size', '20G', '--refcount-bits', '64'], ['size', '--size', '20G', '--platform', 'other'],
   ['size', '--size', '20G', '--cache', '64M'],
+  ['size', '--size', '20G', '--cache', '1M', '--access', 'zipf(1.1)'], ['size', '--size', '20G', '--cache', '1M', '--access', '90% on 10%'],
+  ['--help', 'size'], ['size', '-h'], ['-h', 'size'], ['size', '--size', '20G', '--help'], ['--version'], ['size', '--version'], ['--version', 'lint'],
 ];
 
 describe('cli: cachewright size', function () {
   this.timeout(30000);
 
   before(function () {
+    // the build shares the machine with other work: give it room (no test asserts on time)
+    this.timeout(180000);
     // one build for the whole file; the tests then run what the package's bin runs
     execFileSync('npm', ['run', '-s', 'build'], { cwd: ROOT, stdio: 'pipe' });
     // start the runs together: each is an independent process, and serially they are slow
@@ -142,8 +149,8 @@ describe('cli: cachewright size', function () {
       assert.equal(parsed.refcountEffective, 256 * KiB); // refcounts are left alone
     });
 
-    it(`${CACHE} --slice 4K rounds full coverage to whole slices: 1280 MiB -> 160 KiB (whole tables: 192 KiB)`, async () => {
-      const sliced = JSON.parse((await cachewright('size', '--size', '1280M', '--slice', '4K', '--format', 'json')).stdout) as Record<string, number>;
+    it(`${CACHE} --cache-entry-size 4K rounds full coverage to whole cache entries: 1280 MiB -> 160 KiB (whole tables: 192 KiB)`, async () => {
+      const sliced = JSON.parse((await cachewright('size', '--size', '1280M', '--cache-entry-size', '4K', '--format', 'json')).stdout) as Record<string, number>;
       const whole = JSON.parse((await cachewright('size', '--size', '1280M', '--format', 'json')).stdout) as Record<string, number>;
       assert.equal(sliced.l2FullCoverage, 160 * KiB);
       assert.equal(whole.l2FullCoverage, 192 * KiB);
@@ -230,6 +237,25 @@ describe('cli: cachewright size', function () {
       assert.match(sub.stdout, /^first write +16x/m);
       assert.match(sub.stdout, /32 subclusters of 64 KiB/);
     });
+    it(`${CONTRACT} --access reads zipf(S) and "P% on Q%"`, async () => {
+      for (const [access, shown] of [['zipf(1.1)', /zipf\(1\.1\) access/], ['90% on 10%', /90% on 10% access/]] as const) {
+        const run = await cachewright('size', '--size', '20G', '--cache', '1M', '--access', access);
+        assert.equal(run.code, 0, run.stderr);
+        assert.match(run.stdout, shown);
+      }
+    });
+    it(`${CONTRACT} -h, --help and --version work before or after the command`, async () => {
+      for (const argv of [['--help', 'size'], ['size', '-h'], ['-h', 'size'], ['size', '--size', '20G', '--help']]) {
+        const run = await cachewright(...argv);
+        assert.equal(run.code, 0, argv.join(' '));
+        assert.match(run.stdout, /^usage: cachewright size /, argv.join(' '));
+      }
+      for (const argv of [['--version'], ['size', '--version'], ['--version', 'lint']]) {
+        const run = await cachewright(...argv);
+        assert.equal(run.code, 0, argv.join(' '));
+        assert.match(run.stdout, /^\d+\.\d+\.\d+\n$/, argv.join(' '));
+      }
+    });
     it('--help prints the usage and exits 0', async () => {
       const run = await cachewright('size', '--help');
       assert.equal(run.code, 0);
@@ -263,7 +289,7 @@ describe('cli: cachewright size', function () {
 describe('cli: cachewright size in process', () => {
   it(`${CONTRACT} property: any argv gives exit 0 with output, or exit 2 with a message; never an exception`, () => {
     const token = fc.oneof(
-      fc.constantFrom('--size', '--cluster-size', '--extended-l2', '--slice', '--refcount-bits', '--cache',
+      fc.constantFrom('--size', '--cluster-size', '--extended-l2', '--cache-entry-size', '--refcount-bits', '--cache',
         '--request-size', '--driver', '--platform', '--format', 'json', 'text', 'legacy', 'other', '--', '-', '--size='),
       fc.constantFrom('20G', '0', '-1', '1.5', '64K', '4KB', '2M', '3000', '512', '16', '2048P', '1e3', ''),
       fc.string({ maxLength: 6 }),

@@ -57,7 +57,7 @@ const sizeValue = fc.oneof(
 );
 const clusterValue = fc.oneof(fc.constantFrom('512', '4K', '16K', '64K', '256K', '1M', '2M', '48K', '4M', 256, 65536), sizeValue);
 const intervalValue = fc.oneof(fc.constantFrom(0, 600, '10m', '1h', '90s', '5d', -1, '0.5s', 'never'), sizeValue);
-const patternValue = fc.constantFrom('random', 'sequential', 'mixed', 'uniform', 'zipf:0.8', 'hotspot:0.9/0.1', 'bursty', 5, 'zipf:', 'hotspot:2/3');
+const patternValue = fc.constantFrom('random', 'sequential', 'mixed', 'zipf(0.8)', '90% on 10%', 'zipf:0.8', 'hotspot:0.9/0.1', 'bursty', 5, 'zipf()', '200% on 3%');
 const maybe = <T>(arb: fc.Arbitrary<T>) => fc.option(arb, { nil: undefined, freq: 2 });
 
 const cacheArb = fc.record({ l2: maybe(sizeValue), refcount: maybe(sizeValue), total: maybe(sizeValue), slice: maybe(clusterValue), cleanup: maybe(intervalValue) }, { requiredKeys: [] });

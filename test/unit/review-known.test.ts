@@ -150,7 +150,7 @@ describe('cachewright lint --record-known / --known', () => {
 
     // A second 1 TiB disk, undersized: new; the old one is untouched.
     fs.appendFileSync(path.join(dir, 'fleet/a.yaml'), '      - label: logs\n        capacity: 1T\n        tuning: { l2: 4M }\n');
-    const grown = await lintIn(dir, ['--known', 'known.json', '--format', 'json', '--max-warnings', '0']);
+    const grown = await lintIn(dir, ['--known', 'known.json', '--format', 'json', '--allow-warnings', '0']);
     assert.equal(grown.code, 1);
     const after = JSON.parse(grown.stdout) as LintJson;
     const states = after.files[0]?.findings.map((f) => `${f.pointer} ${f.baselineState}`);

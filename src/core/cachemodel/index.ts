@@ -17,13 +17,13 @@
  *     hit ratio against cache size, log-spaced from 2 entries (the driver's floor) to full coverage.
  * - entrySizeCurves(input, { points?, sliceSize? }): ModelResult<EntrySizeCurves>
  *     the whole-table and the slice curve side by side.
- * - parseAccessSpec(text: string): ModelResult<AccessPattern>   `uniform|zipf:S|hotspot:P/Q|sequential`
+ * - parseAccessSpec(text: string): ModelResult<AccessPattern>   `random|sequential|mixed|zipf(S)|P% on Q%`
  * - formatAccessSpec(access: AccessPattern): string              the inverse of parseAccessSpec
  * - DEVICE_CLASSES: the assumed latencies per device class (nvme, ssd, hdd; from memory, overridable
  *   through input.device).
  *
- * Methods (docs/cache-model.md): uniform access gives exactly C/N [IRM] when every touched entry is
- * fully covered; Zipf and hot-spot access use the characteristic-time approximation of LRU [CHE]; a
+ * Methods (docs/cache-model.md): random access gives exactly C/N [IRM] when every touched entry is
+ * fully covered; Zipf and "P% on Q%" access use the characteristic-time approximation of LRU [CHE]; a
  * sequential scan misses once per entry per pass unless all N entries fit.
  */
 
@@ -33,9 +33,9 @@ export {
   parseAccessSpec,
   MAX_ZIPF_EXPONENT,
   type AccessPattern,
-  type HotspotAccess,
+  type ConcentratedAccess,
   type SequentialAccess,
-  type UniformAccess,
+  type RandomAccess,
   type ZipfAccess,
 } from './access';
 export { DEFAULT_DEVICE_CLASS, DEVICE_CLASSES, type DeviceClass, type DeviceLatency, type ThroughputEstimate } from './cost';

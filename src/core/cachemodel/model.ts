@@ -40,7 +40,7 @@ export interface CacheModelInput extends CacheModelGeometryInput {
   cacheBytes: bigint;
 }
 
-export type ModelMethod = 'full-coverage' | 'exact-uniform' | 'exact-single-entry' | 'characteristic-time' | 'sequential-scan';
+export type ModelMethod = 'full-coverage' | 'exact-random' | 'exact-single-entry' | 'characteristic-time' | 'sequential-scan';
 
 export interface CacheModelReport {
   access: AccessPattern;
@@ -228,21 +228,21 @@ function evaluator(access: AccessPattern, geometry: EntryGeometry, set: WorkingS
   switch (access.kind) {
     case 'sequential':
       return sequentialEvaluator(geometry, set, entries, ioSize);
-    case 'uniform':
-    case 'hotspot': {
-      const segments = access.kind === 'uniform' ? [{ offset: set.offset, length: set.length, probability: 1 }] : hotspotSegments(set, access.share, access.fraction);
+    case 'random':
+    case 'concentrated': {
+      const segments = access.kind === 'random' ? [{ offset: set.offset, length: set.length, probability: 1 }] : concentratedSegments(set, access.share, access.fraction);
       const classes = entryClasses(geometry, segments);
       const items = weightedItems(classes);
       const equal = allEqual(items);
       return (capacity, warm) => {
         if (capacity >= items.total) return fullCoverage(randomLookups);
-        if (equal) return fromHit(capacity / items.total, 'exact-uniform');
+        if (equal) return fromHit(capacity / items.total, 'exact-random');
         if (capacity === 1) return fromHit(singleEntryHitRatio(items), 'exact-single-entry');
         return fromHit(cheHitRatio(items, capacity, warm), 'characteristic-time');
       };
     }
     case 'zipf': {
-      if (access.exponent === 0) return (capacity) => (capacity >= n ? fullCoverage(randomLookups) : fromHit(capacity / n, 'exact-uniform'));
+      if (access.exponent === 0) return (capacity) => (capacity >= n ? fullCoverage(randomLookups) : fromHit(capacity / n, 'exact-random'));
       const items = zipfItems(n, access.exponent);
       return (capacity, warm) => {
         if (capacity >= n) return fullCoverage(randomLookups);
@@ -264,7 +264,7 @@ function allEqual(items: WeightedItems): boolean {
 }
 
 /** The hot spot sits at the start of the working set: `fraction` of its bytes take `share` of accesses. */
-export function hotspotSegments(set: WorkingSet, share: number, fraction: number): DensitySegment[] {
+export function concentratedSegments(set: WorkingSet, share: number, fraction: number): DensitySegment[] {
   const scale = 2 ** 30;
   let hot = (set.length * BigInt(Math.round(fraction * scale))) / BigInt(scale);
   if (hot < 1n) hot = 1n;

@@ -26,10 +26,10 @@ describe('cachemodel: curves', () => {
   });
 
   it('no slice curve when no slice smaller than the cluster applies; an explicit slice size is used', () => {
-    const small = entrySizeCurves({ virtualSize: 8n * GiB, clusterSize: 4n * KiB, extendedL2: false, access: { kind: 'uniform' } });
+    const small = entrySizeCurves({ virtualSize: 8n * GiB, clusterSize: 4n * KiB, extendedL2: false, access: { kind: 'random' } });
     assert.ok(small.ok);
     assert.equal(small.value.slice, undefined);
-    const chosen = entrySizeCurves({ virtualSize: 8n * GiB, clusterSize: 64n * KiB, extendedL2: false, access: { kind: 'uniform' } }, { sliceSize: 512n, points: 8 });
+    const chosen = entrySizeCurves({ virtualSize: 8n * GiB, clusterSize: 64n * KiB, extendedL2: false, access: { kind: 'random' } }, { sliceSize: 512n, points: 8 });
     assert.ok(chosen.ok);
     assert.equal(chosen.value.slice?.entrySize, 512n);
     assert.equal(chosen.value.slice?.points.length, 8);
@@ -37,7 +37,7 @@ describe('cachemodel: curves', () => {
 
   it('[CACHE] uniform over the whole disk: the hit ratio is the covered share, covered = C * cluster_size / entry_bytes', () => {
     for (const entrySize of [64n * KiB, 4n * KiB]) {
-      const result = entrySizeCurves({ virtualSize: 64n * GiB, clusterSize: 64n * KiB, extendedL2: false, entrySize, access: { kind: 'uniform' } }, { points: 16 });
+      const result = entrySizeCurves({ virtualSize: 64n * GiB, clusterSize: 64n * KiB, extendedL2: false, entrySize, access: { kind: 'random' } }, { points: 16 });
       assert.ok(result.ok);
       for (const point of [...result.value.wholeTable.points, ...(result.value.slice?.points ?? [])]) {
         const covered = (point.cacheBytes * 64n * KiB) / 8n;
@@ -49,7 +49,7 @@ describe('cachemodel: curves', () => {
 
 describe('cachemodel: throughput estimate (assumed device latencies, from memory)', () => {
   it('relative = time per I/O at full hit / time with misses; a miss adds one entry-sized read', () => {
-    const result = modelCache({ virtualSize: 64n * GiB, clusterSize: 64n * KiB, extendedL2: false, cacheBytes: 4n * MiB, access: { kind: 'uniform' }, device: 'nvme' });
+    const result = modelCache({ virtualSize: 64n * GiB, clusterSize: 64n * KiB, extendedL2: false, cacheBytes: 4n * MiB, access: { kind: 'random' }, device: 'nvme' });
     assert.ok(result.ok);
     const { hitRatio, throughput } = result.value;
     assert.equal(hitRatio, 0.5); // 4 MiB of the 8 MiB full coverage [IRM]
@@ -63,7 +63,7 @@ describe('cachemodel: throughput estimate (assumed device latencies, from memory
 
   it('takes the caller\'s own device figures', () => {
     const result = modelCache({
-      virtualSize: 64n * GiB, clusterSize: 64n * KiB, extendedL2: false, cacheBytes: 4n * MiB, access: { kind: 'uniform' },
+      virtualSize: 64n * GiB, clusterSize: 64n * KiB, extendedL2: false, cacheBytes: 4n * MiB, access: { kind: 'random' },
       device: { name: 'measured array', accessLatencyUs: 50, bytesPerSecond: 1e9 },
     });
     assert.ok(result.ok);

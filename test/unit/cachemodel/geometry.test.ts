@@ -16,7 +16,7 @@ function geometry(clusterSize: bigint, extendedL2 = false, entrySize?: bigint): 
 }
 
 function fullCoverage(virtualSize: bigint, clusterSize: bigint, extendedL2 = false, entrySize?: bigint): bigint {
-  const result = modelCache({ virtualSize, clusterSize, extendedL2, entrySize, cacheBytes: 0n, access: { kind: 'uniform' } });
+  const result = modelCache({ virtualSize, clusterSize, extendedL2, entrySize, cacheBytes: 0n, access: { kind: 'random' } });
   if (!result.ok) assert.fail(result.problem.message);
   return result.value.fullCoverageBytes;
 }
@@ -38,7 +38,7 @@ describe('cachemodel: entry geometry', () => {
 
   it('[SPEC] 1 MiB clusters: one table maps 128 GiB, so a 512 GiB disk has exactly four tables', () => {
     assert.equal(geometry(MiB).guestBytesPerEntry, 128n * GiB);
-    const result = modelCache({ virtualSize: 512n * GiB, clusterSize: MiB, extendedL2: false, cacheBytes: 0n, access: { kind: 'uniform' } });
+    const result = modelCache({ virtualSize: 512n * GiB, clusterSize: MiB, extendedL2: false, cacheBytes: 0n, access: { kind: 'random' } });
     assert.ok(result.ok);
     assert.equal(result.value.entries, 4);
   });
@@ -125,7 +125,7 @@ describe('cachemodel: working set onto entries', () => {
   it('rejects a working set outside the disk with a message naming it', () => {
     const result = modelCache({
       virtualSize: GiB, clusterSize: 64n * KiB, extendedL2: false, cacheBytes: MiB,
-      workingSet: { offset: 768n * MiB, length: 512n * MiB }, access: { kind: 'uniform' },
+      workingSet: { offset: 768n * MiB, length: 512n * MiB }, access: { kind: 'random' },
     });
     assert.ok(!result.ok);
     assert.equal(result.problem.field, 'workingSet');

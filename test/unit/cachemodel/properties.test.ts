@@ -6,12 +6,12 @@ import fc from 'fast-check';
 import { prepareCacheModel, type AccessPattern } from '../../../src/core/cachemodel';
 
 const access: fc.Arbitrary<AccessPattern> = fc.oneof(
-  fc.constant<AccessPattern>({ kind: 'uniform' }),
+  fc.constant<AccessPattern>({ kind: 'random' }),
   fc.constant<AccessPattern>({ kind: 'sequential' }),
   fc.double({ min: 0, max: 2, noNaN: true }).map((exponent): AccessPattern => ({ kind: 'zipf', exponent })),
   fc
     .tuple(fc.double({ min: 0, max: 1, noNaN: true }), fc.double({ min: 0.001, max: 0.999, noNaN: true }))
-    .map(([share, fraction]): AccessPattern => ({ kind: 'hotspot', share, fraction })),
+    .map(([share, fraction]): AccessPattern => ({ kind: 'concentrated', share, fraction })),
 );
 
 const disk = fc
@@ -88,13 +88,13 @@ describe('cachemodel: properties', () => {
   });
 
   it('a bad input is a problem naming the field, never an exception', () => {
-    const result = prepareCacheModel({ virtualSize: 0n, clusterSize: 65536n, extendedL2: false, access: { kind: 'uniform' } });
+    const result = prepareCacheModel({ virtualSize: 0n, clusterSize: 65536n, extendedL2: false, access: { kind: 'random' } });
     assert.ok(!result.ok);
     assert.equal(result.problem.field, 'virtualSize');
     const zipf = prepareCacheModel({ virtualSize: 1n << 30n, clusterSize: 65536n, extendedL2: false, access: { kind: 'zipf', exponent: Number.NaN } });
     assert.ok(!zipf.ok);
     assert.match(zipf.problem.message, /Zipf exponent NaN is out of range/);
-    const device = prepareCacheModel({ virtualSize: 1n << 30n, clusterSize: 65536n, extendedL2: false, access: { kind: 'uniform' }, device: { name: 'x', accessLatencyUs: -1, bytesPerSecond: 1 } });
+    const device = prepareCacheModel({ virtualSize: 1n << 30n, clusterSize: 65536n, extendedL2: false, access: { kind: 'random' }, device: { name: 'x', accessLatencyUs: -1, bytesPerSecond: 1 } });
     assert.ok(!device.ok);
     assert.equal(device.problem.field, 'device.accessLatencyUs');
   });

@@ -69,7 +69,7 @@ describe('cachemodel: characteristic-time approximation vs LRU simulation [CHE]'
           return Math.floor(guest / SPAN);
         };
         const simulated = simulateLru(draw, capacity, WARMUP, MEASURED);
-        const model = modelled({ kind: 'hotspot', share, fraction }, capacity, workingSet);
+        const model = modelled({ kind: 'concentrated', share, fraction }, capacity, workingSet);
         assert.ok(Math.abs(model - simulated) <= TOLERANCE, `hotspot ${share}/${fraction} C=${capacity}: model ${model.toFixed(4)} vs LRU ${simulated.toFixed(4)}`);
       }
     });

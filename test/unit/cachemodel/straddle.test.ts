@@ -16,7 +16,7 @@ const workingSet = { offset: 496n * MiB, length: 64n * MiB };
 function report(entrySize: bigint, cacheBytes: bigint, minEntries?: number): CacheModelReport {
   const result = modelCache({
     virtualSize: 4n * GiB, clusterSize: 64n * KiB, extendedL2: false, entrySize, cacheBytes, workingSet, minEntries,
-    access: { kind: 'uniform' },
+    access: { kind: 'random' },
   });
   if (!result.ok) assert.fail(result.problem.message);
   return result.value;

@@ -11,7 +11,7 @@ const GiB = 1024n * MiB;
 const TiB = 1024n * GiB;
 
 function uniform(virtualSize: bigint, clusterSize: bigint, cacheBytes: bigint, entrySize?: bigint, workingSet?: { offset: bigint; length: bigint }): CacheModelReport {
-  const result = modelCache({ virtualSize, clusterSize, extendedL2: false, entrySize, cacheBytes, workingSet, access: { kind: 'uniform' } });
+  const result = modelCache({ virtualSize, clusterSize, extendedL2: false, entrySize, cacheBytes, workingSet, access: { kind: 'random' } });
   if (!result.ok) assert.fail(result.problem.message);
   return result.value;
 }
@@ -24,7 +24,7 @@ describe('cachemodel: uniform access [IRM]', () => {
     assert.equal(report.hitRatio, 512 / 2048);
     assert.equal(report.missesPer1000, 750);
     assert.equal(report.metadataBytesPerIo, 0.75 * 65536); // a miss reads one whole table
-    assert.equal(report.method, 'exact-uniform');
+    assert.equal(report.method, 'exact-random');
   });
 
   it('slices: the same disk and cache in 4 KiB slices holds 8192 of 32768: C/N = 0.25', () => {
@@ -67,7 +67,7 @@ describe('cachemodel: uniform access [IRM]', () => {
           const result = modelCache({
             virtualSize: workingSet.offset + workingSet.length + BigInt(start % 3) * span,
             clusterSize, extendedL2: useExtended, entrySize, workingSet,
-            cacheBytes: BigInt(cacheEntries) * entrySize, access: { kind: 'uniform' },
+            cacheBytes: BigInt(cacheEntries) * entrySize, access: { kind: 'random' },
           });
           if (!result.ok) return false;
           const c = Math.min(length, Math.max(2, cacheEntries));
