@@ -105,15 +105,3 @@ export function shownFindings(run: LintRun, report: ReportView): Finding[] {
 export function mappingRelative(mapping: Mapping, absolutePath: string): string {
   return nodePath.relative(mapping.dir, absolutePath).split(nodePath.sep).join('/');
 }
-
-/**
- * Whether a suppression came from the mapping file's accept list (rather than a comment in the
- * definition): the engine records only the reason, so the CLI matches the list the same way.
- */
-export function suppressedByMapping(mapping: Mapping, path: string, finding: Finding): boolean {
-  if (!finding.accepted) return false;
-  const within = (pointer: string, scope: string) => scope === '' || pointer === scope || pointer.startsWith(`${scope}/`);
-  return mapping.accept.some(
-    (entry) => entry.rule === finding.rule && entry.reason === finding.accepted?.reason && (entry.file === undefined || entry.file === path) && within(finding.pointer, entry.pointer),
-  );
-}

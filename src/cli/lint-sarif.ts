@@ -6,7 +6,7 @@ import * as nodePath from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { RULES, type Finding, type SourceRange } from '../lint';
 import type { Severity } from '../core/results';
-import { baselineOf, mappingRelative, shownFindings, suppressedByMapping, type LintRun } from './lint-results';
+import { baselineOf, mappingRelative, shownFindings, type LintRun } from './lint-results';
 import { FINGERPRINT_KEY, fingerprintOf, subjectOf } from '../review/identity';
 import type { KnownEntry } from '../review/known';
 
@@ -46,7 +46,7 @@ function location(artifact: ArtifactLocation, range: SourceRange, pointer: strin
   };
 }
 
-const RULE_INDEX = new Map(RULES.map((rule, index) => [rule.id, index]));
+const RULE_INDEX: ReadonlyMap<string, number> = new Map(RULES.map((rule, index) => [rule.id, index]));
 
 function result(run: LintRun, path: string, finding: Finding, report: NonNullable<LintRun['files'][number]['report']>) {
   const artifact = artifactLocation(run, path);
@@ -75,7 +75,7 @@ function result(run: LintRun, path: string, finding: Finding, report: NonNullabl
           }]
         : undefined,
     suppressions: finding.accepted
-      ? [{ kind: suppressedByMapping(run.mapping, path, finding) ? 'external' : 'inSource', status: 'accepted', justification: finding.accepted.reason }]
+      ? [{ kind: finding.accepted.from === 'mapping' ? 'external' : 'inSource', status: 'accepted', justification: finding.accepted.reason }]
       : undefined,
   };
 }

@@ -5,7 +5,7 @@ import { DEFINITION_SIZE_LIMIT, MAX_FILE_SIZE_LIMIT } from '../files/open';
 import { lastOption, parseArgs, type OptionSpec } from './args';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { displayPath, resolveMapping, selectFiles } from './lint-discovery';
-import { lintFile, type LintFormat, type LintRequest } from './lint-file';
+import type { LintFormat, LintRequest } from './lint-file';
 import { renderJson } from './lint-json';
 import { lintFiles } from './lint-parallel';
 import { startProgress } from './lint-progress';

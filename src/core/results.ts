@@ -31,8 +31,15 @@ export interface RelatedLocation {
   range: SourceRange;
 }
 
-export interface Finding {
-  rule: string;
+/** How an accepted finding was accepted: an accept comment in the definition, or the mapping file's accept list. */
+export interface Acceptance {
+  reason: string;
+  from: 'comment' | 'mapping';
+}
+
+/** One finding; `Rule` narrows the rule id (the lint's report uses its registry's ids). */
+export interface Finding<Rule extends string = string> {
+  rule: Rule;
   severity: Severity;
   message: string;
   /** RFC 6901 JSON Pointer into the definition file. */
@@ -40,7 +47,7 @@ export interface Finding {
   range: SourceRange;
   fix?: Fix;
   related?: RelatedLocation[];
-  accepted?: { reason: string };
+  accepted?: Acceptance;
   /** A finding about a whole hypervisor host (it spans files): the host's name. */
   host?: string;
   /** The scalar value the finding points at, as data (absent when it points at a disk or machine). */

@@ -126,3 +126,8 @@ export function writeAmplification(requestSize: bigint, cluster: bigint, extende
   const bytesMoved = roundUp(request, unit);
   return { unit, bytesMoved, ratio: Number((bytesMoved * 100n) / request) / 100 };
 }
+
+/** The cache memory a machine may use: its share of the machine's RAM, rounded down to whole bytes (share kept to millionths). */
+export function cacheBudgetOf(memory: bigint, shareOfMemory: number): bigint {
+  return (memory * BigInt(Math.round(shareOfMemory * 1_000_000))) / 1_000_000n;
+}

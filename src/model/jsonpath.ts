@@ -192,6 +192,11 @@ export function valueAtPath(data: unknown, path: readonly PathSegment[]): unknow
   return current;
 }
 
+/** Whether a JSON Pointer lies at or under a scope pointer (RFC 6901; the empty scope is the whole document). */
+export function pointerWithin(pointer: string, scope: string): boolean {
+  return scope === '' || pointer === scope || pointer.startsWith(`${scope}/`);
+}
+
 /** RFC 6901: "~" is written "~0" and "/" is written "~1". */
 export function toJsonPointer(path: readonly PathSegment[]): string {
   return path.map((segment) => `/${String(segment).replace(/~/g, '~0').replace(/\//g, '~1')}`).join('');

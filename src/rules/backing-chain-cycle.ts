@@ -1,6 +1,6 @@
 import { docsPage, type Rule } from './types';
 
-export const backingChainCycle: Rule = {
+export const backingChainCycle: Rule<'backing-chain-cycle'> = {
   id: 'backing-chain-cycle',
   severity: 'error',
   description: 'A backing chain refers back to itself, so the image can never be opened.',

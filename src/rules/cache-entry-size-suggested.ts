@@ -5,7 +5,7 @@ import { docsPage, type Rule } from './types';
 
 const LARGE_CLUSTER = 256n * KiB;
 
-export const cacheEntrySizeSuggested: Rule = {
+export const cacheEntrySizeSuggested: Rule<'cache-entry-size-suggested'> = {
   id: 'cache-entry-size-suggested',
   severity: 'info',
   description: 'Large clusters with a cache below full coverage: whole-table cache entries make each miss read a whole cluster of L2 entries.',

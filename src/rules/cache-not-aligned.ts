@@ -2,7 +2,7 @@ import { roundUp } from '../core/sizing';
 import { size } from './format';
 import { docsPage, type Rule, type SizeField } from './types';
 
-export const cacheNotAligned: Rule = {
+export const cacheNotAligned: Rule<'cache-not-aligned'> = {
   id: 'cache-not-aligned',
   severity: 'warning',
   description: 'A cache size is not a multiple of its entry size, so the driver rounds it.',

@@ -1,6 +1,6 @@
 import { docsPage, type Rule } from './types';
 
-export const cacheOptionsConflict: Rule = {
+export const cacheOptionsConflict: Rule<'cache-options-conflict'> = {
   id: 'cache-options-conflict',
   severity: 'error',
   description: 'L2, refcount and combined cache sizes are all set; the driver accepts at most two.',

@@ -2,7 +2,7 @@ import { RECOMMENDED_CLEANUP_INTERVAL } from '../core/profiles';
 import { size } from './format';
 import { docsPage, type Rule } from './types';
 
-export const cleanupIntervalMissing: Rule = {
+export const cleanupIntervalMissing: Rule<'cleanup-interval-missing'> = {
   id: 'cleanup-interval-missing',
   severity: 'warning',
   description: 'A cache larger than the driver default, or a backing chain, keeps stale entries because no idle cleanup runs.',

@@ -7,7 +7,7 @@ import { docsPage, type Rule } from './types';
 /** Above this allocation unit, small first writes copy far more than they write (common practice). */
 const LARGE_UNIT = 64n * KiB;
 
-export const clusterCowAmplification: Rule = {
+export const clusterCowAmplification: Rule<'cluster-cow-amplification'> = {
   id: 'cluster-cow-amplification',
   severity: 'warning',
   description: 'Small random writes on clusters (or subclusters) above 64 KiB fill a whole allocation unit on first write.',

@@ -2,7 +2,7 @@ import * as nodePath from 'node:path';
 import { size } from './format';
 import { docsPage, type FindingInput, type Rule } from './types';
 
-export const imageMismatch: Rule = {
+export const imageMismatch: Rule<'image-mismatch'> = {
   id: 'image-mismatch',
   severity: 'error',
   description: 'The image file disagrees with the definition (cluster size, virtual size, extended L2 or backing file).',

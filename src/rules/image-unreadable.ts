@@ -1,6 +1,6 @@
 import { docsPage, type Rule } from './types';
 
-export const imageUnreadable: Rule = {
+export const imageUnreadable: Rule<'image-unreadable'> = {
   id: 'image-unreadable',
   severity: 'error',
   description: 'A referenced image (or one of its backing files) is missing or is not a readable qcow2 image.',

@@ -15,23 +15,40 @@ import { imageMismatch } from './image-mismatch';
 import { imageUnreadable } from './image-unreadable';
 import type { Rule } from './types';
 
-export const RULES: readonly Rule[] = [
-  parseError,
-  invalidValue,
-  cacheOptionsConflict,
-  cacheNotAligned,
-  l2CacheUndersized,
-  l2CacheOversized,
-  clusterCowAmplification,
-  cleanupIntervalMissing,
-  cacheEntrySizeSuggested,
-  machineCacheBudget,
-  imageMismatch,
-  imageUnreadable,
-  backingChainCycle,
-  invalidSuppression,
-];
+/** Checks at compile time that every rule sits under its own id. */
+function registry<T extends { [K in keyof T]: Rule<K & string> }>(rules: T): T {
+  return rules;
+}
 
-export const RULE_IDS: readonly string[] = RULES.map((r) => r.id);
-export const ruleById = (id: string): Rule | undefined => RULES.find((r) => r.id === id);
+/** Every rule by its id; the order of the keys is the order findings at one place are listed in. */
+export const RULE_REGISTRY = registry({
+  'parse-error': parseError,
+  'invalid-value': invalidValue,
+  'cache-options-conflict': cacheOptionsConflict,
+  'cache-not-aligned': cacheNotAligned,
+  'l2-cache-undersized': l2CacheUndersized,
+  'l2-cache-oversized': l2CacheOversized,
+  'cluster-cow-amplification': clusterCowAmplification,
+  'cleanup-interval-missing': cleanupIntervalMissing,
+  'cache-entry-size-suggested': cacheEntrySizeSuggested,
+  'machine-cache-budget': machineCacheBudget,
+  'image-mismatch': imageMismatch,
+  'image-unreadable': imageUnreadable,
+  'backing-chain-cycle': backingChainCycle,
+  'invalid-suppression': invalidSuppression,
+});
+
+/** A rule id: a public contract (never renamed). */
+export type RuleId = keyof typeof RULE_REGISTRY;
+
+export const RULES: readonly Rule<RuleId>[] = Object.values(RULE_REGISTRY);
+export const RULE_IDS: readonly RuleId[] = RULES.map((r) => r.id);
+
+const KNOWN_IDS: ReadonlySet<string> = new Set(RULE_IDS);
+export const isRuleId = (id: string): id is RuleId => KNOWN_IDS.has(id);
+
+/** The rule with this id. */
+export const ruleOf = (id: RuleId): Rule<RuleId> => RULE_REGISTRY[id];
+/** The rule an outside string names, if any (a mapping file's or a finding's rule id). */
+export const ruleById = (id: string): Rule<RuleId> | undefined => (isRuleId(id) ? RULE_REGISTRY[id] : undefined);
 export type { Rule } from './types';

@@ -1,7 +1,7 @@
 import { docsPage, type Rule } from './types';
 
 /** Reported by the orchestrator for a suppression comment it cannot honour. */
-export const invalidSuppression: Rule = {
+export const invalidSuppression: Rule<'invalid-suppression'> = {
   id: 'invalid-suppression',
   severity: 'warning',
   description: 'A suppression comment names no rule, an unknown rule, or gives no reason.',

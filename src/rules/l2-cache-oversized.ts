@@ -2,7 +2,7 @@ import { maxOf, minimumL2Cache } from '../core/sizing';
 import { size } from './format';
 import { docsPage, type Rule } from './types';
 
-export const l2CacheOversized: Rule = {
+export const l2CacheOversized: Rule<'l2-cache-oversized'> = {
   id: 'l2-cache-oversized',
   severity: 'info',
   description: 'A configured L2 cache is larger than full coverage: the memory above it is never used.',

@@ -18,7 +18,7 @@ function prediction(top: LayerCache, pattern: string, requestSize: bigint): stri
   return ` Under ${pattern} access it predicts ${hits}% L2 hits, ${misses} extra metadata reads per 1,000 guest I/Os; full coverage: 100% and none.`;
 }
 
-export const l2CacheUndersized: Rule = {
+export const l2CacheUndersized: Rule<'l2-cache-undersized'> = {
   id: 'l2-cache-undersized',
   severity: 'warning',
   description: 'The effective L2 cache maps less than the whole virtual disk, so random I/O pays extra metadata reads.',

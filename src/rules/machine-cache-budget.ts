@@ -1,7 +1,8 @@
+import { cacheBudgetOf } from '../core/sizing';
 import { share, size } from './format';
 import { docsPage, type Rule } from './types';
 
-export const machineCacheBudget: Rule = {
+export const machineCacheBudget: Rule<'machine-cache-budget'> = {
   id: 'machine-cache-budget',
   severity: 'warning',
   description: "A machine's cache memory over all its disks and backing layers exceeds the budget share of its RAM.",
@@ -11,8 +12,7 @@ export const machineCacheBudget: Rule = {
     const memory = machine.memory?.value;
     if (!memory || disks.length === 0) return;
     const total = disks.reduce((sum, d) => sum + d.sizing.report.cacheMemoryTotal, 0n);
-    const shareMillionths = BigInt(Math.round(mapping.cacheShareOfMemory * 1_000_000));
-    const budget = (memory * shareMillionths) / 1_000_000n;
+    const budget = cacheBudgetOf(memory, mapping.cacheShareOfMemory);
     if (total <= budget) return;
     report({
       at: machine.memory,

@@ -8,8 +8,8 @@ import type { DiskSpec, DiskValues, Located, MachineSpec } from '../model/disks'
 import type { Assumptions, Mapping } from '../model/mapping';
 import type { ImageChainFacts } from '../model/images';
 
-export interface RuleMeta {
-  id: string;
+export interface RuleMeta<Id extends string = string> {
+  id: Id;
   severity: Severity;
   /** One line: what the rule catches. */
   description: string;
@@ -62,7 +62,7 @@ export interface MachineCheck {
   report(finding: FindingInput): void;
 }
 
-export interface Rule extends RuleMeta {
+export interface Rule<Id extends string = string> extends RuleMeta<Id> {
   checkDisk?(check: DiskCheck): void;
   checkMachine?(check: MachineCheck): void;
 }

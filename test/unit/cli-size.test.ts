@@ -49,7 +49,6 @@ const SIZE_OUTPUT_KEYS = [...SIZING_KEYS, 'model'];
 const KiB = 1024;
 const MiB = 1024 * KiB;
 const GiB = 1024 * MiB;
-const TiB = 1024 * GiB;
 
 // argv after `cachewright size`, then fragments the message must contain (the value, the range)
 const BAD_INPUT: [string, string[], string[]][] = [

@@ -11,7 +11,6 @@ import { curve, curveJson, tempFolder } from './helpers';
 const IO_LOG_MANUAL = '[the I/O tester\'s manual page, Trace file format v2/v3]';
 // 512-byte clusters, whole tables: one cache entry maps 64 * 512 = 32 KiB [SPEC].
 const GEOMETRY = ['--size', '1M', '--cluster-size', '512'];
-const KiB = 1024;
 
 describe('trace readers: formats and unusable traces', function () {
   this.timeout(30_000);

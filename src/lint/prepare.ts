@@ -1,0 +1,85 @@
+// Preparing a lint: the mapping file read against the rules that exist, and the context one file's
+// lint carries (severities after overrides, the image facts, the file's size style, fix helpers).
+import type { Fix, Severity } from '../core/results';
+import type { SizeStyle } from '../core/units';
+import { setDiskFieldEdit, sizeStyleOfMachines } from '../model/diskEdits';
+import { isScalar } from 'yaml';
+import { nodeAt, type DefinitionDocument } from '../model/document';
+import type { DiskSpec, MachineSpec } from '../model/disks';
+import type { NewValue } from '../model/edits';
+import type { ImageLookup } from '../model/images';
+import { parseJsonPointer } from '../model/jsonpath';
+import { loadMapping as loadMappingFile, type Mapping, type MappingLoad } from '../model/mapping';
+import { RULE_IDS, type Rule, type RuleId } from '../rules';
+import type { FixHelpers, SizeField } from '../rules/types';
+import type { LintFinding } from './report';
+
+export interface SourceFile {
+  /** Absolute path of the definition file. */
+  path: string;
+  text: string;
+}
+
+export interface LintOptions {
+  /** Severity per rule id, over the mapping file's `rules` (editor settings use this). */
+  severities?: Record<string, Severity | 'off'>;
+  /** Facts of the image files definitions name, read by the caller; absent: images are not checked. */
+  images?: ImageLookup;
+}
+
+/** Reads a mapping file, checking rule ids against the rules that exist. */
+export function loadMapping(text: string, path: string): MappingLoad {
+  return loadMappingFile(text, path, RULE_IDS);
+}
+
+/** The scalar a finding points at, as data: part of the finding's identity across runs. */
+function scalarAt(document: DefinitionDocument, pointer: string): string | undefined {
+  if (pointer === '') return undefined;
+  const path = parseJsonPointer(pointer);
+  if (!path.ok) return undefined;
+  const node = nodeAt(document, path.value.map((p) => (typeof p === 'string' && /^(0|[1-9]\d*)$/.test(p) ? Number(p) : p)))?.node;
+  return node && isScalar(node) ? String(node.value) : undefined;
+}
+
+/** A finding as a rule hands it over, before its rule id and severity are attached. */
+export type FindingBody = Omit<LintFinding, 'rule' | 'severity'>;
+
+/** What one file's lint carries from rule to rule. Findings go to the list each call names. */
+export class FileContext {
+  private sizeStyle: { style: SizeStyle | undefined } | undefined;
+  private readonly severities: Record<string, Severity | 'off'>;
+  readonly images: ImageLookup | undefined;
+
+  constructor(readonly document: DefinitionDocument, readonly mapping: Mapping, options: LintOptions) {
+    this.severities = { ...mapping.severities, ...options.severities };
+    this.images = options.images;
+  }
+
+  severityOf(rule: Rule<RuleId>): Severity | 'off' {
+    return this.severities[rule.id] ?? rule.severity;
+  }
+
+  add(into: LintFinding[], rule: Rule<RuleId>, finding: FindingBody): void {
+    const severity = this.severityOf(rule);
+    if (severity === 'off') return;
+    const written = scalarAt(this.document, finding.pointer);
+    into.push({ rule: rule.id, severity, ...finding, ...(written !== undefined ? { written } : {}) });
+  }
+
+  /** How the file writes sizes (read once per file: inserted values follow it). */
+  fileSizeStyle(machines: readonly MachineSpec[]): SizeStyle | undefined {
+    if (!this.sizeStyle) this.sizeStyle = { style: sizeStyleOfMachines(machines) };
+    return this.sizeStyle.style;
+  }
+
+  fixHelpers(disk: DiskSpec, machines: readonly MachineSpec[]): FixHelpers {
+    const set = (field: SizeField | 'cleanupInterval', value: NewValue, title: string): Fix | undefined => {
+      const result = setDiskFieldEdit(this.document, this.mapping, disk, field, value, this.fileSizeStyle(machines));
+      return result.ok ? { title, edits: [result.edit] } : undefined;
+    };
+    return {
+      setSize: (field, bytes, title) => set(field, { kind: 'size', bytes }, title),
+      setInterval: (field, seconds, title) => set(field, { kind: 'interval', seconds }, title),
+    };
+  }
+}

@@ -1,0 +1,121 @@
+// The one result of linting a file: per disk its sizing and values, per machine its budget, and the
+// findings in the order they are shown. Front ends only format it.
+import type { DiskSizing, LayerCache } from '../core/cache';
+import type { Finding, SourceRange } from '../core/results';
+import { cacheBudgetOf } from '../core/sizing';
+import type { DiskSpec, MachineSpec } from '../model/disks';
+import { RULE_IDS, type RuleId } from '../rules';
+import type { SizeField } from '../rules/types';
+import { applyAcceptances } from './acceptance';
+import type { FileContext } from './prepare';
+
+/** A finding of one of the registry's rules. */
+export type LintFinding = Finding<RuleId>;
+
+export interface DiskReport {
+  machine: string;
+  name: string;
+  /** Whether the name comes from the definition (else it is "disk N", which depends on the index). */
+  named: boolean;
+  pointer: string;
+  range: SourceRange;
+  sizing: DiskSizing['report'];
+  recommended: DiskSizing['recommended'];
+  layers: LayerCache[];
+  /** What the definition sets, as written (absent: the driver default applies). */
+  configured: Partial<Record<SizeField | 'cleanupInterval', { raw: unknown; pointer: string }>>;
+  extendedL2: boolean;
+  requestSize: bigint;
+  pattern: string;
+  /** The image file the definition names, and whether its layers came from the real files. */
+  image?: { path: string; read: boolean; layers: { path: string; format: string }[]; problem?: string };
+}
+
+export interface MachineReport {
+  name: string;
+  /** Whether the name comes from the definition or the file (else it is "machine N"). */
+  named: boolean;
+  pointer: string;
+  range: SourceRange;
+  memory?: bigint;
+  budget?: bigint;
+  cacheMemoryTotal: bigint;
+  /** Indices into FileReport.disks. */
+  disks: number[];
+}
+
+export interface FileReport {
+  path: string;
+  disks: DiskReport[];
+  machines: MachineReport[];
+  findings: LintFinding[];
+  /** False when the file could not be parsed: --fix must leave it alone. */
+  parsed: boolean;
+}
+
+/** The findings of one disk (its values and its rules) and its sizing, kept apart so an edit inside it re-checks it alone. */
+export interface DiskUnit {
+  disk: DiskSpec;
+  findings: LintFinding[];
+  result?: { sizing: DiskSizing; report: DiskReport };
+}
+
+export interface MachineUnit {
+  machine: MachineSpec;
+  disks: DiskUnit[];
+  /** Problems with the machine's own values. */
+  valueFindings: LintFinding[];
+  ruleFindings: LintFinding[];
+}
+
+/** A file's findings kept by the disk and machine they belong to. */
+export interface Units {
+  machines: MachineUnit[];
+  /** Value problems that belong to no disk or machine. */
+  other: LintFinding[];
+}
+
+const SEVERITY_ORDER = { error: 0, warning: 1, info: 2 } as const;
+const RULE_ORDER = new Map(RULE_IDS.map((id, index) => [id, index]));
+
+function byPlace(a: LintFinding, b: LintFinding): number {
+  return a.range.offset - b.range.offset || SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity] || (RULE_ORDER.get(a.rule) ?? 0) - (RULE_ORDER.get(b.rule) ?? 0);
+}
+
+/** The report from a file's units: disks in order, machine sums, findings accepted and sorted. */
+export function assemble(context: FileContext, units: Units): FileReport {
+  const { mapping, document } = context;
+  const disks: DiskReport[] = [];
+  const machineReports: MachineReport[] = [];
+  const findings: LintFinding[] = [...units.other];
+  for (const unit of units.machines) {
+    const indices: number[] = [];
+    findings.push(...unit.valueFindings);
+    let total = 0n;
+    for (const disk of unit.disks) {
+      findings.push(...disk.findings);
+      if (!disk.result) continue;
+      indices.push(disks.length);
+      disks.push(disk.result.report);
+      total += disk.result.sizing.report.cacheMemoryTotal;
+    }
+    findings.push(...unit.ruleFindings);
+    const { machine } = unit;
+    const memory = machine.memory?.value;
+    machineReports.push({
+      name: machine.name,
+      named: machine.named,
+      pointer: machine.pointer,
+      range: machine.range,
+      memory,
+      budget: memory === undefined ? undefined : cacheBudgetOf(memory, mapping.cacheShareOfMemory),
+      cacheMemoryTotal: total,
+      disks: indices,
+    });
+  }
+  // Findings kept from an earlier update are judged again against today's comments.
+  for (const finding of findings) delete finding.accepted;
+  applyAcceptances(context, units.machines.map((u) => u.machine), findings);
+  findings.sort(byPlace);
+  return { path: document.path, disks, machines: machineReports, findings, parsed: true };
+}

@@ -1,0 +1,81 @@
+// Running the rules: each rule's disk hook once per sized disk, its machine hook once per machine,
+// and value problems turned into invalid-value findings. Rules report at a located value (or at the
+// disk or machine when none is named); the severity the file asks for is attached here.
+import type { DiskSizing, LayerCache } from '../core/cache';
+import type { DiskSpec, Located, MachineSpec, ValueProblem } from '../model/disks';
+import type { ImageChainFacts } from '../model/images';
+import { RULES, ruleOf } from '../rules';
+import type { DiskCheck, FindingInput, SizedDisk } from '../rules/types';
+import { headRange } from './documents';
+import type { FileContext } from './prepare';
+import type { LintFinding, MachineUnit } from './report';
+
+/** The image a disk names, as the caller read it. */
+export interface DiskImage {
+  path: string;
+  written: Located<string>;
+  facts: ImageChainFacts;
+  definitionDir: string;
+}
+
+export function valueProblemFindings(context: FileContext, problems: readonly ValueProblem[], into: LintFinding[]): void {
+  const rule = ruleOf('invalid-value');
+  for (const problem of problems) context.add(into, rule, { message: `${problem.field}: ${problem.message}`, pointer: problem.pointer, range: problem.range });
+}
+
+export function runDiskRules(
+  context: FileContext,
+  disk: DiskSpec,
+  sizing: DiskSizing,
+  top: LayerCache,
+  image: DiskImage | undefined,
+  machines: readonly MachineSpec[],
+  into: LintFinding[],
+): void {
+  const { mapping, document } = context;
+  const fix = context.fixHelpers(disk, machines);
+  for (const rule of RULES) {
+    if (!rule.checkDisk || context.severityOf(rule) === 'off') continue;
+    const report = (input: FindingInput) => {
+      const at = typeof input.at === 'string' ? disk.values[input.at] : input.at;
+      context.add(into, rule, {
+        message: input.message,
+        pointer: at?.pointer ?? disk.pointer,
+        range: at?.range ?? headRange(document, disk.range),
+        ...(input.fix ? { fix: input.fix } : {}),
+        ...(input.related ? { related: input.related } : {}),
+      });
+    };
+    const check: DiskCheck = {
+      disk, sizing, top, mapping, fix, report,
+      requestSize: disk.values.requestSize?.value ?? mapping.assume.requestSize,
+      pattern: disk.values.pattern?.value ?? mapping.assume.pattern,
+      profile: mapping.profile,
+      ...(image ? { image } : {}),
+    };
+    rule.checkDisk(check);
+  }
+}
+
+/** Runs the machine hooks over a machine's sized disks; the unit's rule findings are replaced. */
+export function runMachineRules(context: FileContext, unit: MachineUnit): void {
+  const { machine } = unit;
+  const sized: SizedDisk[] = unit.disks.flatMap((d) => (d.result ? [{ disk: d.disk, sizing: d.result.sizing }] : []));
+  const into: LintFinding[] = [];
+  unit.ruleFindings = into;
+  for (const rule of RULES) {
+    if (!rule.checkMachine || context.severityOf(rule) === 'off') continue;
+    rule.checkMachine({
+      machine, disks: sized, mapping: context.mapping,
+      report: (input) => {
+        const at = typeof input.at === 'object' ? input.at : undefined;
+        context.add(into, rule, {
+          message: input.message,
+          pointer: at?.pointer ?? machine.pointer,
+          range: at?.range ?? headRange(context.document, machine.range),
+          ...(input.related ? { related: input.related } : {}),
+        });
+      },
+    });
+  }
+}
