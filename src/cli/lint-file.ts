@@ -19,6 +19,11 @@ export interface LintRequest {
   images: boolean;
   /** Definition files above this many bytes are reported, not read (--file-size-limit). */
   fileSizeLimit: number;
+  /**
+   * The mapping file's text when it is not to be read from `mappingPath` (compare lints the base tree
+   * with the head's mapping, placed at the same spot in the base tree): threads load it from here.
+   */
+  mappingText?: string;
   /** --known FILE and --record-known FILE, as given. */
   known?: string;
   recordKnown?: string;
