@@ -8,7 +8,7 @@ import { stringifyJson } from '../core/json';
 import { fail, ok, type Outcome } from '../core/result';
 import { checkClusterSize, checkExtendedL2, checkSlice, DEFAULT_CLUSTER, guestBytesPerCacheEntry } from '../core/sizing';
 import { parseShare, parseSize } from '../core/units';
-import { formatShare as formatPercent, formatSize } from '../core/format';
+import { formatShare, formatSize } from '../core/format';
 import { FORMAT_NAMES } from '../trace/detect';
 import { checkSampleRate, measureTraces, type MeasureProgress } from '../trace/measure';
 import { curveReport, DEFAULT_TARGET_HIT_RATIO, type CurveReport } from '../trace/report';
@@ -197,21 +197,21 @@ export function renderCurveText(report: CurveReport): string {
   const rows = report.curve.map((p, i) => [
     formatSize(p.cacheBytes),
     `${count(p.entries)} entr${p.entries === 1 ? 'y' : 'ies'}`,
-    formatPercent(p.hitRatio),
+    formatShare(p.hitRatio),
     bar(p.hitRatio) + (i === report.curve.length - 1 ? '  working set' : ''),
   ]);
   lines.push(indent(renderColumns(rows)));
   if (report.at.length > 0) {
     lines.push('', 'sizes asked for');
-    lines.push(indent(renderColumns(report.at.map((p) => [formatSize(p.cacheBytes), `${count(p.entries)} entries`, formatPercent(p.hitRatio), `${estimate}${count(p.misses)} misses`]))));
+    lines.push(indent(renderColumns(report.at.map((p) => [formatSize(p.cacheBytes), `${count(p.entries)} entries`, formatShare(p.hitRatio), `${estimate}${count(p.misses)} misses`]))));
   }
   lines.push('');
-  const target = formatPercent(report.target.hitRatio);
+  const target = formatShare(report.target.hitRatio);
   if (report.target.reached) {
     lines.push(`Smallest L2 cache reaching ${target}: ${formatSize(report.target.cacheBytes)} (${count(Number(report.target.cacheBytes / g.cacheEntryBytes))} entries)`);
   } else {
     const best = report.curve.at(-1)?.hitRatio ?? 0;
-    lines.push(`No cache reaches ${target} on this trace: first touches always miss, so the best is ${formatPercent(best)} at the working set, ${formatSize(report.target.cacheBytes)}.`);
+    lines.push(`No cache reaches ${target} on this trace: first touches always miss, so the best is ${formatShare(best)} at the working set, ${formatSize(report.target.cacheBytes)}.`);
   }
   if (notes.length > 0) lines.push('', 'Notes', ...notes.map((n) => `  - ${n}`));
   lines.push('', 'Before changing a running system:', ...[CAUTIONS.tracePeriod, CAUTIONS.reopen, CAUTIONS.review].map((c) => `  - ${c}`), '');

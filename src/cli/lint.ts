@@ -1,6 +1,7 @@
 // `cachewright lint` (CONTRACTS.md §2): find the mapping file, pick the definition files, lint each
 // one (and fix it with --fix), print text, JSON or SARIF, and exit 0, 1 or 2 as the contract says.
-import { formatSize, parseSize, SIZE_UNITS_HELP } from '../core/units';
+import { formatSize } from '../core/format';
+import { parseSize, SIZE_UNITS_HELP } from '../core/units';
 import { DEFINITION_SIZE_LIMIT, MAX_FILE_SIZE_LIMIT } from '../files/open';
 import { lastOption, parseArgs, type OptionSpec } from './args';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';

@@ -23,31 +23,34 @@ export function formatSize(bytes: bigint): string {
 }
 
 /**
- * A share as percent with one decimal, rounded down so that anything short of the whole never reads
- * 100 %; a trailing ".0" is dropped ("6.2 %", "25 %", "100 %"). A share above 0 that rounds to 0
- * reads "under 0.1 %".
+ * A share as percent with one decimal (or `decimals`), rounded down so that anything short of the
+ * whole never reads 100 %; trailing zeros are dropped ("6.2 %", "25 %", "100 %"). A share above 0
+ * that rounds to 0 reads "under 0.1 %".
  */
-export function formatShare(share: number): string {
+export function formatShare(share: number, decimals = 1): string {
   if (!Number.isFinite(share) || share <= 0) return '0 %';
-  if (share >= 1) return share === 1 ? '100 %' : `${trimTenths(Math.floor(share * 1000 + 1e-9))} %`;
-  const tenths = Math.floor(share * 1000 + 1e-9);
-  if (tenths === 0) return 'under 0.1 %';
-  return `${trimTenths(tenths)} %`;
+  const scale = 10 ** decimals;
+  const units = Math.floor(share * 100 * scale + 1e-9);
+  if (share < 1 && units >= 100 * scale) return `${trimDecimals(100 * scale - 1, decimals)} %`;
+  if (units === 0) return `under ${1 / scale} %`;
+  return `${trimDecimals(units, decimals)} %`;
+}
+
+function trimDecimals(units: number, decimals: number): string {
+  const scale = 10 ** decimals;
+  const whole = Math.floor(units / scale);
+  const rest = (units % scale).toString().padStart(decimals, '0').replace(/0+$/, '');
+  return rest === '' ? whole.toLocaleString('en-US') : `${whole.toLocaleString('en-US')}.${rest}`;
 }
 
 /** part / whole as formatShare writes it, exactly for byte counts of any size. */
 export function formatPercent(part: bigint, whole: bigint): string {
-  if (whole <= 0n || part >= whole) return part === whole || whole <= 0n ? '100 %' : `${trimTenths(Number((part * 1000n) / whole))} %`;
+  if (whole <= 0n || part === whole) return '100 %';
   if (part <= 0n) return '0 %';
-  const tenths = (part * 1000n) / whole;
-  if (tenths === 0n) return 'under 0.1 %';
-  return `${trimTenths(Number(tenths))} %`;
-}
-
-function trimTenths(tenths: number): string {
-  const whole = Math.floor(tenths / 10);
-  const rest = tenths % 10;
-  return rest === 0 ? whole.toLocaleString('en-US') : `${whole.toLocaleString('en-US')}.${rest}`;
+  const tenths = Number((part * 1000n) / whole);
+  if (part > whole) return `${trimDecimals(tenths, 1)} %`;
+  if (tenths === 0) return 'under 0.1 %';
+  return `${trimDecimals(Math.min(tenths, 999), 1)} %`;
 }
 
 /** A count with thousands separators: "12,345". */

@@ -3,7 +3,7 @@
 // report of parse errors alone.
 import * as nodePath from 'node:path';
 import type { SourceRange } from '../core/results';
-import { formatSize } from '../core/units';
+import { formatSize } from '../core/format';
 import { readDefinition, type DefinitionDocument, type ReadResult } from '../model/document';
 import { extractMachines, type Extraction, type MachineSpec } from '../model/disks';
 import type { Mapping } from '../model/mapping';

@@ -1,5 +1,5 @@
 import { maxOf, minimumL2Cache, minimumRefcountCache } from '../core/sizing';
-import { formatPercent } from '../core/units';
+import { formatShare } from '../core/format';
 import { size } from './format';
 import { readableCacheSize } from './measured';
 import { TRACE_CAUTION } from './trace-unreadable';
@@ -19,10 +19,10 @@ export const l2CacheAboveWorkingSet: Rule<'l2-cache-above-working-set'> = {
     if (!curve || top.l2Source === 'default') return;
     const workingSet = maxOf(curve.workingSet, minimumL2Cache(top.entrySize));
     if (top.l2 <= WORKING_SET_HEADROOM * workingSet) return;
-    const sampled = curve.sampleRate < 1 ? ` (estimated from a ${formatPercent(curve.sampleRate, 2)} sample)` : '';
+    const sampled = curve.sampleRate < 1 ? ` (estimated from a ${formatShare(curve.sampleRate, 2)} sample)` : '';
     const message =
       `the L2 cache of ${size(top.l2)} is ${Number((top.l2 * 10n) / workingSet) / 10}x the ${size(curve.workingSet)} of cache entries the trace touched${sampled}: ` +
-      `${size(top.l2 - workingSet)} of it held nothing the traced workload used (it hits ${formatPercent(curve.hitRatioAt(workingSet))} with the working set alone). ${TRACE_CAUTION}`;
+      `${size(top.l2 - workingSet)} of it held nothing the traced workload used (it hits ${formatShare(curve.hitRatioAt(workingSet))} with the working set alone). ${TRACE_CAUTION}`;
     const lowered = readableCacheSize(workingSet, top.entrySize);
     const { combinedCache, l2Cache, refcountCache } = disk.values;
     if (combinedCache && !l2Cache) {

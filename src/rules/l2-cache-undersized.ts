@@ -1,6 +1,6 @@
 import { l2CoveredBytes, minimumRefcountCache } from '../core/sizing';
 import { measuredTarget, type MeasuredTarget } from './measured';
-import { formatPercent } from '../core/units';
+import { formatShare } from '../core/format';
 import type { MeasuredCurve } from '../model/traces';
 import { TRACE_CAUTION } from './trace-unreadable';
 import type { LayerCache } from '../core/cache';
@@ -22,12 +22,12 @@ function prediction(top: LayerCache, pattern: string, requestSize: bigint): stri
 }
 
 function measuredText(curve: MeasuredCurve, effective: bigint, target: number, measured: MeasuredTarget): string {
-  const sampled = curve.sampleRate < 1 ? `, estimated from a ${formatPercent(curve.sampleRate, 2)} sample` : '';
+  const sampled = curve.sampleRate < 1 ? `, estimated from a ${formatShare(curve.sampleRate, 2)} sample` : '';
   const requests = curve.requests.toLocaleString('en-US');
   const goal = measured.reached
-    ? `${size(measured.cacheBytes)} reaches the ${formatPercent(target)} target`
-    : `no cache reaches ${formatPercent(target)} on it (first touches always miss); ${size(measured.cacheBytes)} holds all ${size(curve.workingSet)} it touched`;
-  return `On the measured trace (${requests} requests${sampled}) it hits ${formatPercent(curve.hitRatioAt(effective))} of L2 lookups; ${goal}.`;
+    ? `${size(measured.cacheBytes)} reaches the ${formatShare(target)} target`
+    : `no cache reaches ${formatShare(target)} on it (first touches always miss); ${size(measured.cacheBytes)} holds all ${size(curve.workingSet)} it touched`;
+  return `On the measured trace (${requests} requests${sampled}) it hits ${formatShare(curve.hitRatioAt(effective))} of L2 lookups; ${goal}.`;
 }
 
 export const l2CacheUndersized: Rule<'l2-cache-undersized'> = {
@@ -57,7 +57,7 @@ export const l2CacheUndersized: Rule<'l2-cache-undersized'> = {
       const measured = measuredTarget(curve, target, top.entrySize);
       if (top.l2 >= measured.cacheBytes) return;
       const message = `${coverage} ${measuredText(curve, top.l2, target, measured)} ${TRACE_CAUTION}`;
-      const primary = setL2(measured.cacheBytes, measured.reached ? `reaches ${formatPercent(target)} on the measured trace` : 'the working set of the measured trace');
+      const primary = setL2(measured.cacheBytes, measured.reached ? `reaches ${formatShare(target)} on the measured trace` : 'the working set of the measured trace');
       const full = setL2(need, 'full coverage');
       report({ ...(at ? { at } : {}), message, ...(primary ? { fix: primary } : {}), ...(full ? { alternatives: [full] } : {}) });
       return;
