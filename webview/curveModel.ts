@@ -147,7 +147,7 @@ function seriesOf(id: SeriesId, curve: CacheCurve, inUse: boolean, minBytes: big
   const steps = points.map((p, i) => `${i === 0 ? 'M' : 'L'}${p.x},${p.y}`);
   const last = points[points.length - 1];
   if (last && last.cacheBytes < maxBytes) steps.push(`L${round2(xOf(maxBytes, minBytes, maxBytes))},${last.y}`);
-  const label = id === 'table' ? `whole L2 tables (${formatSize(curve.entrySize)})` : `${formatSize(curve.entrySize)} slices`;
+  const label = id === 'table' ? `whole L2 tables (${formatSize(curve.entrySize)})` : `${formatSize(curve.entrySize)} cache entries`;
   return { id, label, entrySize: curve.entrySize, inUse, fullCoverageBytes: curve.fullCoverageBytes, points, path: steps.join(' ') };
 }
 

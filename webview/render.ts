@@ -134,7 +134,7 @@ function diskRows(disk: DiskView, sizing: SizingReport, entrySize: bigint, was?:
     { field: 'virtualSize', label: 'Virtual size', value: sizing.virtualSize, kind: 'size' },
     { field: 'clusterSize', label: 'Cluster size', value: sizing.clusterSize, was: was?.sizing.clusterSize, kind: 'size' },
     { field: 'l2EntryBytes', label: 'L2 entry', value: `${sizing.l2EntryBytes} B${disk.extendedL2 ? ' (extended L2)' : ''}`, kind: 'text' },
-    { field: 'entrySize', label: 'Cache entry', value: `${formatSize(entrySize)}${wholeTable ? ' (whole L2 table)' : ' (slice)'}`, was: was && was.entrySize !== entrySize ? `${formatSize(was.entrySize)}` : undefined, kind: 'text' },
+    { field: 'entrySize', label: 'Cache entry size', value: `${formatSize(entrySize)}${wholeTable ? ' (a whole L2 table)' : ' (part of an L2 table)'}`, was: was && was.entrySize !== entrySize ? `${formatSize(was.entrySize)}` : undefined, kind: 'text' },
     { field: 'l2FullCoverage', label: 'L2 cache for full coverage', value: sizing.l2FullCoverage, was: was?.sizing.l2FullCoverage, kind: 'size', hint: 'One 8-byte (16 with extended L2) entry per cluster of the virtual disk, in whole cache entries' },
     { field: 'l2Configured', label: 'Configured L2 cache', value: l2Text(configuredL2), was: wasConfiguredL2 !== configuredL2 ? l2Text(wasConfiguredL2) : undefined, kind: configuredL2 === undefined ? 'text' : 'size' },
     { field: 'l2Effective', label: 'Effective L2 cache', value: sizing.l2Effective, was: was?.sizing.l2Effective, kind: 'size', hint: 'What the driver really uses: configured, else its default, never above full coverage' },
@@ -197,7 +197,7 @@ function whatIfControls(disk: DiskView, values: WhatIfValues, result: WhatIfResu
     return wrap;
   };
   const controls = el('div', 'controls');
-  controls.append(labelled('Cluster size', clusterPick), labelled('Cache entry', slicePick), l2Field, fullButton);
+  controls.append(labelled('Cluster size', clusterPick), labelled('Cache entry size', slicePick), l2Field, fullButton);
   box.append(controls, l2Error);
   for (const problem of result.problems) box.append(el('p', 'problem', problem));
 

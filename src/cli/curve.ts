@@ -174,14 +174,14 @@ export function renderCurveText(report: CurveReport): string {
   const g = report.geometry;
   const sampled = report.sampleRate < 1;
   const estimate = sampled ? '~' : '';
-  const entryKind = g.cacheEntryBytes === g.clusterSize ? 'whole L2 tables' : 'L2 table slices';
+  const entryKind = g.cacheEntryBytes === g.clusterSize ? 'a whole L2 table' : 'part of an L2 table';
   const maps = guestBytesPerCacheEntry(g.clusterSize, g.l2EntryWidth === 16n, g.cacheEntryBytes);
   const t = report.trace;
   const formatName = t.format === 'mixed' ? 'mixed formats' : FORMAT_NAMES[t.format];
   const lines: string[] = [
     `Measured L2 cache hit ratio from ${t.files.length === 1 ? t.files[0] : `${t.files.length} trace files`} (${formatName})`,
     `  disk        ${formatSize(g.virtualSize)} virtual, ${formatSize(g.clusterSize)} clusters, ${g.l2EntryWidth}-byte L2 entries`,
-    `  cache entry ${formatSize(g.cacheEntryBytes)} (${entryKind}), each maps ${formatSize(maps)} of the disk`,
+    `  cache entry size ${formatSize(g.cacheEntryBytes)} (${entryKind}), each maps ${formatSize(maps)} of the disk`,
     `  requests    ${count(t.requests)} looked up, ${count(report.lookups)} cache lookups`,
     `  first use   ${estimate}${count(report.firstTouches)} lookups touch an entry for the first time (always misses)`,
     `  working set ${estimate}${count(report.entriesTouched)} entries = ${formatSize(report.workingSet)} of L2 cache`,

@@ -5,10 +5,8 @@ import * as fs from 'node:fs';
 import * as nodePath from 'node:path';
 import { randomBytes } from 'node:crypto';
 import { lintDocument, type FileReport, type Finding, type LintOptions, type Mapping } from '../lint';
-import { applyEdits, nonOverlapping } from '../model/edits';
+import { applyEdits, FIX_PASSES, nonOverlapping } from '../model/edits';
 
-/** Fixes that touch the same map need a fresh lint in between; a handful of passes is plenty. */
-export const MAX_FIX_PASSES = 10;
 
 export interface FixOutcome {
   /** The text after every fix that could be applied (the input text when none could). */
@@ -21,7 +19,7 @@ export interface FixOutcome {
   withheld?: string;
 }
 
-/** A suppressed finding was reviewed and accepted as it is: fixing it would undo that decision. */
+/** An accepted finding was reviewed and kept as it is: fixing it would undo that decision. */
 const wantsFix = (finding: Finding): boolean => finding.fix !== undefined && finding.fix.edits.length > 0 && !finding.accepted;
 
 /**
@@ -35,7 +33,7 @@ export function fixText(path: string, text: string, mapping: Mapping, first?: Fi
   let applied = 0;
   if (!report.parsed) return { text, report, applied };
   const seen = new Set<string>([current]);
-  for (let pass = 0; pass < MAX_FIX_PASSES; pass++) {
+  for (let pass = 0; pass < FIX_PASSES; pass++) {
     const { chosen } = nonOverlapping(report.findings.filter(wantsFix).map((f) => f.fix as NonNullable<Finding['fix']>));
     if (chosen.length === 0) break;
     const next = applyEdits(current, chosen.flatMap((fix) => fix.edits));

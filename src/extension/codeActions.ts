@@ -1,7 +1,7 @@
 // Quick fixes and "fix all" from the findings' own fix edits: the very edits the CLI's --fix applies.
 import * as vscode from 'vscode';
 import type { Finding, Fix } from '../lint';
-import { nonOverlapping } from '../model/edits';
+import { FIX_PASSES, nonOverlapping } from '../model/edits';
 import { SOURCE, ruleOf } from './diagnostics';
 import { toRange, workspaceEdit } from './edits';
 import type { Linting } from './linting';
@@ -45,7 +45,7 @@ export class CachewrightCodeActions implements vscode.CodeActionProvider {
     if (!context.only || wantsFixAll || context.only.contains(vscode.CodeActionKind.Source)) {
       const { fixes } = fixAllEdits(result.report.findings);
       if (fixes.length > 0) {
-        const action = new vscode.CodeAction(`cachewright: apply ${fixes.length} safe fix${fixes.length > 1 ? 'es' : ''} in this file`, FIX_ALL_KIND);
+        const action = new vscode.CodeAction(`cachewright: apply ${fixes.length} fix${fixes.length > 1 ? 'es' : ''} in this file`, FIX_ALL_KIND);
         action.edit = workspaceEdit(document, fixes.flatMap((f) => f.edits));
         actions.push(action);
       }
@@ -60,7 +60,7 @@ export class CachewrightCodeActions implements vscode.CodeActionProvider {
  */
 export async function fixAllInDocument(linting: Linting, document: vscode.TextDocument): Promise<number> {
   let applied = 0;
-  for (let pass = 0; pass < 5; pass++) {
+  for (let pass = 0; pass < FIX_PASSES; pass++) {
     const result = linting.fresh(document);
     if (!result) break;
     const { fixes, deferred } = fixAllEdits(result.report.findings);

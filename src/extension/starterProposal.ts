@@ -19,6 +19,8 @@ export interface StarterProposal {
   text: string;
   /** A short description for the confirmation prompt. */
   summary: string;
+  /** Fields read from a key whose name does not say what it holds: field -> why it was guessed so. */
+  guessed: Record<string, string>;
 }
 
 const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
@@ -28,15 +30,23 @@ const SIZE_KEY = /^(size|capacity|virtualsize|disksize|vsize|sizebytes|volumesiz
 const CLUSTER_KEY = /cluster|^block$|^blocksize$|^granularity$/;
 const CACHE_KEY = /l2|refcount|cache/;
 
-/** Field name -> key patterns, most specific first; a key is used for one field only. */
-const DISK_FIELD_KEYS: Array<[string, RegExp]> = [
+/**
+ * Field name -> key pattern, most specific first; a key is used for one field only. A third element
+ * marks a guess: the key's name does not say what the value means, so the proposal says what it
+ * assumed (a bare `cache` is read as the L2 cache, as `cachewright size --cache` reads it).
+ */
+type FieldKey = [field: string, key: RegExp, guess?: string];
+const DISK_FIELD_KEYS: FieldKey[] = [
   ['cacheEntrySize', /slice|entrysize/],
   ['refcountCache', /refcount/],
   ['l2Cache', /^l2(cache)?(size)?$|^l2cache/],
-  ['combinedCache', /^(cache|cachesize|totalcache|combinedcache)$/],
+  ['combinedCache', /^(combinedcache|cachecombined|totalcache|cachetotal)$/],
+  ['l2Cache', /^(cache|cachesize)$/, 'read as the L2 cache; if it holds the L2 and refcount caches together, map it as combinedCache'],
+  ['combinedCache', /^(total|combined)$/, 'read as the combined (L2 + refcount) cache'],
   ['cleanupInterval', /cleanup|sweep|^interval$/],
   ['extendedL2', /extended|subcluster/],
-  ['clusterSize', CLUSTER_KEY],
+  ['clusterSize', /cluster/],
+  ['clusterSize', /^block$|^blocksize$|^granularity$/, 'read as the cluster size'],
   ['size', SIZE_KEY],
   ['name', /^(name|label|id|device|dev|target|disk)$/],
   ['format', /^(format|kind|type|imageformat)$/],
@@ -45,7 +55,7 @@ const DISK_FIELD_KEYS: Array<[string, RegExp]> = [
   ['requestSize', /request|iosize|writesize|blocksizeio/],
   ['pattern', /pattern|workload|access/],
 ];
-const MACHINE_FIELD_KEYS: Array<[string, RegExp]> = [
+const MACHINE_FIELD_KEYS: FieldKey[] = [
   ['memory', /^(memory|ram|mem|memorysize|memorymb|memorygb)$/],
   ['name', /^(name|hostname|host|id|vm|machine)$/],
 ];
@@ -95,18 +105,20 @@ function flatKeys(object: Record<string, unknown>, depth: number, prefix: string
   return out;
 }
 
-function nameFields(objects: Array<Record<string, unknown>>, table: Array<[string, RegExp]>, skip: ReadonlySet<string> = new Set()): Record<string, string> {
+function nameFields(objects: Array<Record<string, unknown>>, table: FieldKey[], skip: ReadonlySet<string> = new Set(), guessed: Record<string, string> = {}): Record<string, string> {
   const seen = new Map<string, string[]>();
   for (const object of objects) for (const keys of flatKeys(object, 2)) if (!skip.has(keys[0] ?? '')) seen.set(keys.join('\u0000'), keys);
   const fields: Record<string, string> = {};
   const used = new Set<string>();
-  for (const [field, pattern] of table) {
+  for (const [field, pattern, guess] of table) {
+    if (fields[field] !== undefined) continue;
     // Shallow keys first: `size` beats `io.size`.
     const candidates = [...seen.values()].filter((k) => !used.has(k.join('\u0000')) && pattern.test(norm(k.at(-1) ?? ''))).sort((a, b) => a.length - b.length);
     const pick = candidates[0];
     if (!pick) continue;
     used.add(pick.join('\u0000'));
     fields[field] = memberSelector(pick);
+    if (guess) guessed[field] = `"${pick.join('.')}" ${guess}`;
   }
   return fields;
 }
@@ -144,7 +156,8 @@ export function proposeMapping(data: unknown, relativePath: string): StarterProp
     machineObjects = isRecord(data) ? [data] : [];
   }
   const diskArrayKey = disksGroup.shape[star + 1];
-  const diskFields = nameFields(disksGroup.objects, DISK_FIELD_KEYS);
+  const guessed: Record<string, string> = {};
+  const diskFields = nameFields(disksGroup.objects, DISK_FIELD_KEYS, new Set(), guessed);
   const machineFields = nameFields(machineObjects, MACHINE_FIELD_KEYS, new Set(typeof diskArrayKey === 'string' ? [diskArrayKey] : []));
   const include = includeFor(relativePath);
 
@@ -161,7 +174,9 @@ export function proposeMapping(data: unknown, relativePath: string): StarterProp
     for (const [field, selector] of Object.entries(machineFields)) lines.push(`    ${field}: ${q(selector)}`);
   }
   lines.push('  disk:');
-  for (const [field, selector] of Object.entries(diskFields)) lines.push(`    ${field}: ${q(selector)}`);
+  for (const [field, selector] of Object.entries(diskFields)) {
+    lines.push(`    ${field}: ${q(selector)}${guessed[field] ? `   # guessed: ${guessed[field]}` : ''}`);
+  }
   lines.push(
     'assume:                 # used where a definition is silent',
     '  clusterSize: 64K',
@@ -173,6 +188,7 @@ export function proposeMapping(data: unknown, relativePath: string): StarterProp
     '',
   );
   const found = Object.keys(diskFields).join(', ') || 'no fields';
-  const summary = `${machines ? `machines ${machines}, ` : ''}disks ${disks}; disk fields: ${found}${machineFields.memory ? `; machine memory ${machineFields.memory}` : ''}`;
-  return { machines, disks, machineFields, diskFields, include, text: lines.join('\n'), summary };
+  const guesses = Object.keys(guessed);
+  const summary = `${machines ? `machines ${machines}, ` : ''}disks ${disks}; disk fields: ${found}${machineFields.memory ? `; machine memory ${machineFields.memory}` : ''}${guesses.length > 0 ? `; guessed from the key name alone: ${guesses.join(', ')} (see the comments)` : ''}`;
+  return { machines, disks, machineFields, diskFields, include, text: lines.join('\n'), summary, guessed };
 }

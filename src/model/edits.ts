@@ -6,6 +6,12 @@ import type { TextEdit } from '../core/results';
 import { formatSizeExact, sizeStyleOf, type SizeStyle } from '../core/units';
 import { keyText, type DefinitionDocument } from './document';
 
+/**
+ * How many rounds of "apply the fixes that do not overlap, lint again" a fix-all runs (CLI --fix and
+ * the editor's fix-all alike): fixes that touch the same map need a fresh lint in between.
+ */
+export const FIX_PASSES = 10;
+
 export type NewValue = { kind: 'size'; bytes: bigint } | { kind: 'interval'; seconds: number } | { kind: 'boolean'; value: boolean };
 
 /** The style a file uses for sizes: the first size written with a unit, else plain bytes. */

@@ -14,11 +14,11 @@ const at = (disk: string, extra: Partial<RuleCase> = {}): Omit<RuleCase, 'name'>
 const cases = {
   reaches: at(`size: 1T\ncache: { l2: 4M }\n${TRACE}`),
   short: at(`size: 1T\ncache: { l2: 1M }\n${TRACE}`, {
-    findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['maps 8 GiB of this 1 TiB disk', 'On the measured trace (20,000 requests) it hits 0.0%', '4 MiB reaches the 99.0% target', 'trace shows only the period'] }],
+    findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['maps 8 GiB of this 1 TiB disk', 'On the measured trace (20,000 requests) it hits 0 %', '4 MiB reaches the 99 % target', 'trace shows only the period'] }],
   }),
   unreachable: at(`size: 1T\ncache: { l2: 1M }\n${TRACE}`, {
     mapping: { assume: { targetHitRatio: '99.9%' } },
-    findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['no cache reaches 99.9% on it', '4 MiB holds all 4 MiB it touched'] }],
+    findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['no cache reaches 99.9 % on it', '4 MiB holds all 4 MiB it touched'] }],
   }),
   defaultCache: at(`size: 16T\n${TRACE}`),
 };
@@ -41,7 +41,7 @@ describe(`rule ${RULE} with a trace: the fixes and figures`, () => {
   before(() => traces.load(Object.values(cases)));
   it('offers full coverage beside the measured target', () => {
     const [finding] = findingsOf(lintCase(cases.short), RULE);
-    assert.match(finding?.fix?.title ?? '', /4 MiB \(reaches 99\.0% on the measured trace\)/);
+    assert.match(finding?.fix?.title ?? '', /4 MiB \(reaches 99 % on the measured trace\)/);
     assert.equal(finding?.fix?.edits[0]?.text, '4M');
     assert.equal(finding?.alternatives?.length, 1);
     assert.match(finding?.alternatives?.[0]?.title ?? '', /128 MiB \(full coverage\)/);

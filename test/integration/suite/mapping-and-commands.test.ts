@@ -138,6 +138,10 @@ describe('commands, status bar and panel', () => {
     assert.equal(proposal.diskFields.size, '$.capacity');
     assert.equal(proposal.diskFields.clusterSize, '$.block');
     assert.equal(proposal.diskFields.l2Cache, '$.tuning.l2');
+    assert.equal(proposal.diskFields.combinedCache, '$.tuning.total');
+    assert.match(proposal.guessed.combinedCache ?? '', /combined \(L2 \+ refcount\) cache/);
+    assert.match(proposal.text, /combinedCache: "\$\.tuning\.total" +# guessed: /);
+    assert.match(proposal.summary, /guessed from the key name alone: clusterSize, combinedCache/);
     assert.equal(proposal.diskFields.name, '$.label');
     assert.equal(proposal.machineFields.memory, '$.ram');
     assert.equal(proposal.machineFields.name, '$.hostname');
