@@ -106,7 +106,7 @@ function numbersTable(rows: Row[]): HTMLElement {
 function findingList(findings: FindingView[], actions: PanelActions): HTMLElement {
   const list = el('ul', 'findings');
   for (const finding of findings) {
-    const item = el('li', `finding severity-${finding.severity}${finding.accepted ? ' suppressed' : ''}`);
+    const item = el('li', `finding severity-${finding.severity}${finding.accepted ? ' accepted' : ''}`);
     item.dataset.rule = finding.rule;
     // Plain elements rather than the toolkit's tag/badge, whose templates write style attributes
     // that the panel's content security policy refuses.
@@ -116,7 +116,7 @@ function findingList(findings: FindingView[], actions: PanelActions): HTMLElemen
     message.title = `${finding.severity} at line ${finding.range.line}, column ${finding.range.column}${finding.fixTitle ? ` — fix: ${finding.fixTitle}` : ''}`;
     message.addEventListener('click', () => actions.reveal(finding));
     item.append(el('span', 'severity', finding.severity), tag, message);
-    if (finding.accepted) item.append(el('span', 'suppressed-reason', `accepted: ${finding.accepted}`));
+    if (finding.accepted) item.append(el('span', 'accepted-reason', `accepted: ${finding.accepted}`));
     list.append(item);
   }
   return list;

@@ -11,14 +11,14 @@ declare const CACHEWRIGHT_VERSION: string | undefined;
 const VERSION = typeof CACHEWRIGHT_VERSION === 'string' ? CACHEWRIGHT_VERSION : '0.2.0';
 
 /** Every command: how to run it, its one-line summary for the main help, and its own help text. */
-interface Command {
+export interface Command {
   synopsis: string;
   summary: string;
   usage: string;
   run: (argv: readonly string[], io: CommandIO) => number | Promise<number>;
 }
 
-const COMMANDS: Record<string, Command> = {
+export const COMMANDS: Readonly<Record<string, Command>> = {
   lint: { synopsis: 'lint [PATH...]', summary: 'check the qcow2 cache settings of VM definition files', usage: LINT_USAGE, run: (argv, io) => runLint(argv, io, VERSION) },
   size: { synopsis: 'size --size SIZE', summary: 'the cache sizing numbers of one disk', usage: SIZE_USAGE, run: runSize },
   inspect: { synopsis: 'inspect IMAGE...', summary: 'read qcow2 images and their backing chains (read-only)', usage: INSPECT_USAGE, run: (argv, io) => runInspect([...argv], io) },

@@ -28,7 +28,7 @@ export function applyAcceptances(context: FileContext, machines: readonly Machin
   for (const comment of comments) {
     const scope = scopes.filter((s) => s.line === comment.targetLine).sort((a, b) => a.pointer.length - b.pointer.length)[0];
     if (!scope) {
-      context.add(own, rule, { message: 'this suppression is not above a disk or machine, so it silences nothing', pointer: '', range: comment.range });
+      context.add(own, rule, { message: 'this accept comment is not above a disk or machine, so it accepts nothing', pointer: '', range: comment.range });
       continue;
     }
     for (const finding of findings) {

@@ -51,16 +51,16 @@ export function readSuppressions(document: DefinitionDocument, knownRules: Reado
     const reason = colon === -1 ? '' : body.slice(colon + 1).trim();
     const rules = ruleText.split(/[\s,]+/).filter(Boolean);
     if (rules.length === 0) {
-      problems.push({ message: 'this suppression names no rule; write "# cachewright-accept RULE: REASON"', range });
+      problems.push({ message: 'this accept comment names no rule; write "# cachewright-accept RULE: REASON"', range });
       continue;
     }
     const unknown = rules.filter((r) => !knownRules.has(r));
     if (unknown.length > 0) {
-      problems.push({ message: `this suppression names unknown rule${unknown.length > 1 ? 's' : ''} ${unknown.join(', ')}`, range });
+      problems.push({ message: `this accept comment names unknown rule${unknown.length > 1 ? 's' : ''} ${unknown.join(', ')}`, range });
       continue;
     }
     if (!reason) {
-      problems.push({ message: `this suppression of ${rules.join(', ')} gives no reason; write "# cachewright-accept ${rules.join(', ')}: REASON"`, range });
+      problems.push({ message: `this accept comment for ${rules.join(', ')} gives no reason; write "# cachewright-accept ${rules.join(', ')}: REASON"`, range });
       continue;
     }
     // A comment alone on its line applies to the next line with content; a trailing one to its own line.

@@ -5,7 +5,7 @@ import { docsPage, type Rule, type SizeField } from './types';
 export const cacheNotAligned: Rule<'cache-not-aligned'> = {
   id: 'cache-not-aligned',
   severity: 'warning',
-  description: 'A cache size is not a multiple of its entry size, so the driver rounds it.',
+  description: 'A cache size is not a multiple of its cache entry size, so the driver rounds it.',
   fixable: true,
   docs: docsPage('cache-not-aligned'),
   checkDisk({ disk, top, report, fix }) {

@@ -4,7 +4,7 @@ import { docsPage, type Rule } from './types';
 export const invalidSuppression: Rule<'invalid-suppression'> = {
   id: 'invalid-suppression',
   severity: 'warning',
-  description: 'A suppression comment names no rule, an unknown rule, or gives no reason.',
+  description: 'An accept comment names no rule, an unknown rule, or gives no reason.',
   fixable: false,
   docs: docsPage('invalid-suppression'),
 };
