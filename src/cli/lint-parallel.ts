@@ -11,6 +11,7 @@ import type { Mapping } from '../lint';
 import { loadMappingText, resolveMapping } from './lint-discovery';
 import { lintFile, type LintRequest } from './lint-file';
 import { ImageFacts } from './lint-images';
+import { TraceCurves } from './lint-traces';
 import type { Progress } from './lint-progress';
 import type { LintedFile } from './lint-results';
 
@@ -59,11 +60,12 @@ interface ShareResult {
 
 async function lintShare(files: readonly string[], mapping: Mapping, request: LintRequest, cwd: string, onFile: (file: LintedFile, notes: string[]) => void, yieldEvery = 0): Promise<ShareResult> {
   const images = new ImageFacts();
+  const traces = new TraceCurves();
   const notes: string[] = [];
   const out: LintedFile[] = [];
   for (const path of files) {
     const before = notes.length;
-    const file = await lintFile(path, mapping, request, images, notes, cwd);
+    const file = await lintFile(path, mapping, request, images, traces, notes, cwd);
     out.push(file);
     onFile(file, notes.slice(before));
     // let the other threads' progress messages in
