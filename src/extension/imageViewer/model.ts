@@ -9,7 +9,7 @@ import type { ImageReport } from '../../image';
 import {
   ERROR_KIND_WORDS,
   type CacheChoiceView, type ChainMemoryView, type ImageView, type LayerCachesView, type LayerView, type ViewState, type WalkProgressView,
-} from './protocol';
+} from '../../protocol/image-viewer';
 
 export interface ViewInput {
   seq: number;
