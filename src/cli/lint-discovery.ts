@@ -84,6 +84,11 @@ export function resolveMapping(cwd: string, config: string | undefined, paths: r
   } catch (error) {
     return fail(`${shown}: cannot read the mapping file: ${ioMessage(error)}`);
   }
+  return loadMappingText(text, mappingPath, shown);
+}
+
+/** A mapping file's text read as if it sat at `mappingPath`; problems as `path:line:col: message` lines. */
+export function loadMappingText(text: string, mappingPath: string, shown: string = mappingPath): Outcome<Mapping> {
   const load = loadMapping(text, mappingPath);
   if (!load.mapping) {
     const lines = load.problems.map((p) => `${shown}:${p.range.line}:${p.range.column}: ${p.message}`);

@@ -17,6 +17,11 @@ export interface LintRequest {
   allowWarnings?: number;
   errorsOnly: boolean;
   images: boolean;
+  /**
+   * The mapping file's text when it is not to be read from `mappingPath` (compare lints the base tree
+   * with the head's mapping, placed at the same spot in the base tree): threads load it from here.
+   */
+  mappingText?: string;
   /** --known FILE and --record-known FILE, as given. */
   known?: string;
   recordKnown?: string;

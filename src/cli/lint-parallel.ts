@@ -5,7 +5,7 @@
 import { availableParallelism } from 'node:os';
 import { isMainThread, parentPort, Worker, workerData } from 'node:worker_threads';
 import type { Mapping } from '../lint';
-import { resolveMapping } from './lint-discovery';
+import { loadMappingText, resolveMapping } from './lint-discovery';
 import { lintFile, type LintRequest } from './lint-file';
 import { ImageFacts } from './lint-images';
 import type { Progress } from './lint-progress';
@@ -119,7 +119,8 @@ async function serveShare(job: ShareJob): Promise<void> {
   const port = parentPort;
   if (!port) return;
   try {
-    const mapping = resolveMapping(job.cwd, job.request.mappingPath, job.request.paths);
+    const { mappingText, mappingPath } = job.request;
+    const mapping = mappingText !== undefined && mappingPath !== undefined ? loadMappingText(mappingText, mappingPath) : resolveMapping(job.cwd, mappingPath, job.request.paths);
     if (!mapping.ok) {
       port.postMessage({ type: 'failed', message: mapping.error } satisfies ShareMessage);
       return;

@@ -4,6 +4,7 @@ import { LINT_USAGE, runLint } from './lint';
 import { INSPECT_USAGE, runInspect } from './inspect';
 import { runSize, SIZE_USAGE } from './size';
 import { CURVE_USAGE, runCurve } from './curve';
+import { COMPARE_USAGE, runCompare } from './compare';
 import { EXIT_USAGE, processIO, type CommandIO } from './io';
 
 declare const CACHEWRIGHT_VERSION: string | undefined;
@@ -21,6 +22,7 @@ const COMMANDS: Record<string, Command> = {
   lint: { synopsis: 'lint [PATH...]', summary: 'check the qcow2 cache settings of VM definition files', usage: LINT_USAGE, run: (argv, io) => runLint(argv, io, VERSION) },
   size: { synopsis: 'size --size SIZE', summary: 'the cache sizing numbers of one disk', usage: SIZE_USAGE, run: runSize },
   inspect: { synopsis: 'inspect IMAGE...', summary: 'read qcow2 images and their backing chains (read-only)', usage: INSPECT_USAGE, run: (argv, io) => runInspect([...argv], io) },
+  compare: { synopsis: 'compare BASE HEAD', summary: 'what a change does to findings and cache memory (or --git REF [HEAD])', usage: COMPARE_USAGE, run: (argv, io) => runCompare(argv, io, VERSION) },
   curve: { synopsis: 'curve TRACE...', summary: 'measured L2 cache hit ratio at every cache size, from I/O traces', usage: CURVE_USAGE, run: runCurve },
 };
 

@@ -38,6 +38,9 @@ export interface MachineReport {
   pointer: string;
   range: SourceRange;
   memory?: bigint;
+  /** The hypervisor host it runs on, and where the definition says so. */
+  host?: string;
+  hostPointer?: string;
   budget?: bigint;
   cacheMemoryTotal: bigint;
   /** Indices into FileReport.disks. */
@@ -108,6 +111,7 @@ export function assemble(context: FileContext, units: Units): FileReport {
       pointer: machine.pointer,
       range: machine.range,
       memory,
+      ...(machine.host ? { host: machine.host.value, hostPointer: machine.host.pointer } : {}),
       budget: memory === undefined ? undefined : cacheBudgetOf(memory, mapping.cacheShareOfMemory),
       cacheMemoryTotal: total,
       disks: indices,

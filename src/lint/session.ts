@@ -135,6 +135,7 @@ export class LintSession {
     for (const machine of state.machines) {
       machine.range = shiftRange(machine.range, change, lines);
       if (machine.memory) machine.memory.range = shiftRange(machine.memory.range, change, lines);
+      if (machine.host) machine.host.range = shiftRange(machine.host.range, change, lines);
       for (const disk of machine.disks) if (disk !== old.disk) shiftDisk(disk, change, lines);
     }
     const value = valueAtPath(document.data, old.disk.path);

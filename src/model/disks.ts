@@ -70,6 +70,8 @@ export interface MachineSpec {
   range: SourceRange;
   node?: Node;
   memory?: Located<bigint>;
+  /** The hypervisor host the machine runs on. */
+  host?: Located<string>;
   disks: DiskSpec[];
   /** Whether the name comes from the definition or the file (else it depends on the machine's index). */
   named: boolean;
@@ -128,6 +130,8 @@ class Extractor {
     const fields = this.mapping.machineFields;
     const nameAt = this.raw(fields.name, path, value);
     const memory = this.typed('memory', this.raw(fields.memory, path, value), parseSize);
+    const host = this.typed('host', this.raw(fields.host, path, value), (v) =>
+      (typeof v === 'string' && v.trim() !== '') || typeof v === 'number' ? { ok: true, value: String(v).trim() } : { ok: false, error: `a host name must be a non-empty string, got ${JSON.stringify(v)}` });
     const hasName = nameAt !== undefined && (typeof nameAt.raw === 'string' || typeof nameAt.raw === 'number');
     const machine: MachineSpec = {
       name: hasName ? String(nameAt.raw) : this.mapping.machines ? `machine ${index + 1}` : this.document.path.split(/[\\/]/).pop() ?? 'machine',
@@ -137,6 +141,7 @@ class Extractor {
       range: place?.range ?? this.document.lines.range(0, 0),
       node: place?.node,
       memory,
+      ...(host ? { host } : {}),
       disks: [],
     };
     select(this.mapping.disks, value).forEach((match, i) => {

@@ -7,7 +7,7 @@ type ZodIssue = core.$ZodIssue;
 import { driverProfile, type DriverGeneration, type HostPlatform } from '../core/profiles';
 import type { SourceRange } from '../core/results';
 import { checkClusterSize, checkRefcountBits, DEFAULT_CLUSTER, DEFAULT_REFCOUNT_BITS } from '../core/sizing';
-import { parseSize } from '../core/units';
+import { parseShare, parseSize } from '../core/units';
 import { accessOfPattern } from '../core/workload';
 import { nodeAt, rangeOfNode, readDefinition, type DefinitionDocument } from './document';
 import { compileSelector, parseJsonPointer, toJsonPointer, valueAtPath, type PathSegment, type Selector } from './jsonpath';
@@ -39,6 +39,32 @@ export interface AcceptEntry {
   reason: string;
 }
 
+/** A hypervisor host's memory and the share of it the disk caches of its machines may take. */
+export interface HostBudget {
+  name: string;
+  memory: bigint;
+  cacheShare: number;
+  /** Named in the mapping's hosts list (else its memory is assume.hostMemory). */
+  listed: boolean;
+}
+
+export interface HostPlan {
+  listed: ReadonlyMap<string, HostBudget>;
+  /** assume.hostMemory: the memory of hosts the list does not name. */
+  assumedMemory?: bigint;
+  /** budget.hostCacheShareOfMemory (default 2%, common practice). */
+  cacheShare: number;
+}
+
+export const DEFAULT_HOST_CACHE_SHARE = 0.02;
+
+/** The budget of a host by name: listed, or assumed; undefined when the mapping knows no memory for it. */
+export function hostBudget(plan: HostPlan, name: string): HostBudget | undefined {
+  const listed = plan.listed.get(name);
+  if (listed) return listed;
+  return plan.assumedMemory === undefined ? undefined : { name, memory: plan.assumedMemory, cacheShare: plan.cacheShare, listed: false };
+}
+
 export interface Mapping {
   path: string;
   dir: string;
@@ -50,6 +76,7 @@ export interface Mapping {
   assume: Assumptions;
   profile: ReturnType<typeof driverProfile>;
   cacheShareOfMemory: number;
+  hosts: HostPlan;
   severities: Record<string, Severity | 'off'>;
   accept: AcceptEntry[];
   /** Whether a definition file (absolute path) is one this mapping lints. */
@@ -118,6 +145,35 @@ function writtenSelectors(data: unknown): [PathSegment[], string][] {
     for (const [name, value] of Object.entries(fields)) if (typeof value === 'string' && value !== '') found.push([['fields', group, name], value]);
   }
   return found;
+}
+
+/** The hosts list, assume.hostMemory and the host share, each problem at its own place. */
+function readHosts(file: MappingFile, at: (...path: PathSegment[]) => { pointer: string; range: SourceRange }, problems: MappingProblem[]): HostPlan {
+  const readShare = (raw: unknown, path: PathSegment[], fallback: number): number => {
+    if (raw === undefined) return fallback;
+    const read = parseShare(raw);
+    if (read.ok) return read.value;
+    problems.push({ message: `${path.join('.')}: ${read.error}`, ...at(...path) });
+    return fallback;
+  };
+  const cacheShare = readShare(file.budget?.hostCacheShareOfMemory, ['budget', 'hostCacheShareOfMemory'], DEFAULT_HOST_CACHE_SHARE);
+  let assumedMemory: bigint | undefined;
+  if (file.assume?.hostMemory !== undefined) {
+    const memory = parseSize(file.assume.hostMemory);
+    if (memory.ok && memory.value > 0n) assumedMemory = memory.value;
+    else problems.push({ message: `assume.hostMemory: ${memory.ok ? 'a host has more than 0 bytes of memory' : memory.error}`, ...at('assume', 'hostMemory') });
+  }
+  const listed = new Map<string, HostBudget>();
+  (file.hosts ?? []).forEach((entry, i) => {
+    if (listed.has(entry.name)) problems.push({ message: `hosts[${i}].name: "${entry.name}" is listed twice`, ...at('hosts', i, 'name') });
+    const memory = parseSize(entry.memory);
+    if (!memory.ok || memory.value === 0n) {
+      problems.push({ message: `hosts[${i}].memory: ${memory.ok ? 'a host has more than 0 bytes of memory' : memory.error}`, ...at('hosts', i, 'memory') });
+      return;
+    }
+    listed.set(entry.name, { name: entry.name, memory: memory.value, cacheShare: readShare(entry.cacheShare, ['hosts', i, 'cacheShare'], cacheShare), listed: true });
+  });
+  return { listed, ...(assumedMemory !== undefined ? { assumedMemory } : {}), cacheShare };
 }
 
 const byPosition = (problems: MappingProblem[]): MappingProblem[] => problems.sort((a, b) => a.range.offset - b.range.offset);
@@ -198,6 +254,8 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
     else problems.push({ message: `assume.refcountBits: ${bits.error}`, ...at('assume', 'refcountBits') });
   }
 
+  const hosts = readHosts(file, at, problems);
+
   const known = new Set(knownRuleIds);
   if (known.size > 0) {
     for (const rule of Object.keys(file.rules ?? {})) {
@@ -238,6 +296,7 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
     },
     profile: driverProfile(generation, platform),
     cacheShareOfMemory: file.budget?.cacheShareOfMemory ?? 0.05,
+    hosts,
     severities: file.rules ?? {},
     accept: (file.accept ?? []).map((entry) => ({
       rule: entry.rule,

@@ -13,7 +13,7 @@ export const DISK_FIELDS = [
   'cleanupInterval', 'extendedL2', 'image', 'backing', 'requestSize', 'pattern',
 ] as const;
 export type DiskField = (typeof DISK_FIELDS)[number];
-export const MACHINE_FIELDS = ['name', 'memory'] as const;
+export const MACHINE_FIELDS = ['name', 'memory', 'host'] as const;
 export type MachineField = (typeof MACHINE_FIELDS)[number];
 
 const diskFieldDescriptions: Record<DiskField, string> = {
@@ -37,8 +37,14 @@ const diskFields = z
   .object(Object.fromEntries(DISK_FIELDS.map((f) => [f, selector.optional().describe(diskFieldDescriptions[f])])) as Record<DiskField, z.ZodOptional<typeof selector>>)
   .strict();
 const machineFields = z
-  .object({ name: selector.optional().describe('The machine\'s name'), memory: selector.optional().describe('Guest RAM, used for the cache budget') })
+  .object({
+    name: selector.optional().describe('The machine\'s name'),
+    memory: selector.optional().describe('Guest RAM, used for the cache budget'),
+    host: selector.optional().describe('The name of the hypervisor host the machine runs on, used for the host budget'),
+  })
   .strict();
+// Read loosely here and exactly by the loader, like sizes.
+const share = z.union([z.number(), z.string().min(1)]).describe('A fraction such as 0.02, or a percentage such as "2%"');
 
 export const SEVERITY_SETTINGS = ['error', 'warning', 'info', 'off'] as const;
 
@@ -63,14 +69,30 @@ export const mappingSchema = z
         driver: z.enum(['current', 'legacy']).optional().describe('Which generation of driver defaults applies'),
         platform: z.enum(['linux', 'other']).optional().describe('Host platform whose defaults apply'),
         refcountBits: z.number().int().optional().describe('Refcount width of the images (default 16)'),
+        hostMemory: size.optional().describe('Memory of a host the hosts list does not name'),
       })
       .strict()
       .optional()
       .describe('Values used where a definition is silent'),
     budget: z
-      .object({ cacheShareOfMemory: z.number().gt(0).lte(1).optional().describe('Warn when a machine\'s caches exceed this share of its RAM') })
+      .object({
+        cacheShareOfMemory: z.number().gt(0).lte(1).optional().describe('Warn when a machine\'s caches exceed this share of its RAM'),
+        hostCacheShareOfMemory: share.optional().describe('Warn when the caches of all machines on a host exceed this share of its memory (default 2%)'),
+      })
       .strict()
       .optional(),
+    hosts: z
+      .array(
+        z
+          .object({
+            name: z.string().min(1).describe('The host name, as machines name it'),
+            memory: size.describe('The host\'s memory'),
+            cacheShare: share.optional().describe('This host\'s cache share, over budget.hostCacheShareOfMemory'),
+          })
+          .strict(),
+      )
+      .optional()
+      .describe('Hypervisor hosts and their memory, for the host-cache-budget rule'),
     rules: z.record(z.string(), z.enum(SEVERITY_SETTINGS)).optional().describe('Severity per rule id, or off'),
     accept: z
       .array(

@@ -9,6 +9,8 @@ export interface ReviewedDisk {
   named: boolean;
   pointer: string;
   sizing: SizingReport;
+  /** The cache settings the definition writes, as written. */
+  configured?: Readonly<Record<string, { raw: unknown } | undefined>>;
 }
 
 export interface ReviewedMachine {

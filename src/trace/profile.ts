@@ -26,7 +26,14 @@ export class HitProfile implements ProfileCounts {
   readonly sampleRate: number;
   /** cumulative[d]: sampled lookups with distance <= d. */
   private readonly cumulative: Float64Array;
-  private readonly sampledLookups: number;
+  /** Lookups the sampled ones stand for: all lookups times the rate. */
+  private readonly expected: number;
+  /**
+   * SHARDS-adj: the sample's share of lookups drifts from R when a few hot entries happen to be
+   * sampled (or not); the difference between expected and sampled lookups is added to the smallest
+   * distance, where those hot entries' lookups sit [SHARDS, section 4.3].
+   */
+  private readonly adjustment: number;
 
   constructor(distances: StackDistances, allLookups: number, sampleRate: number) {
     const histogram = distances.distanceHistogram();
@@ -36,7 +43,8 @@ export class HitProfile implements ProfileCounts {
       sum += histogram[d] as number;
       this.cumulative[d] = sum;
     }
-    this.sampledLookups = distances.lookups;
+    this.expected = sampleRate === 1 ? distances.lookups : allLookups * sampleRate;
+    this.adjustment = this.expected - distances.lookups;
     this.lookups = allLookups;
     this.sampleRate = sampleRate;
     this.firstTouches = sampleRate === 1 ? distances.firstTouches : Math.round(distances.firstTouches / sampleRate);
@@ -45,11 +53,16 @@ export class HitProfile implements ProfileCounts {
 
   /** Lookups that hit in a cache of `entries` entries, as a share of all lookups. */
   hitRatio(entries: number): number {
-    if (this.sampledLookups === 0) return 0;
+    if (this.expected === 0) return 0;
     const reach = Math.floor(entries * this.sampleRate + EPSILON);
     if (reach < 1) return 0;
     const index = Math.min(reach, this.cumulative.length) - 1;
-    return (this.cumulative[index] as number) / this.sampledLookups;
+    return Math.max(0, Math.min(1, ((this.cumulative[index] as number) + this.adjustment) / this.expected));
+  }
+
+  /** The smallest cache, in entries, a sampled curve resolves: one sampled distance stands for 1/R entries. */
+  get resolution(): number {
+    return Math.ceil(1 / this.sampleRate - EPSILON);
   }
 
   /** The best any cache reaches on this trace: every lookup but the first touches. */
@@ -60,7 +73,7 @@ export class HitProfile implements ProfileCounts {
   /** The smallest cache, in entries, whose hit ratio reaches `target`; undefined when none does. */
   smallestEntriesFor(target: number): number | undefined {
     if (target <= 0) return 1;
-    const needed = target * this.sampledLookups * (1 - 1e-12);
+    const needed = target * this.expected * (1 - 1e-12) - this.adjustment;
     // cumulative is non-decreasing: binary search the first distance whose count reaches the need.
     let low = 0;
     let high = this.cumulative.length;
@@ -69,7 +82,7 @@ export class HitProfile implements ProfileCounts {
       if ((this.cumulative[mid] as number) >= needed) high = mid;
       else low = mid + 1;
     }
-    if (low === this.cumulative.length || this.sampledLookups === 0) return undefined;
+    if (low === this.cumulative.length || this.expected === 0) return undefined;
     // Distance `low` hits once C * R >= low + 1.
     return Math.max(1, Math.ceil((low + 1) / this.sampleRate - EPSILON));
   }

@@ -59,7 +59,10 @@ export function curveReport(measured: MeasuredTrace, options: { at?: readonly bi
   const entryBytes = geometry.cacheEntryBytes;
   const point = (entries: number): CurvePointReport => ({ cacheBytes: BigInt(entries) * entryBytes, entries, hitRatio: profile.hitRatio(entries) });
   const curve: CurvePointReport[] = [];
-  for (let entries = 1; entries < profile.entriesTouched; entries *= 2) curve.push(point(entries));
+  // A sampled curve starts where it can tell sizes apart: 1/R entries.
+  let first = 1;
+  while (first < profile.resolution) first *= 2;
+  for (let entries = first; entries < profile.entriesTouched; entries *= 2) curve.push(point(entries));
   curve.push(point(Math.max(1, profile.entriesTouched)));
   const at = (options.at ?? []).map((cacheBytes) => {
     const entries = entriesIn(cacheBytes, entryBytes);

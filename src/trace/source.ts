@@ -2,7 +2,8 @@
 // Node's zlib when the file is gzip-compressed (told by its magic bytes 1f 8b, RFC 1952 §2.3.1, not
 // by its name). Never loaded whole.
 
-import { createReadStream, promises as fs } from 'node:fs';
+import { closeSync, createReadStream, readSync } from 'node:fs';
+import { errorCode, ioMessage, openChecked } from '../files/open';
 import { createGunzip } from 'node:zlib';
 import { fail, ok, type Outcome } from '../core/result';
 
@@ -19,44 +20,34 @@ export interface TraceBytes {
   close(): void;
 }
 
-/** Why a file cannot be opened, in words, from the system error code. */
+/** Why a file cannot be opened or read, in words. */
 export function describeFileError(error: unknown): string {
-  const code = (error as NodeJS.ErrnoException | undefined)?.code;
-  switch (code) {
-    case 'ENOENT':
-      return 'no such file';
-    case 'EACCES':
-    case 'EPERM':
-      return 'permission denied';
-    case 'EISDIR':
-      return 'it is a folder, not a file';
-    case 'Z_DATA_ERROR':
-    case 'Z_BUF_ERROR':
-      return `not a readable gzip stream (${error instanceof Error ? error.message : String(error)})`;
-    default:
-      return error instanceof Error ? error.message : String(error);
-  }
+  const code = errorCode(error);
+  if (code === 'Z_DATA_ERROR' || code === 'Z_BUF_ERROR') return `not a readable gzip stream (${error instanceof Error ? error.message : String(error)})`;
+  return ioMessage(error);
 }
 
 export async function openTraceBytes(path: string): Promise<Outcome<TraceBytes>> {
+  let fd: number;
   let totalBytes: number;
   let compressed: boolean;
   try {
-    const handle = await fs.open(path, 'r');
+    // A pipe, socket or device named as a trace is refused before it can block or never end.
+    const opened = openChecked(path);
+    fd = opened.fd;
+    totalBytes = opened.stat.size;
+    const magic = Buffer.alloc(2);
     try {
-      const stat = await handle.stat();
-      if (stat.isDirectory()) return fail('it is a folder, not a file');
-      totalBytes = stat.size;
-      const magic = Buffer.alloc(2);
-      const { bytesRead } = await handle.read(magic, 0, 2, 0);
+      const bytesRead = readSync(fd, magic, 0, 2, 0);
       compressed = bytesRead === 2 && magic[0] === 0x1f && magic[1] === 0x8b;
-    } finally {
-      await handle.close();
+    } catch (error) {
+      closeSync(fd);
+      throw error;
     }
   } catch (error) {
     return fail(describeFileError(error));
   }
-  const file = createReadStream(path, { highWaterMark: CHUNK_BYTES });
+  const file = createReadStream(path, { fd, start: 0, highWaterMark: CHUNK_BYTES });
   const chunks: AsyncIterable<Buffer> = compressed ? file.pipe(createGunzip({ chunkSize: CHUNK_BYTES })) : file;
   if (compressed) {
     // A read error on the file would otherwise not reach the gunzip stream being iterated.

@@ -2,6 +2,7 @@
 // flexible I/O tester's manual page, "Trace file format"), block-layer trace text (the dumper's manual
 // page, DEFAULT OUTPUT and RWBS), CSV (CONTRACTS.md §6); and every way a trace can be unusable.
 import { strict as assert } from 'node:assert';
+import { execFileSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
@@ -134,18 +135,20 @@ describe('trace readers: formats and unusable traces', function () {
   });
 
   const unusable: Array<[label: string, file: string, content: string | Buffer | undefined, expected: RegExp]> = [
-    ['a missing file', 'nothing.csv', undefined, /nothing\.csv: no such file/],
+    ['a missing file', 'nothing.csv', undefined, /nothing\.csv: no such file or directory/],
     ['an empty file', 'empty.csv', '', /empty\.csv: no usable request: the file holds no lines/],
     ['only a header', 'header.csv', 'offset,length\n', /header\.csv: no usable request/],
     ['a binary file', 'binary.csv', Buffer.from(Array.from({ length: 300_000 }, (_, i) => (i * 7919) % 251)), /binary\.csv: cannot tell the trace format/],
     ['only flushes', 'flushes.csv', '0,0\n0,4096,flush\n', /flushes\.csv: no usable request: no read, write or discard/],
     ['every request past the end', 'past.csv', '2097152,512\n', /past\.csv: no usable request: all 1 request run past the end of the 1 MiB disk/],
     ['a truncated gzip stream', 'truncated.csv', gzipSync('0,512\n'.repeat(1000)).subarray(0, 40), /truncated\.csv: not a readable gzip stream/],
-    ['a folder', '.', undefined, /\.: it is a folder, not a file/],
+    ['a folder', '.', undefined, /\.: is a directory, not a regular file/],
+    ['a named pipe', 'pipe.csv', undefined, /pipe\.csv: is a named pipe \(FIFO\), not a regular file/],
   ];
   for (const [label, file, content, expected] of unusable) {
     it(`${CONTRACT} ${label}: exit 2, the file named, no stack trace`, async () => {
       if (content !== undefined) write(file, content);
+      if (label === 'a named pipe') execFileSync('mkfifo', [join(folder.dir, file)]);
       const run = await curve(folder.dir, file, ...GEOMETRY);
       assert.equal(run.code, 2);
       assert.match(run.stderr, expected);
