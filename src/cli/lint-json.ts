@@ -31,7 +31,7 @@ function findingJson(run: LintRun, finding: Finding) {
     pointer: finding.pointer,
     ...position(finding.range),
     fix: finding.fix ? { title: finding.fix.title, edits: finding.fix.edits.map((e) => ({ offset: e.offset, length: e.length, text: e.text })) } : undefined,
-    related: finding.related?.map((r) => ({ message: r.message, pointer: r.pointer, ...position(r.range) })),
+    related: finding.related?.map((r) => ({ message: r.message, ...(r.file !== undefined ? { file: mappingRelative(run.mapping, r.file) } : {}), pointer: r.pointer, ...position(r.range) })),
     accepted: finding.accepted ? { reason: finding.accepted.reason } : undefined,
     baselineState: baselineOf(run, finding),
   };

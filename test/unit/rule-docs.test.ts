@@ -6,7 +6,7 @@ import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync } from 'node:f
 import { tmpdir } from 'node:os';
 import * as path from 'node:path';
 import { ImageFacts } from '../../src/cli/lint-images';
-import { lintDocument, loadMapping, RULES, type LintOptions } from '../../src/lint';
+import { lintDocument, lintHosts, loadMapping, RULES, type LintOptions } from '../../src/lint';
 import { parseSize } from '../../src/core/units';
 import { writeImage } from '../image/qcow2-writer';
 
@@ -72,7 +72,10 @@ describe('rule docs pages', () => {
           await facts.load([...found.text.matchAll(/file: (\S+)/g)].map((m) => path.join(dir as string, m[1] as string)));
           options = { images: facts.lookup };
         }
-        const report = lintDocument({ path: definition, text: found.text }, demoMapping(), options);
+        const mapping = demoMapping();
+        const report = lintDocument({ path: definition, text: found.text }, mapping, options);
+        // The cross-file step, over this one file (host rules report there).
+        lintHosts([{ path: definition, machines: report.machines, findings: report.findings }], mapping);
         if (dir) rmSync(dir, { recursive: true, force: true });
         const actual = report.findings.filter((f) => f.rule === rule.id).map((f) => ({ line: f.range.line, column: f.range.column }));
         assert.deepEqual(actual, found.places, report.findings.map((f) => `${f.rule} ${f.range.line}:${f.range.column}`).join('\n'));
