@@ -4,7 +4,7 @@
 import * as fs from 'node:fs';
 import * as nodePath from 'node:path';
 import type { Mapping } from '../lint';
-import { readRegularText } from '../files/open';
+import { DEFINITION_SIZE_LIMIT, readRegularText } from '../files/open';
 import { identify } from '../review/identity';
 import { compareWithKnown, entryOf } from '../review/known';
 import { compareRuns, type Comparison } from '../review/compare';
@@ -112,7 +112,7 @@ async function lintTree(io: CommandIO, mapping: Mapping, mappingText: string, la
   const selection = selectFiles(mapping, mapping.dir, []);
   // Image files are not part of a change's text and a checkout of the base has none: compare
   // reviews the definitions alone (lint reads the images).
-  const request: LintRequest = { paths: [], mappingPath: mapping.path, mappingText, format: 'json', fix: false, errorsOnly: false, images: false };
+  const request: LintRequest = { paths: [], mappingPath: mapping.path, mappingText, format: 'json', fix: false, errorsOnly: false, images: false, fileSizeLimit: DEFINITION_SIZE_LIMIT };
   const progress = startProgress(io, selection.files.length, `linting ${label}`);
   const linted = await lintFiles(selection.files, mapping, request, mapping.dir, progress);
   progress.done();

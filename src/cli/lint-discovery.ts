@@ -9,7 +9,7 @@ import tinyglobby = require('tinyglobby');
 import { loadMapping, type Mapping } from '../lint';
 import { DEFAULT_INCLUDE, MAPPING_FILE_NAMES } from '../model/mapping';
 import { fail, ok, type Outcome } from '../core/result';
-import { ioMessage, readRegularText } from '../files/open';
+import { ioMessage, MAPPING_SIZE_LIMIT, readRegularText } from '../files/open';
 
 /** Folders no one keeps definitions in; skipping them keeps the walk fast. */
 const NEVER_WALKED = ['**/node_modules/**', '**/.git/**'];
@@ -51,9 +51,6 @@ function isFile(path: string): boolean {
     return false;
   }
 }
-
-/** A mapping file is a page of settings; anything far larger is not one (and is not read whole). */
-const MAPPING_SIZE_LIMIT = 4 * 1024 * 1024;
 
 export const stripBom = (text: string): string => (text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
 

@@ -1,7 +1,7 @@
 // One definition file through `cachewright lint`: read it, lint it, fix it with --fix and write it
 // back. Shared by the command's own loop and its worker threads; never throws.
-import { lintPrepared, prepareDocument, type FileReport, type LintOptions, type Mapping } from '../lint';
-import { ioMessage, readRegularFile } from '../files/open';
+import { lintPrepared, oversizedFileReport, prepareDocument, type FileReport, type LintOptions, type Mapping } from '../lint';
+import { FileReadError, ioMessage, readRegularFile } from '../files/open';
 import { displayPath, stripBom } from './lint-discovery';
 import { encodeLike, fixText, writeFileAtomic } from './lint-fix';
 import type { ImageFacts } from './lint-images';
@@ -17,6 +17,8 @@ export interface LintRequest {
   allowWarnings?: number;
   errorsOnly: boolean;
   images: boolean;
+  /** Definition files above this many bytes are reported, not read (--file-size-limit). */
+  fileSizeLimit: number;
   /**
    * The mapping file's text when it is not to be read from `mappingPath` (compare lints the base tree
    * with the head's mapping, placed at the same spot in the base tree): threads load it from here.
@@ -31,8 +33,12 @@ export interface LintRequest {
 export async function lintFile(path: string, mapping: Mapping, request: LintRequest, images: ImageFacts, notes: string[], cwd: string): Promise<LintedFile> {
   let bytes: Buffer;
   try {
-    bytes = readRegularFile(path);
+    bytes = readRegularFile(path, { maxBytes: request.fileSizeLimit });
   } catch (error) {
+    if (error instanceof FileReadError && error.reason === 'too-large') {
+      const report = oversizedFileReport(path, BigInt(error.size ?? request.fileSizeLimit + 1), BigInt(request.fileSizeLimit), 'raise the limit with --file-size-limit SIZE to lint it');
+      return { path, report: viewOf(report), fixed: 0 };
+    }
     return { path, error: `cannot read: ${ioMessage(error)}`, fixed: 0 };
   }
   const decoded = bytes.toString('utf8');

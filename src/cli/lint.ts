@@ -1,5 +1,7 @@
 // `cachewright lint` (CONTRACTS.md §2): find the mapping file, pick the definition files, lint each
 // one (and fix it with --fix), print text, JSON or SARIF, and exit 0, 1 or 2 as the contract says.
+import { formatSize, parseSize, SIZE_UNITS_HELP } from '../core/units';
+import { DEFINITION_SIZE_LIMIT, MAX_FILE_SIZE_LIMIT } from '../files/open';
 import { lastOption, parseArgs, type OptionSpec } from './args';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { displayPath, resolveMapping, selectFiles } from './lint-discovery';
@@ -21,6 +23,7 @@ const OPTIONS: Record<string, OptionSpec> = {
   'allow-warnings': { value: true },
   'errors-only': { value: false },
   'no-images': { value: false },
+  'file-size-limit': { value: true },
   known: { value: true },
   'record-known': { value: true },
   help: { value: false },
@@ -30,7 +33,7 @@ const FORMATS: readonly LintFormat[] = ['text', 'json', 'sarif'];
 
 export const LINT_USAGE = `usage: cachewright lint [PATH...] [--mapping FILE] [--format text|json|sarif]
                      [--fix] [--allow-warnings N] [--errors-only] [--no-images]
-                     [--known FILE] [--record-known FILE]
+                     [--known FILE] [--record-known FILE] [--file-size-limit SIZE]
 
   PATH              definition files or folders (default: every file the mapping file includes);
                     a file named here is always checked, a folder only for the files the mapping includes
@@ -41,6 +44,8 @@ export const LINT_USAGE = `usage: cachewright lint [PATH...] [--mapping FILE] [-
   --allow-warnings  how many warnings may remain before the run counts as failed (default: any number)
   --errors-only     print errors only; warnings are still counted against --allow-warnings
   --no-images       leave the image files the definitions name unread (when they live elsewhere)
+  --file-size-limit definition files larger than this SIZE are not linted but reported as one
+                    error each (default 32M; sizes as in the mapping file, at most 256M)
   --known           a known-findings file: only findings not listed in it count toward the exit
                     status; listed ones that are gone are reported so the file can be trimmed
   --record-known    write every current finding to this known-findings file (sorted, stable)
@@ -74,7 +79,10 @@ function readRequest(argv: readonly string[], io: CommandIO): LintRequest | numb
     if (!/^\d+$/.test(allowedRaw) || !Number.isSafeInteger(Number(allowedRaw))) return usageError(io, `--allow-warnings needs a whole number of warnings (0 or more), not "${allowedRaw}"`);
     allowWarnings = Number(allowedRaw);
   }
+  const fileSizeLimit = readFileSizeLimit(lastOption(args, 'file-size-limit'));
+  if (typeof fileSizeLimit === 'string') return usageError(io, fileSizeLimit);
   return {
+    fileSizeLimit,
     paths: args.positionals,
     mappingPath: lastOption(args, 'mapping'),
     format: format as LintFormat,
@@ -85,6 +93,14 @@ function readRequest(argv: readonly string[], io: CommandIO): LintRequest | numb
     known: lastOption(args, 'known'),
     recordKnown: lastOption(args, 'record-known'),
   };
+}
+
+/** The --file-size-limit value in bytes, or why it cannot be one. */
+function readFileSizeLimit(raw: string | undefined): number | string {
+  if (raw === undefined) return DEFINITION_SIZE_LIMIT;
+  const size = parseSize(raw);
+  if (!size.ok || size.value < 1n || size.value > BigInt(MAX_FILE_SIZE_LIMIT)) return `--file-size-limit needs a size from 1 byte to ${formatSize(BigInt(MAX_FILE_SIZE_LIMIT))} (${SIZE_UNITS_HELP}), not "${raw}"`;
+  return Number(size.value);
 }
 
 /** --known and --record-known: an exit status when either file cannot be read or written. */

@@ -5,10 +5,10 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 // Loaded through require so the bundle takes the package's CommonJS build.
 import tinyglobby = require('tinyglobby');
-import { LintSession, type FileReport, type Mapping } from '../lint';
+import { LintSession, oversizedFileReport, type FileReport, type Mapping } from '../lint';
 import { ImageFactsCache } from './images';
 import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
-import { isMappingFileName, Mappings, readText } from './mappings';
+import { isMappingFileName, Mappings, readDefinitionText } from './mappings';
 import { readSettings } from './settings';
 
 export interface LintResult {
@@ -45,6 +45,8 @@ export class Linting implements vscode.Disposable {
   /** Fires after the mapping files were reloaded. */
   readonly onDidReloadMappings = this.mappingEmitter.event;
   private readonly disposables: vscode.Disposable[] = [];
+  /** Files above the size limit whose user has been told so (once per file and session). */
+  private readonly toldTooLarge = new Set<string>();
 
   /** Image facts for the image rules; only in a trusted workspace (untrusted: the text alone). */
   private images = vscode.workspace.isTrusted ? new ImageFactsCache() : undefined;
@@ -135,6 +137,9 @@ export class Linting implements vscode.Disposable {
   }
 
   private lint(uri: vscode.Uri, text: string, version: number | undefined, mapping: Mapping, imagesChanged = false): LintResult {
+    const limit = readSettings(uri).fileSizeLimit;
+    // UTF-16 length <= UTF-8 bytes <= 3 x length: count the bytes only near the limit.
+    if (text.length > limit || (text.length * 3 > limit && Buffer.byteLength(text, 'utf8') > limit)) return this.tooLarge(uri, Buffer.byteLength(text, 'utf8'), limit, version, mapping);
     const started = Date.now();
     const session = this.sessionFor(uri, mapping);
     if (imagesChanged) session.reset();
@@ -158,6 +163,25 @@ export class Linting implements vscode.Disposable {
     return result;
   }
 
+  /**
+   * A definition above the size limit is not linted (the document model would need many times its
+   * size): one error at its start says why, and the user is told once.
+   */
+  private tooLarge(uri: vscode.Uri, bytes: number, limit: number, version: number | undefined, mapping: Mapping): LintResult {
+    this.sessions.delete(uri.toString());
+    const report = oversizedFileReport(uri.fsPath, BigInt(bytes), BigInt(limit), 'raise the cachewright.fileSizeLimit setting to lint it');
+    const result: LintResult = { uri, version, text: '', report, mapping };
+    this.results.set(uri.toString(), result);
+    this.diagnostics.set(uri, fileDiagnostics(this.extensionUri, uri, report.findings));
+    // Said once per file while it is open in an editor; files only on disk carry the error alone.
+    if (version !== undefined && !this.toldTooLarge.has(uri.toString())) {
+      this.toldTooLarge.add(uri.toString());
+      void vscode.window.showWarningMessage(`cachewright: ${report.findings[0]?.message ?? ''}.`);
+    }
+    this.emitter.fire(result);
+    return result;
+  }
+
   private async lintFromDisk(uri: vscode.Uri): Promise<void> {
     const mapping = this.mappings.mappingFor(uri);
     if (!mapping) return;
@@ -166,11 +190,16 @@ export class Linting implements vscode.Disposable {
       this.lintOpen(open);
       return;
     }
-    const text = await readText(uri);
-    if (text === undefined) return;
+    const limit = readSettings(uri).fileSizeLimit;
+    const read = await readDefinitionText(uri, limit);
+    if (read === undefined) return;
+    if ('tooLarge' in read) {
+      this.tooLarge(uri, read.tooLarge, limit, undefined, mapping);
+      return;
+    }
     // Files on disk are linted once; only open editors keep a session (and its parsed tree).
     this.sessions.delete(uri.toString());
-    this.lint(uri, text, undefined, mapping);
+    this.lint(uri, read.text, undefined, mapping);
     this.sessions.delete(uri.toString());
   }
 

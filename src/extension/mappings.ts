@@ -4,7 +4,7 @@ import { promises as fs } from 'node:fs';
 import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { loadMapping, type Mapping, type MappingProblem } from '../lint';
-import { readRegularText } from '../files/open';
+import { FileReadError, MAPPING_SIZE_LIMIT, readRegularText } from '../files/open';
 import { MAPPING_FILE_NAMES } from '../model/mapping';
 import { readSettings } from './settings';
 
@@ -46,9 +46,27 @@ export async function readText(uri: vscode.Uri): Promise<string | undefined> {
   if (open) return open.getText();
   try {
     // Checked for its type first: a named pipe in the workspace must not hang the extension host.
-    if (uri.scheme === 'file') return readRegularText(uri.fsPath);
+    if (uri.scheme === 'file') return readRegularText(uri.fsPath, { maxBytes: MAPPING_SIZE_LIMIT });
     return new TextDecoder('utf-8').decode(await vscode.workspace.fs.readFile(uri));
   } catch {
+    return undefined;
+  }
+}
+
+export type DefinitionText = { text: string } | { tooLarge: number } | undefined;
+
+/**
+ * A definition file's text for linting: the open editor's text, else the file read from disk; above
+ * `maxBytes`, only its size (a file that large is never read whole).
+ */
+export async function readDefinitionText(uri: vscode.Uri, maxBytes: number): Promise<DefinitionText> {
+  const open = vscode.workspace.textDocuments.find((d) => d.uri.toString() === uri.toString());
+  if (open) return { text: open.getText() };
+  if (uri.scheme !== 'file') return undefined; // definitions are linted on the local disk only (mappingFor)
+  try {
+    return { text: readRegularText(uri.fsPath, { maxBytes }) };
+  } catch (error) {
+    if (error instanceof FileReadError && error.reason === 'too-large') return { tooLarge: error.size ?? maxBytes + 1 };
     return undefined;
   }
 }

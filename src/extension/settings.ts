@@ -1,6 +1,8 @@
 // The extension's settings, read in one place. Per-rule severities here override the mapping file's.
 import * as vscode from 'vscode';
 import type { Severity } from '../core/results';
+import { parseSize } from '../core/units';
+import { DEFINITION_SIZE_LIMIT, MAX_FILE_SIZE_LIMIT } from '../files/open';
 
 export type SeveritySetting = Severity | 'off';
 const SEVERITIES: readonly SeveritySetting[] = ['error', 'warning', 'info', 'off'];
@@ -11,6 +13,14 @@ export interface Settings {
   mappingFile: string;
   rules: Record<string, SeveritySetting>;
   debounceMs: number;
+  /** Definition files above this many bytes are not linted (the setting, else the default). */
+  fileSizeLimit: number;
+}
+
+/** The fileSizeLimit setting in bytes: a size as the mapping file writes them; anything unreadable keeps the default. */
+function sizeLimit(raw: unknown): number {
+  const size = parseSize(raw);
+  return size.ok && size.value >= 1n && size.value <= BigInt(MAX_FILE_SIZE_LIMIT) ? Number(size.value) : DEFINITION_SIZE_LIMIT;
 }
 
 export const SECTION = 'cachewright';
@@ -32,5 +42,6 @@ export function readSettings(scope?: vscode.Uri): Settings {
     mappingFile: mappingFile.trim(),
     rules,
     debounceMs: Number.isFinite(debounce) && debounce >= 0 ? Math.min(debounce, 5000) : 200,
+    fileSizeLimit: sizeLimit(config.get<unknown>('fileSizeLimit', '32M')),
   };
 }

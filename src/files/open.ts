@@ -66,6 +66,8 @@ export class FileReadError extends Error {
     readonly reason: 'missing' | 'kind' | 'too-large' | 'io',
     message: string,
     readonly code?: string,
+    /** For `too-large`: the bytes the file holds (at least). */
+    readonly size?: number,
   ) {
     super(message);
     this.name = 'FileReadError';
@@ -126,6 +128,19 @@ export function openChecked(path: string, policy: KindPolicy = {}): { fd: number
   }
 }
 
+/**
+ * Definition files above this many bytes are not read: the YAML document model needs many times a
+ * file's size in memory, and a file this large is generated, not written by hand. A CLI option and
+ * an editor setting change it.
+ */
+export const DEFINITION_SIZE_LIMIT = 32 * 1024 * 1024;
+
+/** A mapping file is a page of settings; anything far larger is not one (and is not read whole). */
+export const MAPPING_SIZE_LIMIT = 4 * 1024 * 1024;
+
+/** The largest limit a user may set: far below the longest string the JavaScript engine can hold (about 512 Mi characters). */
+export const MAX_FILE_SIZE_LIMIT = 256 * 1024 * 1024;
+
 export interface ReadLimit {
   /** Bytes above which the file is not read at all (its size comes from the file's metadata). */
   maxBytes?: number;
@@ -140,13 +155,13 @@ export function readRegularFile(path: string, limit: ReadLimit = {}): Buffer {
   const { fd, stat } = openChecked(path);
   try {
     const max = limit.maxBytes ?? Number.MAX_SAFE_INTEGER;
-    if (stat.size > max) throw new FileReadError('too-large', `is ${stat.size} bytes, above the limit of ${max} bytes`);
+    if (stat.size > max) throw new FileReadError('too-large', `is ${stat.size} bytes, above the limit of ${max} bytes`, undefined, stat.size);
     // One byte more than the metadata says, so the end shows without a second buffer.
     let buffer = Buffer.allocUnsafe(Math.min(stat.size, max) + 1);
     let total = 0;
     for (;;) {
       if (total === buffer.length) {
-        if (total > max) throw new FileReadError('too-large', `grew above the limit of ${max} bytes while it was read`);
+        if (total > max) throw new FileReadError('too-large', `grew above the limit of ${max} bytes while it was read`, undefined, total);
         const bigger = Buffer.allocUnsafe(Math.min(buffer.length * 2, max + 1));
         buffer.copy(bigger, 0, 0, total);
         buffer = bigger;
@@ -155,7 +170,7 @@ export function readRegularFile(path: string, limit: ReadLimit = {}): Buffer {
       if (got === 0) break;
       total += got;
     }
-    if (total > max) throw new FileReadError('too-large', `grew above the limit of ${max} bytes while it was read`);
+    if (total > max) throw new FileReadError('too-large', `grew above the limit of ${max} bytes while it was read`, undefined, total);
     return buffer.subarray(0, total);
   } catch (error) {
     throw asReadError(error);

@@ -3,6 +3,7 @@
 // report of parse errors alone.
 import * as nodePath from 'node:path';
 import type { SourceRange } from '../core/results';
+import { formatSize } from '../core/units';
 import { readDefinition, type DefinitionDocument, type ReadResult } from '../model/document';
 import { extractMachines, type Extraction, type MachineSpec } from '../model/disks';
 import type { Mapping } from '../model/mapping';
@@ -43,6 +44,16 @@ export function unparsedReport(path: string, problems: readonly { message: strin
     findings: problems.map((p) => ({ rule: rule.id, severity: 'error' as const, message: p.message, pointer: '', range: p.range })),
     parsed: false,
   };
+}
+
+/**
+ * A definition file above the size limit, left unread: one parse-error finding at its start that
+ * names its size and the limit; `raise` says how to change the limit in the front end at hand.
+ */
+export function oversizedFileReport(path: string, size: bigint, limit: bigint, raise: string): FileReport {
+  const at: SourceRange = { offset: 0, length: 0, line: 1, column: 1, endLine: 1, endColumn: 1 };
+  const message = `${nodePath.basename(path)} is ${formatSize(size)} (${size} bytes), above the size limit of ${formatSize(limit)} for definition files, so it is not linted; ${raise}`;
+  return unparsedReport(path, [{ message, range: at }]);
 }
 
 /** The first line of a node: where findings about a whole disk or machine are shown. */

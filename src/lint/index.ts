@@ -10,7 +10,7 @@ import type { FileReport } from './report';
 export type { Acceptance, Fix, Severity, SourceRange } from '../core/results';
 export type { Mapping, MappingProblem } from '../model/mapping';
 export { RULES, RULE_IDS, ruleById, ruleOf, isRuleId, type RuleId } from '../rules';
-export { prepareDocument, type PreparedDocument } from './documents';
+export { oversizedFileReport, prepareDocument, type PreparedDocument } from './documents';
 export { loadMapping, type LintOptions, type SourceFile } from './prepare';
 export type { DiskReport, FileReport, LintFinding as Finding, MachineReport } from './report';
 export { LintSession } from './session';

@@ -1,7 +1,7 @@
 // The extension's settings, changed the way a user does (workspace settings), in the real editor.
 import * as assert from 'node:assert/strict';
 import * as vscode from 'vscode';
-import { api, codeOf, demoFile, open, ours, waitFor } from './helpers';
+import { api, codeOf, demoFile, open, ours, revert, waitFor } from './helpers';
 
 const TICKETING = 'fleet/ticketing.yaml';
 
@@ -14,6 +14,33 @@ describe('settings', () => {
     await set('rules', undefined);
     await set('enable', undefined);
     await set('mappingFile', undefined);
+    await set('fileSizeLimit', undefined);
+  });
+
+  it('leaves a definition above fileSizeLimit unlinted, with one error naming its size and the limit, also while typing', async () => {
+    const { document, editor } = await open(TICKETING);
+    await waitFor('diagnostics', () => ours(document.uri).some((d) => codeOf(d) === 'l2-cache-undersized'));
+    const bytes = Buffer.byteLength(document.getText());
+    assert.ok(bytes > 1024, 'the demo definition is larger than 1 KiB');
+    await set('fileSizeLimit', '1K');
+    const only = (): vscode.Diagnostic | undefined => {
+      const found = ours(document.uri);
+      return found.length === 1 && codeOf(found[0]!) === 'parse-error' ? found[0] : undefined;
+    };
+    const single = await waitFor('one error for the whole file', only);
+    // 1K = 1024 bytes [IEC 80000-13 binary prefixes, as the mapping file reads sizes]
+    assert.match(single.message, new RegExp(`^ticketing\\.yaml is ~?[\\d.]+ KiB \\(${bytes} bytes\\), above the size limit of 1 KiB for definition files, so it is not linted; raise the cachewright\\.fileSizeLimit setting to lint it$`));
+    assert.equal(single.severity, vscode.DiagnosticSeverity.Error);
+    assert.equal(single.range.start.line, 0);
+    try {
+      await editor.edit((edit) => edit.insert(new vscode.Position(0, 0), '# typed while above the limit\n'));
+      await new Promise((resolve) => setTimeout(resolve, 600));
+      assert.ok(only(), `still one error after typing: ${ours(document.uri).map(codeOf).join(', ')}`);
+    } finally {
+      await revert(document);
+    }
+    await set('fileSizeLimit', undefined);
+    await waitFor('linted again under the default limit', () => ours(document.uri).some((d) => codeOf(d) === 'l2-cache-undersized'));
   });
 
   it('overrides a rule\'s severity, or turns it off', async () => {
