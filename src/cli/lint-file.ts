@@ -5,6 +5,8 @@ import { FileReadError, ioMessage, readRegularFile } from '../files/open';
 import { displayPath, stripBom } from './lint-discovery';
 import { encodeLike, fixText, writeFileAtomic } from './lint-fix';
 import type { ImageFacts } from './lint-images';
+import type { TraceCurves } from './lint-traces';
+import { traceRequestsOf } from '../lint/traces';
 import { viewOf, type LintedFile } from './lint-results';
 
 export type LintFormat = 'text' | 'json' | 'sarif';
@@ -30,7 +32,7 @@ export interface LintRequest {
 }
 
 /** Reads one file, lints it and (with --fix) fixes it; never throws. */
-export async function lintFile(path: string, mapping: Mapping, request: LintRequest, images: ImageFacts, notes: string[], cwd: string): Promise<LintedFile> {
+export async function lintFile(path: string, mapping: Mapping, request: LintRequest, images: ImageFacts, traces: TraceCurves, notes: string[], cwd: string): Promise<LintedFile> {
   let bytes: Buffer;
   try {
     bytes = readRegularFile(path, { maxBytes: request.fileSizeLimit });
@@ -46,10 +48,12 @@ export async function lintFile(path: string, mapping: Mapping, request: LintRequ
   // Offsets are counted without the byte order mark, as editors count them; --fix puts it back.
   const text = stripBom(decoded);
   let report: FileReport;
-  const options: LintOptions = request.images ? { images: images.lookup } : {};
+  const options: LintOptions = { ...(request.images ? { images: images.lookup } : {}), traces: traces.lookup };
   try {
     const prepared = prepareDocument({ path, text }, mapping);
     if (request.images && prepared.imagePaths.length > 0) await images.load(prepared.imagePaths);
+    const traceRequests = traceRequestsOf(prepared, options.images);
+    if (traceRequests.length > 0) await traces.load(traceRequests);
     report = lintPrepared(prepared, options);
   } catch (error) {
     return { path, error: `internal error while linting: ${error instanceof Error ? error.message : String(error)}`, fixed: 0 };

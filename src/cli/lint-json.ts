@@ -2,7 +2,7 @@
 // exact integers, paths relative to the mapping file's folder, positions 1-based.
 import { CAUTIONS } from '../core/cautions';
 import { stringifyJson } from '../core/json';
-import type { Finding, SourceRange } from '../lint';
+import type { Finding, Fix, SourceRange } from '../lint';
 import { baselineOf, mappingRelative, shownFindings, summarize, type LintRun } from './lint-results';
 
 /**
@@ -23,6 +23,8 @@ function plainCounts(counts: object): Record<string, number | string | boolean> 
 
 const position = (range: SourceRange) => ({ line: range.line, column: range.column, endLine: range.endLine, endColumn: range.endColumn });
 
+const fixJson = (fix: Fix) => ({ title: fix.title, edits: fix.edits.map((e) => ({ offset: e.offset, length: e.length, text: e.text })) });
+
 function findingJson(run: LintRun, finding: Finding) {
   return {
     rule: finding.rule,
@@ -30,7 +32,8 @@ function findingJson(run: LintRun, finding: Finding) {
     message: finding.message,
     pointer: finding.pointer,
     ...position(finding.range),
-    fix: finding.fix ? { title: finding.fix.title, edits: finding.fix.edits.map((e) => ({ offset: e.offset, length: e.length, text: e.text })) } : undefined,
+    fix: finding.fix ? fixJson(finding.fix) : undefined,
+    alternatives: finding.alternatives?.map(fixJson),
     related: finding.related?.map((r) => ({ message: r.message, ...(r.file !== undefined ? { file: mappingRelative(run.mapping, r.file) } : {}), pointer: r.pointer, ...position(r.range) })),
     accepted: finding.accepted ? { reason: finding.accepted.reason } : undefined,
     baselineState: baselineOf(run, finding),
@@ -56,6 +59,7 @@ export function renderJson(run: LintRun): string {
       pointer: disk.pointer,
       sizing: counts(disk.sizing),
       recommended: counts(disk.recommended),
+      measured: disk.measured ? counts(disk.measured) : undefined,
     })),
     findings: file.report ? shownFindings(run, file.report).map((f) => findingJson(run, f)) : [],
   }));

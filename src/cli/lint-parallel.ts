@@ -8,6 +8,7 @@ import type { Mapping } from '../lint';
 import { loadMappingText, resolveMapping } from './lint-discovery';
 import { lintFile, type LintRequest } from './lint-file';
 import { ImageFacts } from './lint-images';
+import { TraceCurves } from './lint-traces';
 import type { Progress } from './lint-progress';
 import type { LintedFile } from './lint-results';
 
@@ -47,10 +48,11 @@ interface ShareResult {
 
 async function lintShare(files: readonly string[], mapping: Mapping, request: LintRequest, cwd: string, onFile: () => void, yieldEvery = 0): Promise<ShareResult> {
   const images = new ImageFacts();
+  const traces = new TraceCurves();
   const notes: string[] = [];
   const out: LintedFile[] = [];
   for (const path of files) {
-    out.push(await lintFile(path, mapping, request, images, notes, cwd));
+    out.push(await lintFile(path, mapping, request, images, traces, notes, cwd));
     onFile();
     // let the other threads' progress messages in
     if (yieldEvery > 0 && out.length % yieldEvery === 0) await new Promise((resolve) => setImmediate(resolve));

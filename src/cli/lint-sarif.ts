@@ -4,7 +4,7 @@
 // with their justification.
 import * as nodePath from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { RULES, type Finding, type SourceRange } from '../lint';
+import { RULES, type Finding, type Fix, type SourceRange } from '../lint';
 import type { Severity } from '../core/results';
 import { baselineOf, mappingRelative, shownFindings, type LintRun } from './lint-results';
 import { FINGERPRINT_KEY, fingerprintOf, subjectOf } from '../review/identity';
@@ -48,6 +48,29 @@ function location(artifact: ArtifactLocation, range: SourceRange, pointer: strin
 
 const RULE_INDEX: ReadonlyMap<string, number> = new Map(RULES.map((rule, index) => [rule.id, index]));
 
+/** SARIF's fixes: the finding's own first, then the alternatives it offers. */
+function sarifFixes(artifact: ArtifactLocation, fixes: readonly Fix[]) {
+  const usable = fixes.filter((fix) => fix.edits.length > 0);
+  if (usable.length === 0) return undefined;
+  return usable.map((fix) => ({
+    description: { text: fix.title },
+    artifactChanges: [{
+      artifactLocation: artifact,
+      replacements: fix.edits.map((edit) => ({ deletedRegion: { charOffset: edit.offset, charLength: edit.length }, insertedContent: { text: edit.text } })),
+    }],
+  }));
+}
+
+/** The measured figures of the disk a finding is about, when a trace was read for it (byte counts as numbers). */
+function measuredProperties(report: NonNullable<LintRun['files'][number]['report']>, finding: Finding) {
+  const disk = report.disks
+    .filter((d) => d.measured && (finding.pointer === d.pointer || finding.pointer.startsWith(`${d.pointer}/`)))
+    .sort((a, b) => b.pointer.length - a.pointer.length)[0];
+  const m = disk?.measured;
+  if (!m) return undefined;
+  return { measured: { ...m, workingSet: Number(m.workingSet), recommendedL2Cache: Number(m.recommendedL2Cache) } };
+}
+
 function result(run: LintRun, path: string, finding: Finding, report: NonNullable<LintRun['files'][number]['report']>) {
   const artifact = artifactLocation(run, path);
   // The identity that survives unrelated edits lets a code-scanning service follow a result across runs.
@@ -61,19 +84,8 @@ function result(run: LintRun, path: string, finding: Finding, report: NonNullabl
     partialFingerprints: { [FINGERPRINT_KEY]: fingerprintOf(subject) },
     baselineState: baselineOf(run, finding),
     relatedLocations: finding.related?.map((r, i) => location(r.file !== undefined ? artifactLocation(run, r.file) : artifact, r.range, r.pointer, r.message, i + 1)),
-    fixes:
-      finding.fix && finding.fix.edits.length > 0
-        ? [{
-            description: { text: finding.fix.title },
-            artifactChanges: [{
-              artifactLocation: artifact,
-              replacements: finding.fix.edits.map((edit) => ({
-                deletedRegion: { charOffset: edit.offset, charLength: edit.length },
-                insertedContent: { text: edit.text },
-              })),
-            }],
-          }]
-        : undefined,
+    fixes: sarifFixes(artifact, [...(finding.fix ? [finding.fix] : []), ...(finding.alternatives ?? [])]),
+    properties: measuredProperties(report, finding),
     suppressions: finding.accepted
       ? [{ kind: finding.accepted.from === 'mapping' ? 'external' : 'inSource', status: 'accepted', justification: finding.accepted.reason }]
       : undefined,

@@ -48,6 +48,8 @@ export interface Finding<Rule extends string = string> {
   pointer: string;
   range: SourceRange;
   fix?: Fix;
+  /** Other fixes offered beside `fix` (e.g. a measured target beside full coverage); `--fix` applies `fix` only. */
+  alternatives?: Fix[];
   related?: RelatedLocation[];
   accepted?: Acceptance;
   /** A finding about a whole hypervisor host (it spans files): the host's name. */

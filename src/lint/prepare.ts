@@ -8,6 +8,7 @@ import { nodeAt, type DefinitionDocument } from '../model/document';
 import type { DiskSpec, MachineSpec } from '../model/disks';
 import type { NewValue } from '../model/edits';
 import type { ImageLookup } from '../model/images';
+import type { TraceLookup } from '../model/traces';
 import { parseJsonPointer } from '../model/jsonpath';
 import { loadMapping as loadMappingFile, type Mapping, type MappingLoad } from '../model/mapping';
 import { RULE_IDS, type Rule, type RuleId } from '../rules';
@@ -25,6 +26,8 @@ export interface LintOptions {
   severities?: Record<string, Severity | 'off'>;
   /** Facts of the image files definitions name, read by the caller; absent: images are not checked. */
   images?: ImageLookup;
+  /** Measured curves of the traces disks name, read by the caller; absent: traces are not used. */
+  traces?: TraceLookup;
 }
 
 /** Reads a mapping file, checking rule ids against the rules that exist. */
@@ -49,10 +52,12 @@ export class FileContext {
   private sizeStyle: { style: SizeStyle | undefined } | undefined;
   private readonly severities: Record<string, Severity | 'off'>;
   readonly images: ImageLookup | undefined;
+  readonly traces: TraceLookup | undefined;
 
   constructor(readonly document: DefinitionDocument, readonly mapping: Mapping, options: LintOptions) {
     this.severities = { ...mapping.severities, ...options.severities };
     this.images = options.images;
+    this.traces = options.traces;
   }
 
   severityOf(rule: Rule<RuleId>): Severity | 'off' {

@@ -27,6 +27,20 @@ export interface DiskReport {
   extendedL2: boolean;
   requestSize: bigint;
   pattern: string;
+  /**
+   * With a trace: the measured L2 hit ratio at the effective cache, the traced working set, the
+   * smallest cache reaching the target hit ratio (the working set when none does) and the sampling.
+   */
+  measured?: {
+    hitRatio: number;
+    workingSet: bigint;
+    recommendedL2Cache: bigint;
+    sampleRate: number;
+    targetHitRatio: number;
+    targetReached: boolean;
+    requests: number;
+    lookups: number;
+  };
   /** The image file the definition names, and whether its layers came from the real files. */
   image?: { path: string; read: boolean; layers: { path: string; format: string }[]; problem?: string };
 }

@@ -4,6 +4,7 @@
 import type { DiskSizing, LayerCache } from '../core/cache';
 import type { DiskSpec, Located, MachineSpec, ValueProblem } from '../model/disks';
 import type { ImageChainFacts } from '../model/images';
+import type { TraceFacts } from '../model/traces';
 import { RULES, ruleOf } from '../rules';
 import type { DiskCheck, FindingInput, SizedDisk } from '../rules/types';
 import { headRange } from './documents';
@@ -18,6 +19,14 @@ export interface DiskImage {
   definitionDir: string;
 }
 
+/** The traces a disk names and what reading them gave. */
+export interface DiskTrace {
+  written: Located<string[]>;
+  /** The written paths resolved against the definition file, in the same order. */
+  paths: string[];
+  facts: TraceFacts;
+}
+
 export function valueProblemFindings(context: FileContext, problems: readonly ValueProblem[], into: LintFinding[]): void {
   const rule = ruleOf('invalid-value');
   for (const problem of problems) context.add(into, rule, { message: `${problem.field}: ${problem.message}`, pointer: problem.pointer, range: problem.range });
@@ -29,6 +38,7 @@ export function runDiskRules(
   sizing: DiskSizing,
   top: LayerCache,
   image: DiskImage | undefined,
+  trace: DiskTrace | undefined,
   machines: readonly MachineSpec[],
   into: LintFinding[],
 ): void {
@@ -43,6 +53,7 @@ export function runDiskRules(
         pointer: at?.pointer ?? disk.pointer,
         range: at?.range ?? headRange(document, disk.range),
         ...(input.fix ? { fix: input.fix } : {}),
+        ...(input.alternatives && input.alternatives.length > 0 ? { alternatives: input.alternatives } : {}),
         ...(input.related ? { related: input.related } : {}),
       });
     };
@@ -52,6 +63,7 @@ export function runDiskRules(
       pattern: disk.values.pattern?.value ?? mapping.assume.pattern,
       profile: mapping.profile,
       ...(image ? { image } : {}),
+      ...(trace ? { trace } : {}),
     };
     rule.checkDisk(check);
   }

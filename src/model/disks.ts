@@ -43,6 +43,8 @@ export interface DiskValues {
   image?: Located<string>;
   requestSize?: Located<bigint>;
   pattern?: Located<AccessPattern>;
+  /** Trace file paths as written (one, or a list read in order), relative to the definition file. */
+  trace?: Located<string[]>;
 }
 
 export interface DiskSpec {
@@ -186,6 +188,13 @@ class Extractor {
         if (typeof v !== 'string') return { ok: false, error: `the access pattern ${JSON.stringify(v)} is not text: use ${PATTERN_HELP}` };
         const access = accessOfPattern(v);
         return access.ok ? { ok: true, value: v } : access;
+      }),
+      trace: this.typed('trace', raw('trace'), (v) => {
+        const paths = typeof v === 'string' ? [v] : Array.isArray(v) ? v : undefined;
+        if (paths === undefined || paths.length === 0 || !paths.every((p): p is string => typeof p === 'string' && p.length > 0)) {
+          return { ok: false, error: 'a trace must be a file path, or a non-empty list of file paths, relative to the definition file' };
+        }
+        return { ok: true, value: paths };
       }),
     };
     const cluster = values.clusterSize?.value ?? this.mapping.assume.clusterSize;

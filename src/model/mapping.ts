@@ -29,6 +29,8 @@ export interface Assumptions {
   driver: DriverGeneration;
   platform: HostPlatform;
   refcountBits: bigint;
+  /** What the recommendation from a measured trace aims for (CONTRACTS.md §1, default 0.99). */
+  targetHitRatio: number;
 }
 
 export interface AcceptEntry {
@@ -247,6 +249,12 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
     if (!access.ok) problems.push({ message: `assume.pattern: ${access.error}`, ...at('assume', 'pattern') });
   }
   const requestSize = assumeSize('requestSize', 4096n);
+  let targetHitRatio = 0.99;
+  if (file.assume?.targetHitRatio !== undefined) {
+    const target = parseShare(file.assume.targetHitRatio);
+    if (target.ok && target.value > 0) targetHitRatio = target.value;
+    else problems.push({ message: `assume.targetHitRatio: ${target.ok ? 'a target of 0 asks for no hits at all; use a share above 0' : target.error}`, ...at('assume', 'targetHitRatio') });
+  }
   let refcountBits = DEFAULT_REFCOUNT_BITS;
   if (file.assume?.refcountBits !== undefined) {
     const bits = checkRefcountBits(BigInt(file.assume.refcountBits));
@@ -293,6 +301,7 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
       driver: generation,
       platform,
       refcountBits,
+      targetHitRatio,
     },
     profile: driverProfile(generation, platform),
     cacheShareOfMemory: file.budget?.cacheShareOfMemory ?? 0.05,

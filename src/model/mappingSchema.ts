@@ -10,7 +10,7 @@ const size = z
 
 export const DISK_FIELDS = [
   'name', 'size', 'clusterSize', 'format', 'l2Cache', 'refcountCache', 'combinedCache', 'cacheEntrySize',
-  'cleanupInterval', 'extendedL2', 'image', 'backing', 'requestSize', 'pattern',
+  'cleanupInterval', 'extendedL2', 'image', 'backing', 'requestSize', 'pattern', 'trace',
 ] as const;
 export type DiskField = (typeof DISK_FIELDS)[number];
 export const MACHINE_FIELDS = ['name', 'memory', 'host'] as const;
@@ -31,6 +31,7 @@ const diskFieldDescriptions: Record<DiskField, string> = {
   backing: 'A backing image path, or a nested disk object',
   requestSize: 'Typical guest write size',
   pattern: 'Guest access pattern: random, sequential, mixed, zipf(S) or "P% on Q%"',
+  trace: 'I/O trace file of the disk, or a list of them read in order (CSV, I/O log or block-layer trace text; .gz too), relative to the definition file',
 };
 
 const diskFields = z
@@ -69,6 +70,10 @@ export const mappingSchema = z
         driver: z.enum(['current', 'legacy']).optional().describe('Which generation of driver defaults applies'),
         platform: z.enum(['linux', 'other']).optional().describe('Host platform whose defaults apply'),
         refcountBits: z.number().int().optional().describe('Refcount width of the images (default 16)'),
+        targetHitRatio: z
+          .union([z.number(), z.string().min(1)])
+          .optional()
+          .describe('Hit ratio the recommendation from a measured trace aims for: 0.99 or "99%" (default 99%)'),
         hostMemory: size.optional().describe('Memory of a host the hosts list does not name'),
       })
       .strict()

@@ -14,6 +14,8 @@ import { cacheEntrySizeSuggested } from './cache-entry-size-suggested';
 import { backingChainCycle } from './backing-chain-cycle';
 import { imageMismatch } from './image-mismatch';
 import { imageUnreadable } from './image-unreadable';
+import { l2CacheAboveWorkingSet } from './l2-cache-above-working-set';
+import { traceUnreadable } from './trace-unreadable';
 import type { Rule } from './types';
 
 /** Checks at compile time that every rule sits under its own id. */
@@ -29,6 +31,7 @@ export const RULE_REGISTRY = registry({
   'cache-not-aligned': cacheNotAligned,
   'l2-cache-undersized': l2CacheUndersized,
   'l2-cache-oversized': l2CacheOversized,
+  'l2-cache-above-working-set': l2CacheAboveWorkingSet,
   'cluster-cow-amplification': clusterCowAmplification,
   'cleanup-interval-missing': cleanupIntervalMissing,
   'cache-entry-size-suggested': cacheEntrySizeSuggested,
@@ -36,6 +39,7 @@ export const RULE_REGISTRY = registry({
   'host-cache-budget': hostCacheBudget,
   'image-mismatch': imageMismatch,
   'image-unreadable': imageUnreadable,
+  'trace-unreadable': traceUnreadable,
   'backing-chain-cycle': backingChainCycle,
   'invalid-suppression': invalidSuppression,
 });

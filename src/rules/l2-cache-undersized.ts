@@ -1,4 +1,8 @@
 import { l2CoveredBytes, minimumRefcountCache } from '../core/sizing';
+import { measuredTarget, type MeasuredTarget } from './measured';
+import { formatPercent } from '../core/units';
+import type { MeasuredCurve } from '../model/traces';
+import { TRACE_CAUTION } from './trace-unreadable';
 import type { LayerCache } from '../core/cache';
 import { modelCache } from '../core/cachemodel';
 import { accessOfPattern } from '../core/workload';
@@ -18,24 +22,48 @@ function prediction(top: LayerCache, pattern: string, requestSize: bigint): stri
   return ` Under ${pattern} access it predicts ${hits}% L2 hits, ${misses} extra metadata reads per 1,000 guest I/Os; full coverage: 100% and none.`;
 }
 
+function measuredText(curve: MeasuredCurve, effective: bigint, target: number, measured: MeasuredTarget): string {
+  const sampled = curve.sampleRate < 1 ? `, estimated from a ${formatPercent(curve.sampleRate, 2)} sample` : '';
+  const requests = curve.requests.toLocaleString('en-US');
+  const goal = measured.reached
+    ? `${size(measured.cacheBytes)} reaches the ${formatPercent(target)} target`
+    : `no cache reaches ${formatPercent(target)} on it (first touches always miss); ${size(measured.cacheBytes)} holds all ${size(curve.workingSet)} it touched`;
+  return `On the measured trace (${requests} requests${sampled}) it hits ${formatPercent(curve.hitRatioAt(effective))} of L2 lookups; ${goal}.`;
+}
+
 export const l2CacheUndersized: Rule<'l2-cache-undersized'> = {
   id: 'l2-cache-undersized',
   severity: 'warning',
   description: 'The effective L2 cache maps less than the whole virtual disk, so random I/O pays extra metadata reads.',
   fixable: true,
   docs: docsPage('l2-cache-undersized'),
-  checkDisk({ disk, top, sizing, pattern, requestSize, report, fix }) {
+  checkDisk({ disk, top, sizing, pattern, requestSize, report, fix, trace, mapping }) {
     const { virtualSize, clusterSize, extendedL2 } = top.geometry;
     if (l2CoveredBytes(top.l2, clusterSize, extendedL2, top.entrySize) >= virtualSize) return;
     const need = sizing.recommended.l2Cache;
     const where = top.l2Source === 'default' ? 'the driver default L2 cache' : top.l2Source === 'combined' ? 'the L2 share of the combined cache' : 'the L2 cache';
-    const message = `${where} of ${size(top.l2)} maps ${size(top.l2Covered)} of this ${size(virtualSize)} disk (${share(top.l2Covered, virtualSize)}); full coverage needs ${size(need)} (${size(need - top.l2)} more memory per open disk).${prediction(top, pattern, requestSize)}`;
-    const { combinedCache, l2Cache } = disk.values;
-    if (combinedCache && !l2Cache) {
-      const total = need + (disk.values.refcountCache?.value ?? minimumRefcountCache(clusterSize));
-      report({ at: 'combinedCache', message, fix: fix.setSize('combinedCache', total, `Set the combined cache to ${size(total)}`) });
+    const coverage = `${where} of ${size(top.l2)} maps ${size(top.l2Covered)} of this ${size(virtualSize)} disk (${share(top.l2Covered, virtualSize)}); full coverage needs ${size(need)} (${size(need - top.l2)} more memory per open disk).`;
+    const { combinedCache, l2Cache, refcountCache } = disk.values;
+    const onlyCombined = combinedCache !== undefined && l2Cache === undefined;
+    const refcount = refcountCache?.value ?? minimumRefcountCache(clusterSize);
+    const setL2 = (bytes: bigint, why: string) =>
+      onlyCombined
+        ? fix.setSize('combinedCache', bytes + refcount, `Set the combined cache to ${size(bytes + refcount)} (${why})`)
+        : fix.setSize('l2Cache', bytes, `Set the L2 cache to ${size(bytes)} (${why})`);
+    const at = onlyCombined ? 'combinedCache' : l2Cache ? 'l2Cache' : undefined;
+    const curve = trace?.facts.curve;
+    if (curve) {
+      // The measured curve decides: the disk is settled once its cache reaches the target on the trace.
+      const target = mapping.assume.targetHitRatio;
+      const measured = measuredTarget(curve, target, top.entrySize);
+      if (top.l2 >= measured.cacheBytes) return;
+      const message = `${coverage} ${measuredText(curve, top.l2, target, measured)} ${TRACE_CAUTION}`;
+      const primary = setL2(measured.cacheBytes, measured.reached ? `reaches ${formatPercent(target)} on the measured trace` : 'the working set of the measured trace');
+      const full = setL2(need, 'full coverage');
+      report({ ...(at ? { at } : {}), message, ...(primary ? { fix: primary } : {}), ...(full ? { alternatives: [full] } : {}) });
       return;
     }
-    report({ at: l2Cache ? 'l2Cache' : undefined, message, fix: fix.setSize('l2Cache', need, `Set the L2 cache to ${size(need)} (full coverage)`) });
+    const message = `${coverage}${prediction(top, pattern, requestSize)}`;
+    report({ ...(at ? { at } : {}), message, fix: setL2(need, 'full coverage') });
   },
 };

@@ -7,6 +7,7 @@ import type { Fix, RelatedLocation, Severity, SourceRange } from '../core/result
 import type { DiskSpec, DiskValues, Located, MachineSpec } from '../model/disks';
 import type { Assumptions, HostBudget, Mapping } from '../model/mapping';
 import type { ImageChainFacts } from '../model/images';
+import type { TraceFacts } from '../model/traces';
 
 export interface RuleMeta<Id extends string = string> {
   id: Id;
@@ -31,6 +32,8 @@ export interface FindingInput {
   /** The value the finding is about; absent: the disk (or machine) itself. */
   at?: keyof DiskValues | Located<unknown>;
   fix?: Fix;
+  /** Other fixes to offer beside `fix` (the editor lists them; `--fix` applies `fix` only). */
+  alternatives?: Fix[];
   related?: RelatedLocation[];
 }
 
@@ -48,6 +51,8 @@ export interface DiskCheck {
   fix: FixHelpers;
   /** The image file the disk names, when the caller read it. */
   image?: { path: string; written: Located<string>; facts: ImageChainFacts; definitionDir: string };
+  /** The traces the disk names and their measured curve (or why there is none), when the caller read them. */
+  trace?: { written: Located<string[]>; paths: string[]; facts: TraceFacts };
 }
 
 export interface SizedDisk {

@@ -34,6 +34,7 @@ export const BASE_MAPPING: MappingObject = {
       backing: '$.backing',
       requestSize: '$.io.size',
       pattern: '$.io.pattern',
+      trace: '$.io.trace',
     },
   },
 };

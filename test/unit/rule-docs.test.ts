@@ -2,10 +2,13 @@
 // says, at the line and column it says, when linted with the demo's mapping file. Keeps the pages
 // honest as the rules change.
 import { strict as assert } from 'node:assert';
-import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import * as path from 'node:path';
 import { ImageFacts } from '../../src/cli/lint-images';
+import { TraceCurves } from '../../src/cli/lint-traces';
+import { prepareDocument } from '../../src/lint';
+import { traceRequestsOf } from '../../src/lint/traces';
 import { lintDocument, lintHosts, loadMapping, RULES, type LintOptions } from '../../src/lint';
 import { parseSize } from '../../src/core/units';
 import { writeImage } from '../image/qcow2-writer';
@@ -71,6 +74,25 @@ describe('rule docs pages', () => {
           const facts = new ImageFacts();
           await facts.load([...found.text.matchAll(/file: (\S+)/g)].map((m) => path.join(dir as string, m[1] as string)));
           options = { images: facts.lookup };
+        }
+        // The trace rules' examples name traces: the page gives how each is generated (a cyclic
+        // scan over `cycle` cache entries `span` bytes apart); a trace it does not list is missing.
+        const traces = /<!-- example traces: (.*?) -->/.exec(page);
+        if (traces) {
+          dir ??= mkdtempSync(path.join(tmpdir(), 'cachewright-docs-'));
+          definition = path.join(dir, 'fleet.yaml');
+          for (const spec of (traces[1] as string).matchAll(/(\S+\.csv) cycle=(\d+) span=(\S+) requests=(\d+)/g)) {
+            const target = path.join(dir, spec[1] as string);
+            mkdirSync(path.dirname(target), { recursive: true });
+            const span = parseSize(spec[3]);
+            assert.ok(span.ok);
+            const lines = Array.from({ length: Number(spec[4]) }, (_, i) => `${BigInt(i % Number(spec[2])) * span.value},4096`);
+            writeFileSync(target, `${lines.join('\n')}\n`);
+          }
+          const curves = new TraceCurves();
+          const prepared = prepareDocument({ path: definition, text: found.text }, demoMapping());
+          await curves.load(traceRequestsOf(prepared, options.images));
+          options = { ...options, traces: curves.lookup };
         }
         const mapping = demoMapping();
         const report = lintDocument({ path: definition, text: found.text }, mapping, options);

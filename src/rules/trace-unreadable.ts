@@ -1,0 +1,21 @@
+import { CAUTIONS } from '../core/cautions';
+import { docsPage, type Rule } from './types';
+
+export const traceUnreadable: Rule<'trace-unreadable'> = {
+  id: 'trace-unreadable',
+  severity: 'warning',
+  description: 'An I/O trace the disk names is missing, unreadable or holds no usable request, so the disk is judged by its assumed access pattern.',
+  fixable: false,
+  docs: docsPage('trace-unreadable'),
+  checkDisk({ trace, pattern, report }) {
+    const problem = trace?.facts.problem;
+    if (!trace || !problem) return;
+    // Name the file as the definition writes it, not by the absolute path of this machine.
+    let message = problem.message;
+    trace.paths.forEach((path, i) => (message = message.split(path).join(trace.written.value[i] ?? path)));
+    report({ at: trace.written, message: `the trace cannot be used: ${message}. The disk is judged by the assumed ${pattern} pattern instead.` });
+  },
+};
+
+/** The caution every message built on a measured trace carries (FACTS.md). */
+export const TRACE_CAUTION = CAUTIONS.tracePeriod;

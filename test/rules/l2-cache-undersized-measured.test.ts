@@ -1,0 +1,57 @@
+// l2-cache-undersized with a measured trace: the measured curve replaces the assumed pattern [MATTSON].
+// A cyclic scan over 64 entries (each maps 512 MiB at 64 KiB clusters [SPEC]) hits nothing in a cache
+// of fewer than 64 entries and 1 - 64/20000 = 99.68% in one of 64 or more.
+import { strict as assert } from 'node:assert';
+import { MATTSON } from '../helpers/sources';
+import { findingsOf, lintCase, oneDisk, ruleTable, type RuleCase } from './harness';
+import { TraceFolder } from './traces';
+
+const RULE = 'l2-cache-undersized';
+const traces = new TraceFolder().cycle('traces/cycle64.csv', 64, 512n * 1024n * 1024n, 20_000);
+const TRACE = 'io: { trace: traces/cycle64.csv }';
+const at = (disk: string, extra: Partial<RuleCase> = {}): Omit<RuleCase, 'name'> => ({ text: oneDisk(disk), file: traces.definition, options: traces.options, ...extra });
+
+const cases = {
+  reaches: at(`size: 1T\ncache: { l2: 4M }\n${TRACE}`),
+  short: at(`size: 1T\ncache: { l2: 1M }\n${TRACE}`, {
+    findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['maps 8 GiB of this 1 TiB disk', 'On the measured trace (20,000 requests) it hits 0.0%', '4 MiB reaches the 99.0% target', 'trace shows only the period'] }],
+  }),
+  unreachable: at(`size: 1T\ncache: { l2: 1M }\n${TRACE}`, {
+    mapping: { assume: { targetHitRatio: '99.9%' } },
+    findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['no cache reaches 99.9% on it', '4 MiB holds all 4 MiB it touched'] }],
+  }),
+  defaultCache: at(`size: 16T\n${TRACE}`),
+};
+
+ruleTable(RULE, {
+  before: () => traces.load(Object.values(cases)),
+  after: () => traces.remove(),
+  valid: [
+    { name: `${MATTSON} 4 MiB holds all 64 entries: the target is reached below full coverage`, ...cases.reaches },
+    { name: `${MATTSON} the driver default of a 16 TiB disk (32 MiB, far below its 2 GiB full coverage) holds the whole traced working set`, ...cases.defaultCache },
+  ],
+  invalid: [
+    { name: `${MATTSON} 1 MiB holds 16 of the 64 entries the scan cycles over`, ...cases.short },
+    { name: `${MATTSON} a target above what first touches allow`, ...cases.unreachable },
+  ],
+  fix: { name: 'sets the measured target, 4 MiB', ...cases.short },
+});
+
+describe(`rule ${RULE} with a trace: the fixes and figures`, () => {
+  before(() => traces.load(Object.values(cases)));
+  it('offers full coverage beside the measured target', () => {
+    const [finding] = findingsOf(lintCase(cases.short), RULE);
+    assert.match(finding?.fix?.title ?? '', /4 MiB \(reaches 99\.0% on the measured trace\)/);
+    assert.equal(finding?.fix?.edits[0]?.text, '4M');
+    assert.equal(finding?.alternatives?.length, 1);
+    assert.match(finding?.alternatives?.[0]?.title ?? '', /128 MiB \(full coverage\)/);
+    assert.equal(finding?.alternatives?.[0]?.edits[0]?.text, '128M');
+  });
+  it(`${MATTSON} the disk's measured object: hit ratio at the effective cache, working set, recommendation`, () => {
+    const measured = lintCase(cases.short).disks[0]?.measured;
+    assert.deepEqual(measured, {
+      hitRatio: 0, workingSet: 4n << 20n, recommendedL2Cache: 4n << 20n, sampleRate: 1,
+      targetHitRatio: 0.99, targetReached: true, requests: 20_000, lookups: 20_000,
+    });
+  });
+});

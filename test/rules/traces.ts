@@ -1,0 +1,45 @@
+// Real trace files for the trace rules' tables: CSV written into a temporary folder beside the
+// definition, then measured the way `cachewright lint` measures them (src/cli/lint-traces).
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import * as path from 'node:path';
+import { TraceCurves } from '../../src/cli/lint-traces';
+import { prepareDocument, type LintOptions } from '../../src/lint';
+import { traceRequestsOf } from '../../src/lint/traces';
+import { mappingFor, type MappingObject } from './harness';
+
+export class TraceFolder {
+  readonly dir = mkdtempSync(path.join(tmpdir(), 'cachewright-rule-traces-'));
+  private readonly curves = new TraceCurves();
+
+  get definition(): string {
+    return path.join(this.dir, 'fleet.yaml');
+  }
+
+  /** A CSV trace of `requests` 4 KiB reads cycling over `entries` offsets `span` bytes apart. */
+  cycle(name: string, entries: number, span: bigint, requests: number): this {
+    const lines = Array.from({ length: requests }, (_, i) => `${BigInt(i % entries) * span},4096`);
+    return this.file(name, `${lines.join('\n')}\n`);
+  }
+
+  file(name: string, text: string): this {
+    const target = path.join(this.dir, name);
+    mkdirSync(path.dirname(target), { recursive: true });
+    writeFileSync(target, text);
+    return this;
+  }
+
+  /** Measures the traces every definition text names (with the mapping overrides of its case). */
+  async load(cases: readonly { text: string; mapping?: MappingObject }[]): Promise<void> {
+    for (const c of cases) {
+      const prepared = prepareDocument({ path: this.definition, text: c.text }, mappingFor(c.mapping));
+      await this.curves.load(traceRequestsOf(prepared));
+    }
+  }
+
+  readonly options = (): LintOptions => ({ traces: this.curves.lookup });
+
+  remove(): void {
+    rmSync(this.dir, { recursive: true, force: true });
+  }
+}
