@@ -3,7 +3,7 @@
 import type { SizingReport } from '../src/core/results';
 import { formatSizeExact, parseSize } from '../src/core/units';
 import { formatInterval, formatPercent, formatSize } from '../src/core/format';
-import type { DiskView, FindingView, MachineView, PanelView, WhatIfValues } from './protocol';
+import type { DiskView, FindingView, MachineView, PanelView, WhatIfValues } from '../src/protocol/panel';
 import { curveFigure } from './curve';
 import { CLUSTER_CHOICES, sliceChoices, whatIf, type WhatIfResult } from './whatif';
 

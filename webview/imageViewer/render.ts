@@ -6,7 +6,7 @@ import { chainRows, GROUP_TITLES, layerGroups, type CostGroup, type CostRow } fr
 import {
   ERROR_KIND_WORDS,
   type DrawnSummary, type ProfileChoice, type ImageView, type LayerView, type ThemeSummary, type WalkProgressView,
-} from '../../src/extension/imageViewer/protocol';
+} from '../../src/protocol/image-viewer';
 import { allocationPicture, pictureLegend } from './picture';
 
 export interface ViewerActions {

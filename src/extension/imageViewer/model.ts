@@ -6,7 +6,7 @@ import { driverProfile, type DriverProfile } from '../../core/profiles';
 import type { ImageReport } from '../../image';
 import { chainCost, layerCost } from '../../image/cost';
 import type { HeaderNotes } from '../../image/cost-rows';
-import { ERROR_KIND_WORDS, type ImageView, type LayerView, type ViewState, type WalkProgressView } from './protocol';
+import { ERROR_KIND_WORDS, type ImageView, type LayerView, type ViewState, type WalkProgressView } from '../../protocol/image-viewer';
 
 export interface ViewInput {
   seq: number;
@@ -39,6 +39,7 @@ export function buildImageView(input: ViewInput): ImageView {
     chain: chainCost(input.layers, profile),
     profile: profile.name,
     profileChoice: { generation: profile.generation, platform: profile.platform },
+    // The trace caution belongs to sized-from-a-trace views, not to an image's own facts.
     cautions: [CAUTIONS.reopen, CAUTIONS.hostMemory, CAUTIONS.fixedAtCreation, CAUTIONS.review],
   };
 }
