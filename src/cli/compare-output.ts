@@ -1,4 +1,4 @@
-// `cachewright compare` as text for people and as JSON (CONTRACTS.md §8) for tools.
+// `cachewright compare` as text for people and as JSON (docs/cli.md) for tools.
 import { stringifyJson } from '../core/json';
 import { formatSize } from '../core/format';
 import type { ComparedFinding, Comparison, DiskRef } from '../review/compare';

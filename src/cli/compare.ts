@@ -1,4 +1,4 @@
-// `cachewright compare BASE_DIR HEAD_DIR` and `compare --git REF [HEAD_DIR]` (CONTRACTS.md §8): lint
+// `cachewright compare BASE_DIR HEAD_DIR` and `compare --git REF [HEAD_DIR]` (docs/cli.md): lint
 // both trees with the head's mapping file, pair the results up and print what the change does.
 // Exit 1 only for errors head adds, or more new warnings than --allow-warnings; 2 for usage and I/O.
 import * as fs from 'node:fs';

@@ -1,5 +1,5 @@
 // `cachewright curve`: the measured L2 cache hit ratio at every cache size, from the user's own I/O
-// traces of one disk (CONTRACTS.md §6). The trace engine computes everything; this file reads the
+// traces of one disk (docs/cli.md). The trace engine computes everything; this file reads the
 // options, shows progress and formats the report.
 
 import { isAbsolute, resolve } from 'node:path';

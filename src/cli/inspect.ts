@@ -1,4 +1,4 @@
-// `cachewright inspect IMAGE... [--format text|json] [--no-chain]` (CONTRACTS.md §2, §3): reads qcow2
+// `cachewright inspect IMAGE... [--format text|json] [--no-chain]` (docs/cli.md, §3): reads qcow2
 // images read-only, walks their metadata and backing chains. Exit 0 when every image and layer was
 // read, 2 when any failed or the command line is wrong; a bad file is a message, never a trace.
 import { isAbsolute, relative, resolve } from 'node:path';
@@ -81,7 +81,7 @@ function relabel(report: ImageReport, cwd: string): ImageReport {
   return fix(report);
 }
 
-// ---- JSON (CONTRACTS §3: grouped around what the image costs the caches; byte counts integers) ----
+// ---- JSON (docs/cli.md: grouped around what the image costs the caches; byte counts integers) ----
 
 const round = (share: number): number => Math.round(share * 1_000_000) / 1_000_000;
 

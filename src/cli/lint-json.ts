@@ -1,4 +1,4 @@
-// `cachewright lint --format json` (CONTRACTS.md §3): one document for the whole run, byte counts as
+// `cachewright lint --format json` (docs/cli.md): one document for the whole run, byte counts as
 // exact integers, paths relative to the mapping file's folder, positions 1-based.
 import { CAUTIONS } from '../core/cautions';
 import { stringifyJson } from '../core/json';

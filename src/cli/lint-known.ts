@@ -1,4 +1,4 @@
-// `cachewright lint --known FILE` and `--record-known FILE` (CONTRACTS.md §7): the CLI's side of
+// `cachewright lint --known FILE` and `--record-known FILE` (docs/cli.md): the CLI's side of
 // known findings. Reading and writing the file happens here; what matches what is src/review's.
 import * as fs from 'node:fs';
 import { fail, ok, type Outcome } from '../core/result';

@@ -1,4 +1,4 @@
-// `cachewright lint` (CONTRACTS.md §2): find the mapping file, pick the definition files, lint each
+// `cachewright lint` (docs/cli.md): find the mapping file, pick the definition files, lint each
 // one (and fix it with --fix), print text, JSON or SARIF, and exit 0, 1 or 2 as the contract says.
 import { formatSize } from '../core/format';
 import { parseSize, SIZE_UNITS_HELP } from '../core/units';

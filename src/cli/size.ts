@@ -1,4 +1,4 @@
-// `cachewright size`: the sizing numbers of one disk, from flags alone (CONTRACTS.md §2, §3).
+// `cachewright size`: the sizing numbers of one disk, from flags alone (docs/cli.md, §3).
 import { layerCache, sizeChain, type CacheSettings } from '../core/cache';
 import { CAUTIONS } from '../core/cautions';
 import { stringifyJson } from '../core/json';

@@ -1,4 +1,4 @@
-// The cautions of FACTS.md, shown wherever the tool suggests changing a disk's settings.
+// The cautions of docs/sources.md, shown wherever the tool suggests changing a disk's settings.
 export const CAUTIONS = {
   reopen: 'Cache settings take effect when the disk is opened: restart the VM or reopen the disk.',
   hostMemory: 'Bigger caches spend host memory per disk and per backing layer: check the host\'s headroom before raising them across a fleet.',

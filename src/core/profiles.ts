@@ -1,4 +1,4 @@
-// The driver's defaults by generation and host platform ([CACHE], FACTS.md). The user picks the
+// The driver's defaults by generation and host platform ([CACHE], docs/sources.md). The user picks the
 // profile in the mapping file (`assume.driver`, `assume.platform`); the tool never guesses it.
 import { formatInterval } from './format';
 import { KiB, MiB, maxOf, minOf, minimumRefcountCache } from './sizing';
@@ -44,7 +44,7 @@ const legacy = (platform: HostPlatform): DriverProfile => ({
   platform,
   summary: 'legacy driver: L2 cache 1 MiB (at least 8 clusters), refcount cache a quarter of the L2 cache, cleanup off',
   name: 'legacy driver',
-  // "at least 8 clusters" is from memory (FACTS.md); treated as a default, not a limit.
+  // "at least 8 clusters" is from memory (docs/sources.md); treated as a default, not a limit.
   defaultL2Cache: (_full, cluster) => maxOf(1n * MiB, 8n * cluster),
   defaultRefcountCache: (l2, cluster) => maxOf(l2 / 4n, minimumRefcountCache(cluster)),
   defaultCleanupInterval: 0,

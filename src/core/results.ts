@@ -58,7 +58,7 @@ export interface Finding<Rule extends string = string> {
   written?: string;
 }
 
-/** The sizing numbers of one disk (CONTRACTS.md §3). Byte counts are exact integers. */
+/** The sizing numbers of one disk (docs/cli.md). Byte counts are exact integers. */
 export interface SizingReport {
   virtualSize: bigint;
   clusterSize: bigint;

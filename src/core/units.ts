@@ -1,4 +1,4 @@
-// Sizes and intervals as CONTRACTS.md §1 defines them. Byte counts are bigint so that no value a
+// Sizes and intervals as docs/mapping-file.md defines them. Byte counts are bigint so that no value a
 // qcow2 header can hold is ever rounded; decimal fractions ("2.5M") are computed exactly.
 import { fail, ok, type Outcome } from './result';
 
@@ -122,7 +122,7 @@ export function sizeStyleOf(written: unknown): SizeStyle | undefined {
 
 export const SHARE_HELP = 'a number from 0 to 1, or a percentage such as "99%"';
 
-/** Reads a share: `0.99`, `"0.99"` or `"99%"` (CONTRACTS.md §1), from 0 to 1 inclusive. */
+/** Reads a share: `0.99`, `"0.99"` or `"99%"` (docs/mapping-file.md), from 0 to 1 inclusive. */
 export function parseShare(input: unknown): Outcome<number> {
   let value: number;
   if (typeof input === 'number') value = input;

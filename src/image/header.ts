@@ -9,7 +9,7 @@ import type { ByteSource } from './source';
 export const QCOW2_MAGIC = 0x514649fb; // "QFI\xfb"
 const V2_HEADER_BYTES = 72;
 const V3_HEADER_MIN_BYTES = 104;
-/** [SPEC] cluster_bits from 9 (512 B) to the 2 MiB the format's users accept (FACTS.md). */
+/** [SPEC] cluster_bits from 9 (512 B) to the 2 MiB the format's users accept (docs/sources.md). */
 export const MIN_CLUSTER_BITS = 9;
 export const MAX_CLUSTER_BITS = 21;
 const MIN_EXTENDED_L2_CLUSTER_BITS = 14;

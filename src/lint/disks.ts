@@ -16,7 +16,7 @@ import { traceRequestFor } from './traces';
 import type { MeasuredCurve } from '../model/traces';
 import { measuredTarget } from '../rules/measured';
 
-/** The measured figures of a disk with a trace (CONTRACTS.md §3 `measured`), at its effective L2 cache. */
+/** The measured figures of a disk with a trace (docs/cli.md `measured`), at its effective L2 cache. */
 function measuredReport(curve: MeasuredCurve, top: LayerCache, target: number): NonNullable<DiskReport['measured']> {
   const recommendation = measuredTarget(curve, target, top.entrySize);
   return {

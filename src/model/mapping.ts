@@ -29,7 +29,7 @@ export interface Assumptions {
   driver: DriverGeneration;
   platform: HostPlatform;
   refcountBits: bigint;
-  /** What the recommendation from a measured trace aims for (CONTRACTS.md §1, default 0.99). */
+  /** What the recommendation from a measured trace aims for (docs/mapping-file.md, default 0.99). */
   targetHitRatio: number;
 }
 

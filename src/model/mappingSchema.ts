@@ -1,4 +1,4 @@
-// The mapping file's schema (CONTRACTS.md §1). The JSON Schema shipped for editors is generated from
+// The mapping file's schema (docs/mapping-file.md). The JSON Schema shipped for editors is generated from
 // this one definition (scripts/generate-schema.ts), so the two cannot drift apart.
 import { z } from 'zod';
 

@@ -1,4 +1,4 @@
-// Base against head (CONTRACTS.md §8): which findings a change brings and settles, what it does to
+// Base against head (docs/cli.md): which findings a change brings and settles, what it does to
 // the cache memory of each machine and host, and which disks it adds, removes, resizes or re-tunes.
 // Both sides come in as lint results; this module only pairs them up.
 import type { Finding, Severity, SizingReport } from '../core/results';

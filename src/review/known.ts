@@ -1,5 +1,5 @@
 // Known findings: a file of the findings a repository already had when it adopted the linter, so
-// only new ones fail a build (CONTRACTS.md §7). The file is meant to be read in a diff: sorted,
+// only new ones fail a build (docs/cli.md). The file is meant to be read in a diff: sorted,
 // one entry per finding, identities only (no lines, no messages whose numbers drift).
 import { z } from 'zod';
 import type { Finding } from '../core/results';

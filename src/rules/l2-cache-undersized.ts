@@ -9,7 +9,7 @@ import { accessOfPattern } from '../core/workload';
 import { ratio, share, size } from './format';
 import { docsPage, type Rule } from './types';
 
-/** What the miss rate costs, from the cache model (FACTS.md [IRM], [CHE]). */
+/** What the miss rate costs, from the cache model (docs/sources.md [IRM], [CHE]). */
 function prediction(top: LayerCache, pattern: string, requestSize: bigint): string {
   const access = accessOfPattern(pattern);
   if (!access.ok) return '';

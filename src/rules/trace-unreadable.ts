@@ -17,5 +17,5 @@ export const traceUnreadable: Rule<'trace-unreadable'> = {
   },
 };
 
-/** The caution every message built on a measured trace carries (FACTS.md). */
+/** The caution every message built on a measured trace carries (docs/sources.md). */
 export const TRACE_CAUTION = CAUTIONS.tracePeriod;

@@ -1,4 +1,4 @@
-// From guest requests to L2 cache lookups (FACTS.md "Measured curves from I/O traces"): a request
+// From guest requests to L2 cache lookups (docs/sources.md "Measured curves from I/O traces"): a request
 // (offset, length) touches clusters floor(offset/cs) .. floor((offset+length-1)/cs); cluster k sits in
 // cache entry floor(k / (entryBytes / l2EntryWidth)). The driver looks each distinct cache entry up
 // once per request, in ascending order (common practice). Dividing by the guest bytes one cache entry

@@ -1,4 +1,4 @@
-// The measured curve as the `curve` command reports it (CONTRACTS.md §6), built once here so every
+// The measured curve as the `curve` command reports it (docs/cli.md), built once here so every
 // front end formats the same numbers: the hit ratio at powers of two of cache entries up to the
 // working set, at each size asked for, and the smallest cache reaching a target hit ratio.
 

@@ -30,7 +30,7 @@ describe('backing chains', function () {
     assert.deepEqual(report.chain.map((l) => l.clusterSize), [64n * 1024n, 2n * MiB]);
     assert.deepEqual(report.chain.map((l) => l.version), [3, 2]);
     assert.equal(report.extendedL2, true);
-    // each layer's own full-coverage cache [CACHE]: 20 GiB at 64 KiB -> 2.5 MiB (FACTS check table)
+    // each layer's own full-coverage cache [CACHE]: 20 GiB at 64 KiB -> 2.5 MiB (docs/sources.md check values)
     assert.equal(report.chain[0]!.l2FullCoverage, 2560n * 1024n);
     assert.equal(report.chain[0]!.dataClustersAllocated, 1);
 

@@ -118,7 +118,7 @@ describe('image reader against the writer ground truth', function () {
   });
 
   describe('cache coverage [CACHE]', () => {
-    it('l2FullCoverage follows the FACTS check table: 20 GiB at 64 KiB -> 2.5 MiB (common practice)', async () => {
+    it('l2FullCoverage follows the docs/sources.md check values: 20 GiB at 64 KiB -> 2.5 MiB (common practice)', async () => {
       const image = write({ version: 3, clusterBits: 16, virtualSize: 20n * GiB, clusters: [{ guest: 0, kind: 'data' }, { guest: 300000, kind: 'data' }] });
       const report = await inspectImage(image.path);
       assert.equal(report.l2FullCoverage, 2560n * KiB);
@@ -127,7 +127,7 @@ describe('image reader against the writer ground truth', function () {
       assert.equal(report.l2AllocatedCoverage, 128n * KiB);
     });
 
-    it('1 TiB at 2 MiB clusters: full coverage 4 MiB (FACTS check table, common practice)', async () => {
+    it('1 TiB at 2 MiB clusters: full coverage 4 MiB (docs/sources.md check values, common practice)', async () => {
       const image = write({ version: 3, clusterBits: 21, virtualSize: 1024n * GiB, clusters: [{ guest: 262143, kind: 'data' }], writeData: false });
       const report = await inspectImage(image.path);
       assert.equal(report.l2FullCoverage, 4n * MiB);

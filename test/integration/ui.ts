@@ -6,7 +6,7 @@
 // Expected numbers come from the qcow2 specification's L2 geometry, not from the engine: one 8-byte
 // L2 entry per cluster, a cache holds whole entries (one cluster each when no slice is set), so
 // full coverage = roundUp(virtual size / cluster * 8, cluster) [qcow2 specification, "L2 tables";
-// rounding to whole entries per CONTRACTS.md §3].
+// rounding to whole entries per docs/cli.md].
 import { readFileSync } from 'node:fs';
 import * as path from 'node:path';
 import type { Frame, Page } from 'playwright-core';
@@ -276,7 +276,7 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   const series = await curveIn(frame, LEDGER_CARD).locator('svg.curve-chart path.curve-series').evaluateAll((paths) => paths.map((p) => `${p.getAttribute('data-series')}:${p.getAttribute('data-entry-size')}`)).catch(() => [] as string[]);
   checks.check('selecting the ledger draws its chart: whole 64 KiB tables and 4 KiB slices side by side', ledgerChart === true && series.sort().join(' ') === 'slice:4096 table:65536', series.join(' '));
   const fullMark = await markOf(frame, LEDGER_CARD, 'full');
-  // Full coverage of 1 TiB at 64 KiB clusters: 128 MiB [qcow2 specification, FACTS.md check values].
+  // Full coverage of 1 TiB at 64 KiB clusters: 128 MiB [qcow2 specification, docs/sources.md check values].
   checks.check('the full-coverage mark (128 MiB) reads 100 %',
     fullMark !== undefined && fullMark.bytes === (128n * MiB).toString() && fullMark.hitRatio === 1 && fullMark.shown === '100 %' && fullMark.table === '1' && fullMark.slice === '1',
     JSON.stringify(fullMark));

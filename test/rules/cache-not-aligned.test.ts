@@ -1,5 +1,5 @@
 // cache-not-aligned: cache sizes are multiples of the cluster size, or of the cache entry size when
-// one is set; the refcount and combined caches always use whole clusters ([CACHE], FACTS.md).
+// one is set; the refcount and combined caches always use whole clusters ([CACHE], docs/sources.md).
 import { strict as assert } from 'node:assert';
 import { CACHE } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, roundTrip, ruleTable } from './harness';

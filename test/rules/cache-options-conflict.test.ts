@@ -1,5 +1,5 @@
 // cache-options-conflict: of the L2, refcount and combined cache sizes at most two may be set
-// together ([CACHE], FACTS.md "Cache sizing").
+// together ([CACHE], docs/sources.md "Cache sizing").
 import { strict as assert } from 'node:assert';
 import { CACHE } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, ruleTable } from './harness';

@@ -1,6 +1,6 @@
 // cluster-cow-amplification: a first write of size w into an unallocated cluster of size c fills
 // the whole cluster, about c / w times the data; with extended L2 the unit is a subcluster, c / 32
-// ([SPEC] subclusters; amplification is common practice, FACTS.md "Check values").
+// ([SPEC] subclusters; amplification is common practice, docs/sources.md "Check values").
 import { strict as assert } from 'node:assert';
 import { COMMON, SPEC } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, ruleTable } from './harness';

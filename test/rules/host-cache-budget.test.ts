@@ -1,6 +1,6 @@
 // host-cache-budget: the caches of all machines on one hypervisor host, across files, against the
 // host's cache share (warning) and its memory (error). Per-machine cache memory is the check table
-// of FACTS.md [CACHE]: an 8 GiB disk at 64 KiB clusters takes 1 MiB of L2 for full coverage plus the
+// of docs/sources.md [CACHE]: an 8 GiB disk at 64 KiB clusters takes 1 MiB of L2 for full coverage plus the
 // 256 KiB default refcount cache (4 clusters) = 1.25 MiB; a 1 TiB disk with 128 MiB of L2 takes
 // 128.25 MiB.
 import { strict as assert } from 'node:assert';

@@ -1,5 +1,5 @@
 // invalid-value: a size, interval or flag that cannot be read or is out of range, reported at the
-// value with what was expected. Units follow CONTRACTS.md §1 and [IEC] (K, Ki, KiB = 2^10; kB =
+// value with what was expected. Units follow docs/mapping-file.md and [IEC] (K, Ki, KiB = 2^10; kB =
 // 10^3); ranges follow [SPEC] (cluster 512 B..2 MiB, power of two; extended L2 from 16 KiB) and
 // [CACHE] (a cache entry size is a power of two from 512 B up to the cluster size).
 import { strict as assert } from 'node:assert';

@@ -1,5 +1,5 @@
 // l2-cache-oversized: a configured L2 cache above full coverage is memory the driver never uses.
-// Full coverage and the two-entry minimum come from [CACHE] (FACTS.md "Cache sizing").
+// Full coverage and the two-entry minimum come from [CACHE] (docs/sources.md "Cache sizing").
 import { strict as assert } from 'node:assert';
 import { CACHE } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, roundTrip, ruleTable } from './harness';

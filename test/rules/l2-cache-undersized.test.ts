@@ -1,7 +1,7 @@
 // l2-cache-undersized: the effective L2 cache must map the whole virtual disk. Expected sizes come
 // from [CACHE]'s formula (covered = cache * cluster / entry bytes, full coverage rounded up to whole
-// cache entries), FACTS.md's check table and its worked example, and the driver defaults by
-// generation ([CACHE], as FACTS.md lists them).
+// cache entries), docs/sources.md's check table and its worked example, and the driver defaults by
+// generation ([CACHE], as docs/sources.md lists them).
 import { strict as assert } from 'node:assert';
 import { CACHE, COMMON } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, roundTrip, ruleTable, yaml } from './harness';

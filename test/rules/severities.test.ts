@@ -1,5 +1,5 @@
 // Severities: each rule's default, the mapping file's `rules` overrides, and the editor's settings
-// (LintOptions.severities) over both (CONTRACTS.md §4 fixes the defaults).
+// (LintOptions.severities) over both (docs/cli.md fixes the defaults).
 import { strict as assert } from 'node:assert';
 import { lintDocument, RULES } from '../../src/lint';
 import { CONTRACT } from '../helpers/sources';

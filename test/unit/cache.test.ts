@@ -1,5 +1,5 @@
 // The caches a disk really gets: the combined-cache split, minimums, alignment, the driver-default
-// profiles and a backing chain's memory, against the published cache notes ([CACHE], FACTS.md).
+// profiles and a backing chain's memory, against the published cache notes ([CACHE], docs/sources.md).
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
 import { checkCacheOptions, layerCache, sizeChain, type CacheSettings, type LayerGeometry } from '../../src/core/cache';
@@ -18,7 +18,7 @@ const linux = driverProfile('current', 'linux');
 const other = driverProfile('current', 'other');
 const legacyLinux = driverProfile('legacy', 'linux');
 const legacyOther = driverProfile('legacy', 'other');
-/** 20 GiB at 64 KiB: full coverage 2.5 MiB (FACTS.md check table), minimum refcount cache 256 KiB. */
+/** 20 GiB at 64 KiB: full coverage 2.5 MiB (docs/sources.md check table), minimum refcount cache 256 KiB. */
 const twentyGiB = disk(20n * GiB);
 
 describe('cache: at most two of the three knobs [CACHE]', () => {
@@ -158,7 +158,7 @@ describe('cache: minimums, alignment and the full-coverage cap [CACHE]', () => {
   });
 });
 
-describe('cache: driver defaults by generation and platform (FACTS.md, from [CACHE])', () => {
+describe('cache: driver defaults by generation and platform (docs/sources.md, from [CACHE])', () => {
   it(`${CACHE} current/linux: L2 up to 32 MiB, never above full coverage; refcount 4 clusters; cleanup 600 s`, () => {
     const big = layerCache(disk(TiB), {}, linux);
     assert.deepEqual([big.l2, big.refcount, big.cleanupInterval, big.l2Source], [32n * MiB, 256n * KiB, 600, 'default']);
@@ -229,7 +229,7 @@ describe('cache: extended L2 and refcounts', () => {
   });
   // Reported to the lead: with the legacy profile and clusters below 64 KiB, the default refcount
   // cache is a quarter of the L2 cache *after* it is capped at full coverage, so it changes with
-  // extended L2 and with the disk size. FACTS.md's legacy defaults say "L2 cache 1 MiB ...;
+  // extended L2 and with the disk size. docs/sources.md's legacy defaults say "L2 cache 1 MiB ...;
   // refcount cache 1/4 of the L2 cache": 256 KiB here, whatever the disk's entry width.
   it(`${CACHE} legacy: the default refcount cache does not depend on extended L2 (1 GiB at 16 KiB clusters: 256 KiB)`, () => {
     const standard = layerCache(disk(GiB, 16n * KiB, false), {}, legacyLinux);

@@ -1,4 +1,4 @@
-// `cachewright compare` (CONTRACTS.md §8): two folders, or a git revision read without touching the
+// `cachewright compare` (docs/cli.md): two folders, or a git revision read without touching the
 // work tree; findings new / settled / unchanged, memory per machine and host, disks added, removed
 // and changed; exit status; SARIF baselineState validated against the SARIF 2.1.0 JSON schema
 // (the copy in @microsoft/jest-sarif, checked with ajv as in cli-lint-sarif.test.ts).

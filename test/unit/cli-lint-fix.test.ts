@@ -1,7 +1,7 @@
 // `cachewright lint --fix` on real files in throwaway folders: it changes the bytes it means to and no
 // others (YAML and JSON, LF and CRLF, with and without a UTF-8 byte order mark), lands fixes that
 // touch the same map over several passes, writes atomically, and leaves alone what it must.
-// Expected values follow FACTS.md [CACHE]: full coverage = ceil(V / cluster) * 8 bytes, rounded up
+// Expected values follow docs/sources.md [CACHE]: full coverage = ceil(V / cluster) * 8 bytes, rounded up
 // to whole cache entries; 600 s is the idle cleanup interval the cleanup rule proposes.
 import { strict as assert } from 'node:assert';
 import * as fs from 'node:fs';
@@ -220,7 +220,7 @@ describe('cachewright lint --fix', () => {
       assert.doesNotMatch(run.stdout, /undersized\.yaml.*l2-cache-undersized/);
       assert.match(run.stdout, /conflict\.json:7:\d+ +error +cache-options-conflict/);
       assert.match(run.stdout, /; --fix settled 2;/);
-      // FACTS.md "Cautions to show users": settings apply on reopen, host memory, change control
+      // docs/sources.md "Cautions to show users": settings apply on reopen, host memory, change control
       assert.match(run.stdout, /restart the VM or reopen the disk/);
       assert.match(run.stdout, /host memory/);
       assert.match(run.stdout, /change control/);

@@ -1,6 +1,6 @@
 // `cachewright lint` run in process through runCommand, on the fixture workspace under
 // test/fixtures/lint: exit codes, text and JSON output, file selection, mapping discovery and the
-// errors a user sees. Expected numbers come from FACTS.md's formulas and check table, not from the
+// errors a user sees. Expected numbers come from docs/sources.md's formulas and check table, not from the
 // engine.
 import { strict as assert } from 'node:assert';
 import * as fs from 'node:fs';
@@ -78,7 +78,7 @@ describe('cachewright lint: text output', () => {
     const lines = findingLines(run);
     assert.equal(lines.length, 3, run.stdout);
     for (const line of lines) assert.match(line, /^hosts\/[\w.]+:\d+:\d+ +(error|warning|info) +[a-z0-9-]+ +\S/);
-    // 1 TiB at 64 KiB clusters needs 128 MiB of L2 cache for full coverage (FACTS.md check table).
+    // 1 TiB at 64 KiB clusters needs 128 MiB of L2 cache for full coverage (docs/sources.md check table).
     const undersized = lines.find((l) => l.includes('l2-cache-undersized')) ?? '';
     assert.match(undersized, /^hosts\/undersized\.yaml:8:15 +warning +l2-cache-undersized +.*128 MiB/);
     // Findings of one file stay together, files are separated by a blank line.
@@ -138,7 +138,7 @@ describe('cachewright lint: JSON output', () => {
         assert.ok(finding.line >= 1 && finding.column >= 1, 'lines and columns are 1-based');
       }
     }
-    // Suppressed findings do not count (CONTRACTS.md §3).
+    // Suppressed findings do not count (docs/cli.md).
     assert.deepEqual(
       { files: doc.summary.files, disks: doc.summary.disks, errors: doc.summary.errors, warnings: doc.summary.warnings, infos: doc.summary.infos },
       { files: 5, disks: 5, errors: 1, warnings: 1, infos: 1 },

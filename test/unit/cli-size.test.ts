@@ -1,5 +1,5 @@
 // `cachewright size` as a user runs it: the built dist/cli.js in a child process. Expected numbers are
-// worked out from FACTS.md's formulas and check table, not read from the engine.
+// worked out from docs/sources.md's formulas and check table, not read from the engine.
 import { strict as assert } from 'node:assert';
 import { execFile, execFileSync } from 'node:child_process';
 import * as path from 'node:path';
@@ -38,7 +38,7 @@ function cachewright(...args: string[]): Promise<Run> {
 /** A stack frame line as Node prints them: "    at fn (file:line:col)". */
 const STACK_FRAME = /^\s+at \S/m;
 
-/** The contract's `sizing` object (CONTRACTS.md §3) plus l2Tables, in this order. */
+/** The contract's `sizing` object (docs/cli.md) plus l2Tables, in this order. */
 const SIZING_KEYS = [
   'virtualSize', 'clusterSize', 'l2EntryBytes', 'l2FullCoverage', 'l2Effective', 'l2CoveredBytes',
   'refcountEffective', 'layers', 'cacheMemoryTotal', 'l2Tables',
@@ -122,7 +122,7 @@ describe('cli: cachewright size', function () {
         virtualSize: 20 * GiB, // 21474836480
         clusterSize: 64 * KiB, // the usual default [SPEC]
         l2EntryBytes: 8, // standard entries [SPEC]
-        l2FullCoverage: 2.5 * MiB, // FACTS check table: 20 GiB at 64 KiB -> 2.5 MiB
+        l2FullCoverage: 2.5 * MiB, // docs/sources.md check values: 20 GiB at 64 KiB -> 2.5 MiB
         l2Effective: 2.5 * MiB, // current/linux default: up to 32 MiB, never above full coverage [CACHE]
         l2CoveredBytes: 20 * GiB, // 2.5 MiB * 64 KiB / 8 = 20 GiB [CACHE]
         refcountEffective: 256 * KiB, // 4 clusters [CACHE]
@@ -141,7 +141,7 @@ describe('cli: cachewright size', function () {
       assert.equal(run.code, 0, run.stderr);
       const parsed = JSON.parse(run.stdout) as Record<string, number>;
       assert.equal(parsed.l2EntryBytes, 16);
-      assert.equal(parsed.l2FullCoverage, 256 * MiB); // FACTS check table
+      assert.equal(parsed.l2FullCoverage, 256 * MiB); // docs/sources.md check values
       assert.equal(parsed.l2Effective, 32 * MiB); // capped by the current/linux default
       assert.equal(parsed.l2CoveredBytes, 128 * GiB); // 32 MiB * 64 KiB / 16
       assert.equal(parsed.l2Tables, 4096); // 1 TiB / (64 KiB * 4096)
@@ -159,7 +159,7 @@ describe('cli: cachewright size', function () {
     it(`${CACHE} --cache 1M on 20 GiB covers 8 GiB; a cache above full coverage is used only up to it`, async () => {
       const small = JSON.parse((await cachewright('size', '--size', '20G', '--cache', '1M', '--format', 'json')).stdout) as Record<string, number>;
       assert.equal(small.l2Effective, MiB);
-      assert.equal(small.l2CoveredBytes, 8 * GiB); // FACTS check table: 1 MiB covers 8 GiB at 64 KiB
+      assert.equal(small.l2CoveredBytes, 8 * GiB); // docs/sources.md check values: 1 MiB covers 8 GiB at 64 KiB
       assert.equal(small.cacheMemoryTotal, MiB + 256 * KiB);
       const big = JSON.parse((await cachewright('size', '--size', '20G', '--cache', '64M', '--format', 'json')).stdout) as Record<string, number>;
       assert.equal(big.l2Effective, 2.5 * MiB);
@@ -218,7 +218,7 @@ describe('cli: cachewright size', function () {
       const run = await cachewright('size', '--size', '20G', '--platform', 'other');
       assert.match(run.stdout, /^idle cleanup +0 \(off\)/m);
     });
-    it(`${COMMON} shows the cautions of FACTS.md`, async () => {
+    it(`${COMMON} shows the cautions of docs/sources.md`, async () => {
       const { stdout } = await cachewright('size', '--size', '20G');
       assert.match(stdout, /take effect when the disk is opened/);
       assert.match(stdout, /restart the VM or reopen the disk/);

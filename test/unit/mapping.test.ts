@@ -1,5 +1,5 @@
 // The mapping file loader: every problem is reported at its own line and column in the mapping
-// file (CONTRACTS.md §1), for YAML and JSON mapping files; selectors are RFC 9535 JSONPath, sizes
+// file (docs/mapping-file.md), for YAML and JSON mapping files; selectors are RFC 9535 JSONPath, sizes
 // follow IEC 80000-13, accept pointers RFC 6901.
 import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';

@@ -1,7 +1,7 @@
 // The sizing panel's hit-ratio chart as a pure function (webview/curveModel.ts): where the marks sit on
 // the log size axis, the curves' shape and the hit ratio read at each mark.
 // Sources: entry counts and full-coverage sizes from the qcow2 specification's L2 geometry [SPEC]
-// (one 8-byte entry per cluster, an L2 table is one cluster; the check values in FACTS.md); the hit
+// (one 8-byte entry per cluster, an L2 table is one cluster; the check values in docs/sources.md); the hit
 // ratio under uniform access is C/N, cached entries over entries [IRM]; skewed access follows the
 // characteristic-time approximation [CHE]; binary size labels per IEC 80000-13 [IEC].
 import { strict as assert } from 'node:assert';
@@ -20,7 +20,7 @@ function chart(input: ChartInput): ChartModel {
   return outcome.chart;
 }
 
-// 1 TiB with 64 KiB clusters: 16 Mi clusters, 8 B each = 128 MiB of L2 tables [SPEC; FACTS.md check values].
+// 1 TiB with 64 KiB clusters: 16 Mi clusters, 8 B each = 128 MiB of L2 tables [SPEC; docs/sources.md check values].
 const ledger: ChartInput = {
   virtualSize: TiB, clusterSize: 64n * KiB, extendedL2: false, entrySize: 4n * KiB,
   pattern: 'random', requestSize: 8n * KiB, configured: 8n * MiB, effective: 8n * MiB, fullCoverage: 128n * MiB,
@@ -97,7 +97,7 @@ describe('panel curve: the chart model', () => {
     assert.equal(after.ratios.slice, 16384 / 32768);
   });
 
-  it('a what-if cluster change redraws both curves: 1 TiB at 1 MiB clusters needs 8 MiB of whole tables, so 8 MiB reads 100 % [SPEC; FACTS.md check values]', () => {
+  it('a what-if cluster change redraws both curves: 1 TiB at 1 MiB clusters needs 8 MiB of whole tables, so 8 MiB reads 100 % [SPEC; docs/sources.md check values]', () => {
     const model = chart({ ...ledger, clusterSize: MiB, fullCoverage: 8n * MiB });
     assert.equal(model.series.find((s) => s.id === 'table')?.fullCoverageBytes, 8n * MiB);
     assert.equal(model.series.find((s) => s.id === 'table')?.points.length, 7, 'a 1 MiB table maps 128 GiB: 8 tables, curve from 2 to 8 entries');
@@ -115,7 +115,7 @@ describe('panel curve: the chart model', () => {
   });
 
   it('with clusters of 4 KiB or less there is no smaller slice to draw: only the whole-table curve', () => {
-    // 1 TiB at 4 KiB clusters needs 2 GiB of L2 tables [SPEC; FACTS.md check values].
+    // 1 TiB at 4 KiB clusters needs 2 GiB of L2 tables [SPEC; docs/sources.md check values].
     const model = chart({ ...ledger, clusterSize: 4n * KiB, entrySize: 4n * KiB, configured: undefined, effective: 32n * MiB, fullCoverage: 2n * GiB });
     assert.deepEqual(model.series.map((s) => s.id), ['table']);
     assert.equal(model.series[0]?.fullCoverageBytes, 2n * GiB);

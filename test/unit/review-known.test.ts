@@ -1,4 +1,4 @@
-// Known findings (CONTRACTS.md §7): identities that survive unrelated edits, the known-findings file,
+// Known findings (docs/cli.md): identities that survive unrelated edits, the known-findings file,
 // `lint --known` / `--record-known`, and SARIF's partialFingerprints and baselineState, validated
 // against the SARIF 2.1.0 JSON schema (the copy shipped in @microsoft/jest-sarif, as in
 // cli-lint-sarif.test.ts).

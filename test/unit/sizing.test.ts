@@ -1,5 +1,5 @@
 // qcow2 geometry and cache coverage against the format specification, the published cache notes and
-// FACTS.md's check table and worked examples.
+// docs/sources.md's check table and worked examples.
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
 import {
@@ -35,7 +35,7 @@ const clusterAndSliceArb = (clusters: fc.Arbitrary<bigint>): fc.Arbitrary<[bigin
     fc.integer({ min: 9, max: cluster.toString(2).length - 1 })
       .map((bits): [bigint, bigint] => [cluster, 1n << BigInt(bits)]));
 
-describe('sizing: FACTS.md check table (full-coverage L2 cache, whole-table entries)', () => {
+describe('sizing: docs/sources.md check table (full-coverage L2 cache, whole-table entries)', () => {
   // virtual size, cluster, entry bytes, full L2 cache -- common practice check values that follow
   // from [CACHE]'s formula covered = C * cluster / entry_bytes.
   const table: [string, string, bigint, string][] = [

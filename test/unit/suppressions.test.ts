@@ -1,6 +1,6 @@
 // Suppressions: `# cachewright-accept RULE[, RULE]: REASON` comments in YAML, and the mapping file's
 // accept list (rule + RFC 6901 pointer, optionally one file). A suppressed finding stays in the
-// results with its reason (CONTRACTS.md §3); it is never dropped.
+// results with its reason (docs/cli.md); it is never dropped.
 import { strict as assert } from 'node:assert';
 import { readDefinition } from '../../src/model/document';
 import { readSuppressions } from '../../src/model/suppressions';

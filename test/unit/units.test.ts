@@ -1,4 +1,4 @@
-// Sizes and intervals (CONTRACTS.md §1) against IEC 80000-13's prefixes and exact decimal arithmetic.
+// Sizes and intervals (docs/mapping-file.md) against IEC 80000-13's prefixes and exact decimal arithmetic.
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
 import { formatInterval, formatSize } from '../../src/core/format';

@@ -1,7 +1,7 @@
 // Block-layer trace text: the default output of the kernel tracer's text dumper (its manual page,
 // "DEFAULT OUTPUT"): a header "%D %2c %8s %5T.%9t %5p %2a %3d" (device major,minor; CPU; sequence;
 // seconds.nanoseconds; process id; action; RWBS), then for queued (Q) and issued (D) events
-// "SECTOR + BLOCKS [command]". Sectors are 512 bytes (FACTS.md). RWBS holds R (read), W (write) or D
+// "SECTOR + BLOCKS [command]". Sectors are 512 bytes (docs/sources.md). RWBS holds R (read), W (write) or D
 // (discard), optionally with B (barrier), S (sync) and other letters; an event with none of R, W, D
 // (a bare flush) looks nothing up.
 //

@@ -1,5 +1,5 @@
 // CSV traces: `offset,length[,op]` in bytes, one request per line, an optional header line first
-// (CONTRACTS.md §6). op is read/r, write/w, discard/d or trim/t (each looks up), flush/f or sync/s (no
+// (docs/cli.md). op is read/r, write/w, discard/d or trim/t (each looks up), flush/f or sync/s (no
 // lookup); a missing op is a request. Lines starting with '#' are comments.
 
 import { ascii, equalsWord, Fields, isBlankRange, readUnsigned } from '../bytes';

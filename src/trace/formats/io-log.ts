@@ -1,4 +1,4 @@
-// The I/O log of the flexible I/O tester (FACTS.md; its manual page, "Trace file format v2/v3"):
+// The I/O log of the flexible I/O tester (docs/sources.md; its manual page, "Trace file format v2/v3"):
 // a first line `fio version 2 iolog` or `fio version 3 iolog`, then
 //   v2: FILE add|open|close            and  FILE ACTION OFFSET LENGTH
 //   v3: TIME FILE add|open|close       and  TIME FILE ACTION OFFSET LENGTH

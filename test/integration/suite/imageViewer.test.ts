@@ -2,7 +2,7 @@
 // editor, its webview draws the model the host computed, and the files are never written.
 // Images come from the test writer (test/image/qcow2-writer.ts, built from the qcow2 specification
 // and checked against an independent reader in test/image/libqcow.test.ts), so every expected count
-// is the writer's own ground truth; expected cache sizes are worked from FACTS.md's formulas and
+// is the writer's own ground truth; expected cache sizes are worked from docs/sources.md's formulas and
 // named sources beside each check.
 import * as assert from 'node:assert/strict';
 import { createHash } from 'node:crypto';
@@ -110,7 +110,7 @@ describe('qcow2 image viewer', () => {
     assert.ok(caches?.allocated);
     // One L2 table is one cluster [SPEC]: 3 allocated tables take 3 x 64 KiB.
     assert.equal(caches.allocated.l2, 192n * KiB);
-    // FACTS.md check values (common practice): 8 GiB with 64 KiB clusters needs a 1 MiB L2 cache.
+    // docs/sources.md check values (common practice): 8 GiB with 64 KiB clusters needs a 1 MiB L2 cache.
     assert.equal(caches.wholeDisk.l2, 1n * MiB);
     assert.equal(caches.wholeDisk.l2Covered, 8n * GiB);
     // [CACHE] the refcount cache defaults to 4 clusters; 256 KiB with 16-bit refcounts covers 8 GiB.
@@ -123,7 +123,7 @@ describe('qcow2 image viewer', () => {
     assert.equal(view.chain.wholeDisk, 1n * MiB + 256n * KiB);
     assert.equal(view.chain.layersSized, 1);
     assert.equal(drawn.cacheRows, 4, 'the caches group of the one layer: tables present, whole disk, default L2, default refcount');
-    // FACTS.md cautions: reopen, host memory per layer, fixed at creation, for review.
+    // docs/sources.md cautions: reopen, host memory per layer, fixed at creation, for review.
     assert.equal(view.cautions.length, 4);
     assert.ok(view.cautions.some((c) => /opened/.test(c)));
     assert.ok(view.cautions.some((c) => /per backing layer/.test(c)));
@@ -133,7 +133,7 @@ describe('qcow2 image viewer', () => {
     const big = writeImage(path.join(dir, 'profiles.qcow2'), { version: 3, clusterBits: 16, virtualSize: 256n * GiB, clusters: [{ guest: 0, kind: 'data' }] });
     const uri = vscode.Uri.file(big.path);
     const first = await openImage(big.path);
-    // FACTS.md check values (common practice): 256 GiB with 64 KiB clusters needs 32 MiB for full coverage.
+    // docs/sources.md check values (common practice): 256 GiB with 64 KiB clusters needs 32 MiB for full coverage.
     assert.equal(first.view.layers[0]?.cost?.caches.choices.wholeDisk.l2, 32n * MiB);
     // [CACHE] current driver on Linux: up to 32 MiB.
     assert.deepEqual(first.view.profileChoice, { generation: 'current', platform: 'linux' });
@@ -252,7 +252,7 @@ describe('qcow2 image viewer', () => {
     assert.equal((top?.cost?.layout.clusterSize ?? 0n) / 32n, 2n * KiB);
     assert.equal(top?.cost?.allocation.subclustersAllocated, ext.truth.subclustersAllocated);
     assert.equal(top?.cost?.allocation.subclustersZero, ext.truth.subclustersZero);
-    // FACTS.md: 16-byte entries; 1 GiB / 64 KiB x 16 B = 256 KiB.
+    // docs/sources.md: 16-byte entries; 1 GiB / 64 KiB x 16 B = 256 KiB.
     assert.equal(top?.cost?.caches.choices.wholeDisk.l2, 256n * KiB);
   });
 

@@ -1,6 +1,6 @@
 // Cache entry geometry and the mapping of a working set onto cache entries, checked against the qcow2
 // format specification's table geometry [SPEC] and the cache notes' worked examples [CACHE]
-// (FACTS.md, "Layout" and "Cache sizing").
+// (docs/sources.md, "Layout" and "Cache sizing").
 import { strict as assert } from 'node:assert';
 import { entryGeometry, entrySpan, modelCache, type EntryGeometry } from '../../../src/core/cachemodel';
 
@@ -56,7 +56,7 @@ describe('cachemodel: entry geometry', () => {
     assert.equal(fullCoverage(1280n * MiB, 64n * KiB, false, 4n * KiB), 160n * KiB);
   });
 
-  it('FACTS.md check values (common practice): full L2 cache per virtual size and cluster', () => {
+  it('docs/sources.md check values (common practice): full L2 cache per virtual size and cluster', () => {
     const table: Array<[bigint, bigint, boolean, bigint]> = [
       [8n * GiB, 64n * KiB, false, MiB],
       [20n * GiB, 64n * KiB, false, (5n * MiB) / 2n],

@@ -1,5 +1,5 @@
 // The characteristic-time approximation of LRU [CHE] ("Hierarchical Web caching systems: modeling,
-// design and experimental results", IEEE JSAC 20(7), 2002; full citation in FACTS.md) against a
+// design and experimental results", IEEE JSAC 20(7), 2002; full citation in docs/sources.md) against a
 // deterministic LRU simulation (seeded mulberry32 generator, LRU written from its definition in
 // lru-simulation.ts). The issue's bar: agreement within 0.02 for Zipf s = 0.6, 0.8, 1.0 and a hot spot.
 import { strict as assert } from 'node:assert';

@@ -1,4 +1,4 @@
-// Uniform random access: the independent reference model's textbook result [IRM] (FACTS.md
+// Uniform random access: the independent reference model's textbook result [IRM] (docs/sources.md
 // cites the operating-systems theory textbook it comes from): N equally likely items and room for C gives a hit ratio of C/N.
 // Entry counts come from the qcow2 table geometry [SPEC].
 import { strict as assert } from 'node:assert';

@@ -1,6 +1,6 @@
 // The trace formats line by line, as their documents describe them: the I/O log versions 2 and 3 (the
 // flexible I/O tester's manual page, "Trace file format"), block-layer trace text (the dumper's manual
-// page, DEFAULT OUTPUT and RWBS), CSV (CONTRACTS.md §6); and every way a trace can be unusable.
+// page, DEFAULT OUTPUT and RWBS), CSV (docs/cli.md); and every way a trace can be unusable.
 import { strict as assert } from 'node:assert';
 import { execFileSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
