@@ -1,6 +1,6 @@
 // The sizing panel's script: registers the toolkit's components, receives views from the extension
 // host and draws them; what-if trials recompute here with the pure engine.
-import { decodeHostMessage, encodeMessage, type PanelMessage, type PanelView } from './protocol';
+import { decodeHostMessage, encodeMessage, type PanelMessage, type PanelView } from '../src/protocol/panel';
 import { renderEmpty, renderPanel, type PanelActions, type WhatIfState } from './render';
 
 interface VsCodeApi {

@@ -2,7 +2,7 @@
 // SVG attributes (no inline styles: the content security policy allows none).
 import type { SizingReport } from '../src/core/results';
 import { formatInterval, formatSize, formatSizeExact, parseSize } from '../src/core/units';
-import type { DiskView, FindingView, MachineView, PanelView, WhatIfValues } from './protocol';
+import type { DiskView, FindingView, MachineView, PanelView, WhatIfValues } from '../src/protocol/panel';
 import { curveFigure } from './curve';
 import { CLUSTER_CHOICES, sliceChoices, whatIf, type WhatIfResult } from './whatif';
 

@@ -4,7 +4,7 @@ import { sizeChain, type LayerSpec } from '../src/core/cache';
 import { driverProfile } from '../src/core/profiles';
 import type { SizingReport } from '../src/core/results';
 import { checkClusterSize, checkExtendedL2, checkSlice } from '../src/core/sizing';
-import type { DiskView, PanelView, WhatIfValues } from './protocol';
+import type { DiskView, PanelView, WhatIfValues } from '../src/protocol/panel';
 
 export interface WhatIfResult {
   sizing: SizingReport;

@@ -14,7 +14,7 @@ import { CacheStatus } from './statusBar';
 import { proposeMapping } from './starterProposal';
 import { whatIfEdit } from './whatIfEdits';
 import { registerImageViewer } from './imageViewer';
-import type { WhatIfValues } from '../../webview/protocol';
+import type { WhatIfValues } from '../protocol/panel';
 
 /** What the extension exports: read by the integration tests, useful to other extensions. */
 export interface CachewrightApi {

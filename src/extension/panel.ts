@@ -4,7 +4,7 @@ import * as vscode from 'vscode';
 import { webviewHtml } from './webviewPage';
 import {
   decodePanelMessage, encodeMessage, type HostMessage, type PanelView, type WhatIfValues,
-} from '../../webview/protocol';
+} from '../protocol/panel';
 import type { SourceRange } from '../core/results';
 
 export interface PanelHandlers {

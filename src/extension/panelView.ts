@@ -5,7 +5,7 @@ import type { LayerCache, LayerSpec } from '../core/cache';
 import { CAUTIONS } from '../core/cautions';
 import { parseInterval, parseSize } from '../core/units';
 import type { DiskReport, FileReport, Finding, Mapping } from '../lint';
-import type { ConfiguredCache, DiskView, FindingView, MachineView, PanelView } from '../../webview/protocol';
+import type { ConfiguredCache, DiskView, FindingView, MachineView, PanelView } from '../protocol/panel';
 
 const within = (pointer: string, scope: string): boolean => scope === '' || pointer === scope || pointer.startsWith(`${scope}/`);
 

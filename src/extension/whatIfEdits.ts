@@ -9,7 +9,7 @@ import { extractMachines, type DiskSpec } from '../model/disks';
 import { readDefinition, type DefinitionDocument } from '../model/document';
 import { applyEdits } from '../model/edits';
 import { diffTexts } from '../model/incremental';
-import type { WhatIfValues } from '../../webview/protocol';
+import type { WhatIfValues } from '../protocol/panel';
 
 type Field = 'clusterSize' | 'l2Cache' | 'cacheEntrySize';
 const FIELDS: readonly Field[] = ['clusterSize', 'l2Cache', 'cacheEntrySize'];

@@ -114,6 +114,8 @@ export function reparseItem(previous: DefinitionDocument, text: string, change: 
   if (slice.includes('\t') || /(^|\n)(---|\.\.\.)/.test(slice) || /[&*!%]/.test(slice) || slice.includes('<<')) return undefined;
   // The item's last line must hold content: trailing blank lines belong to what encloses it.
   if (!/\S[^\n]*\n?$/.test(slice)) return undefined;
+  // An item whose last line is a comment reaches on to the next item's indentation in a full read.
+  if (/(^|\n)[ \t]*#[^\n]*\n?$/.test(slice)) return undefined;
   // An item ending in an empty value (`key:` or `-`) reaches on to the next node in a full read.
   if (/(:|-)\s*(#[^\n]*)?$/.test(slice.trimEnd())) return undefined;
   // The line prefix ("  - ") becomes spaces: the item parses as an indented map, offsets unchanged.

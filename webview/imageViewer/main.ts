@@ -2,7 +2,7 @@
 // Stop and Read again go back as messages. It reads nothing itself.
 import {
   decodeViewerHostMessage, encodeViewerMessage, type ImageView, type ProfileChoice, type ViewerWebviewMessage,
-} from '../../src/extension/imageViewer/protocol';
+} from '../../src/protocol/image-viewer';
 import { renderView, updateProgress } from './render';
 
 interface VsCodeApi {

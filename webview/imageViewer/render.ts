@@ -5,7 +5,7 @@ import { formatSize } from '../../src/core/units';
 import {
   ERROR_KIND_WORDS,
   type CacheChoiceView, type DrawnSummary, type ProfileChoice, type ImageView, type LayerView, type ThemeSummary, type WalkProgressView,
-} from '../../src/extension/imageViewer/protocol';
+} from '../../src/protocol/image-viewer';
 import { allocationPicture, pictureLegend } from './picture';
 
 export interface ViewerActions {

@@ -6,7 +6,7 @@ import { inspectImage, readChain, type ImageReport, type InspectProgress } from 
 import { layerReport } from '../../image/report';
 import { driverProfile, type DriverProfile } from '../../core/profiles';
 import { buildImageView, finalState } from './model';
-import type { DrawnSummary, ImageView, ProfileChoice, ViewState, WalkProgressView } from './protocol';
+import type { DrawnSummary, ImageView, ProfileChoice, ViewState, WalkProgressView } from '../../protocol/image-viewer';
 
 /** Progress reaches the webview at most this often; the walk itself reports more often. */
 const PROGRESS_EVERY_MS = 100;

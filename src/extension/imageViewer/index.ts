@@ -11,7 +11,7 @@
 //   cachewright.imageViewer.stopAtFirstProgress (uri) -> the next walk of that image stops itself at its
 //                                     first progress report, so a stop lands mid-walk deterministically
 import * as vscode from 'vscode';
-import { encodeSnapshot, type ProfileChoice } from './protocol';
+import { encodeSnapshot, type ProfileChoice } from '../../protocol/image-viewer';
 import { IMAGE_VIEW_TYPE, ImageViewerProvider } from './provider';
 
 export { IMAGE_VIEW_TYPE } from './provider';

@@ -9,7 +9,7 @@ import type { ImageReport } from '../../image';
 import {
   ERROR_KIND_WORDS,
   type CacheChoiceView, type ChainMemoryView, type ImageView, type LayerCachesView, type LayerView, type ViewState, type WalkProgressView,
-} from './protocol';
+} from '../../protocol/image-viewer';
 
 export interface ViewInput {
   seq: number;
@@ -42,7 +42,8 @@ export function buildImageView(input: ViewInput): ImageView {
     memory: chainMemory(input.layers, profile),
     profile: profile.summary,
     profileChoice: { generation: profile.generation, platform: profile.platform },
-    cautions: Object.values(CAUTIONS),
+    // The trace caution belongs to sized-from-a-trace views, not to an image's own facts.
+    cautions: [CAUTIONS.reopen, CAUTIONS.hostMemory, CAUTIONS.fixedAtCreation, CAUTIONS.review],
   };
 }
 

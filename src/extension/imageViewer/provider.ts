@@ -6,7 +6,7 @@ import { webviewHtml } from '../webviewPage';
 import { ImageDocument } from './document';
 import {
   decodeViewerWebviewMessage, encodeViewerMessage, type ProfileChoice, type ViewerHostMessage, type ViewerSnapshot,
-} from './protocol';
+} from '../../protocol/image-viewer';
 import { DRIVER_GENERATIONS, HOST_PLATFORMS } from '../../core/profiles';
 
 function isProfileChoice(value: unknown): value is ProfileChoice {

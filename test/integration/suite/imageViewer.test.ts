@@ -11,7 +11,7 @@ import { tmpdir } from 'node:os';
 import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { writeImage, type ClusterSpec, type WrittenImage } from '../../image/qcow2-writer';
-import { decodeSnapshot, type ImageView, type ViewerSnapshot } from '../../../src/extension/imageViewer/protocol';
+import { decodeSnapshot, type ImageView, type ViewerSnapshot } from '../../../src/protocol/image-viewer';
 import { api, demoFile, waitFor } from './helpers';
 
 const VIEW_TYPE = 'cachewright.qcow2Image';

@@ -1,8 +1,9 @@
 // The one message protocol between the extension host and the sizing panel's webview. Both sides
 // import this module, so a message's shape cannot drift between them. It is pure: no DOM, no vscode.
-import type { SourceRange, Severity, SizingReport } from '../src/core/results';
-import type { LayerSpec } from '../src/core/cache';
-import type { DriverGeneration, HostPlatform } from '../src/core/profiles';
+import type { SourceRange, Severity, SizingReport } from '../core/results';
+import type { LayerSpec } from '../core/cache';
+import type { DriverGeneration, HostPlatform } from '../core/profiles';
+import { fromWire, toWire } from './wire';
 
 export interface FindingView {
   rule: string;
@@ -85,34 +86,6 @@ export type PanelMessage =
   | { type: 'rendered'; seq: number; disks: number }
   | { type: 'reveal'; uri: string; range: SourceRange }
   | { type: 'applyWhatIf'; uri: string; version: number; pointer: string; values: WhatIfValues };
-
-// The webview channel carries JSON, which has no bigint: byte counts travel as tagged strings and
-// come back as bigint on the other side, so neither side ever rounds a size through a float.
-const BIGINT_TAG = '$bigint';
-
-export function toWire(value: unknown): unknown {
-  if (typeof value === 'bigint') return { [BIGINT_TAG]: value.toString() };
-  if (Array.isArray(value)) return value.map(toWire);
-  if (value !== null && typeof value === 'object') {
-    const out: Record<string, unknown> = {};
-    for (const [key, member] of Object.entries(value)) if (member !== undefined) out[key] = toWire(member);
-    return out;
-  }
-  return value;
-}
-
-export function fromWire(value: unknown): unknown {
-  if (Array.isArray(value)) return value.map(fromWire);
-  if (value !== null && typeof value === 'object') {
-    const record = value as Record<string, unknown>;
-    const tagged = record[BIGINT_TAG];
-    if (typeof tagged === 'string' && Object.keys(record).length === 1 && /^-?\d+$/.test(tagged)) return BigInt(tagged);
-    const out: Record<string, unknown> = {};
-    for (const [key, member] of Object.entries(record)) out[key] = fromWire(member);
-    return out;
-  }
-  return value;
-}
 
 const HOST_TYPES = new Set<HostMessage['type']>(['show', 'empty', 'focusDisk', 'applied']);
 const PANEL_TYPES = new Set<PanelMessage['type']>(['ready', 'rendered', 'reveal', 'applyWhatIf']);

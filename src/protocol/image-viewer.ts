@@ -2,9 +2,9 @@
 // module, so a message's shape cannot drift between them. Pure: no DOM, no vscode, no fs.
 // Byte counts are bigint and travel as tagged strings (the panel's codec), so no size is ever
 // rounded through a float on the way.
-import { fromWire, toWire } from '../../../webview/protocol';
-import type { DriverGeneration, HostPlatform } from '../../core/profiles';
-import type { ImageErrorKind } from '../../image/errors';
+import { fromWire, toWire } from './wire';
+import type { DriverGeneration, HostPlatform } from '../core/profiles';
+import type { ImageErrorKind } from '../image/errors';
 
 /** Where the viewer is with one image. */
 export type ViewState =

@@ -1,0 +1,27 @@
+// The webview channel carries JSON, which has no bigint: byte counts travel as tagged strings and
+// come back as bigint on the other side, so neither side ever rounds a size through a float.
+const BIGINT_TAG = '$bigint';
+
+export function toWire(value: unknown): unknown {
+  if (typeof value === 'bigint') return { [BIGINT_TAG]: value.toString() };
+  if (Array.isArray(value)) return value.map(toWire);
+  if (value !== null && typeof value === 'object') {
+    const out: Record<string, unknown> = {};
+    for (const [key, member] of Object.entries(value)) if (member !== undefined) out[key] = toWire(member);
+    return out;
+  }
+  return value;
+}
+
+export function fromWire(value: unknown): unknown {
+  if (Array.isArray(value)) return value.map(fromWire);
+  if (value !== null && typeof value === 'object') {
+    const record = value as Record<string, unknown>;
+    const tagged = record[BIGINT_TAG];
+    if (typeof tagged === 'string' && Object.keys(record).length === 1 && /^-?\d+$/.test(tagged)) return BigInt(tagged);
+    const out: Record<string, unknown> = {};
+    for (const [key, member] of Object.entries(record)) out[key] = fromWire(member);
+    return out;
+  }
+  return value;
+}
