@@ -141,7 +141,7 @@ describe('commands, status bar and panel', () => {
     assert.equal(proposal.diskFields.combinedCache, '$.tuning.total');
     assert.match(proposal.guessed.combinedCache ?? '', /combined \(L2 \+ refcount\) cache/);
     assert.match(proposal.text, /combinedCache: "\$\.tuning\.total" +# guessed: /);
-    assert.match(proposal.summary, /guessed from the key name alone: clusterSize, combinedCache/);
+    assert.match(proposal.summary, /guessed from the key name alone: combinedCache, clusterSize/);
     assert.equal(proposal.diskFields.name, '$.label');
     assert.equal(proposal.machineFields.memory, '$.ram');
     assert.equal(proposal.machineFields.name, '$.hostname');
