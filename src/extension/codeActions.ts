@@ -40,13 +40,6 @@ export class CachewrightCodeActions implements vscode.CodeActionProvider {
         if (diagnostic) action.diagnostics = [diagnostic];
         action.isPreferred = true;
         actions.push(action);
-        // Other fixes the finding offers (a measured target's alternative: full coverage).
-        for (const other of finding.alternatives ?? []) {
-          const alternative = new vscode.CodeAction(other.title, vscode.CodeActionKind.QuickFix);
-          alternative.edit = workspaceEdit(document, other.edits);
-          if (diagnostic) alternative.diagnostics = [diagnostic];
-          actions.push(alternative);
-        }
       }
     }
     if (!context.only || wantsFixAll || context.only.contains(vscode.CodeActionKind.Source)) {

@@ -7,7 +7,6 @@ import * as vscode from 'vscode';
 import tinyglobby = require('tinyglobby');
 import { LintSession, oversizedFileReport, type FileReport, type Mapping } from '../lint';
 import { ImageFactsCache } from './images';
-import { TraceCurvesCache } from './traces';
 import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
 import { isMappingFileName, Mappings, readDefinitionText } from './mappings';
 import { readSettings } from './settings';
@@ -37,7 +36,7 @@ export class Linting implements vscode.Disposable {
   readonly diagnostics = vscode.languages.createDiagnosticCollection('cachewright');
   readonly mappings = new Mappings();
   private readonly results = new Map<string, LintResult>();
-  private readonly sessions = new Map<string, { session: LintSession; severities: string; images: ImageFactsCache | undefined; traces: TraceCurvesCache | undefined }>();
+  private readonly sessions = new Map<string, { session: LintSession; severities: string; images: ImageFactsCache | undefined }>();
   private readonly timers = new Map<string, NodeJS.Timeout>();
   private readonly emitter = new vscode.EventEmitter<LintResult>();
   /** Fires after a definition was linted (from an editor or from disk). */
@@ -51,8 +50,6 @@ export class Linting implements vscode.Disposable {
 
   /** Image facts for the image rules; only in a trusted workspace (untrusted: the text alone). */
   private images = vscode.workspace.isTrusted ? new ImageFactsCache() : undefined;
-  /** Measured curves of the traces disks name; only in a trusted workspace. */
-  private traces = vscode.workspace.isTrusted ? new TraceCurvesCache() : undefined;
 
   constructor(private readonly extensionUri: vscode.Uri, readonly timings: Timings) {}
 
@@ -81,7 +78,6 @@ export class Linting implements vscode.Disposable {
       vscode.workspace.onDidChangeWorkspaceFolders(() => void this.reloadMappings().then(() => this.lintWorkspace(false))),
       vscode.workspace.onDidGrantWorkspaceTrust(() => {
         this.images = new ImageFactsCache();
-        this.traces = new TraceCurvesCache();
         void this.lintWorkspace(false);
       }),
       this.watch(),
@@ -134,9 +130,9 @@ export class Linting implements vscode.Disposable {
     const key = uri.toString();
     const severities = readSettings(uri).rules;
     const existing = this.sessions.get(key);
-    if (existing && existing.session.mapping === mapping && existing.severities === JSON.stringify(severities) && existing.images === this.images && existing.traces === this.traces) return existing.session;
-    const session = new LintSession(uri.fsPath, mapping, { severities, images: this.images?.lookup, traces: this.traces?.lookup });
-    this.sessions.set(key, { session, severities: JSON.stringify(severities), images: this.images, traces: this.traces });
+    if (existing && existing.session.mapping === mapping && existing.severities === JSON.stringify(severities) && existing.images === this.images) return existing.session;
+    const session = new LintSession(uri.fsPath, mapping, { severities, images: this.images?.lookup });
+    this.sessions.set(key, { session, severities: JSON.stringify(severities), images: this.images });
     return session;
   }
 
@@ -155,16 +151,6 @@ export class Linting implements vscode.Disposable {
     const imagePaths = images ? session.imagePaths() : [];
     if (images && imagePaths.length > 0) {
       void images.load(imagePaths).then((changed) => {
-        const current = this.results.get(uri.toString());
-        if (changed && current && current.version === version && current.text === text) this.lint(uri, text, version, mapping, true);
-      }, () => undefined);
-    }
-    // Traces named for the first time, or whose files changed, are measured in the background, then
-    // the text is linted again with their curves, if it is still the text the editor holds.
-    const traces = this.traces;
-    const traceRequests = traces ? session.traceRequests() : [];
-    if (traces && traceRequests.length > 0) {
-      void traces.load(traceRequests).then((changed) => {
         const current = this.results.get(uri.toString());
         if (changed && current && current.version === version && current.text === text) this.lint(uri, text, version, mapping, true);
       }, () => undefined);
