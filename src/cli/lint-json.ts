@@ -34,7 +34,7 @@ function findingJson(run: LintRun, finding: Finding) {
     ...position(finding.range),
     fix: finding.fix ? fixJson(finding.fix) : undefined,
     alternatives: finding.alternatives?.map(fixJson),
-    related: finding.related?.map((r) => ({ message: r.message, pointer: r.pointer, ...position(r.range) })),
+    related: finding.related?.map((r) => ({ message: r.message, ...(r.file !== undefined ? { file: mappingRelative(run.mapping, r.file) } : {}), pointer: r.pointer, ...position(r.range) })),
     accepted: finding.accepted ? { reason: finding.accepted.reason } : undefined,
     baselineState: baselineOf(run, finding),
   };

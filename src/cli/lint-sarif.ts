@@ -83,7 +83,7 @@ function result(run: LintRun, path: string, finding: Finding, report: NonNullabl
     locations: [location(artifact, finding.range, finding.pointer)],
     partialFingerprints: { [FINGERPRINT_KEY]: fingerprintOf(subject) },
     baselineState: baselineOf(run, finding),
-    relatedLocations: finding.related?.map((r, i) => location(artifact, r.range, r.pointer, r.message, i + 1)),
+    relatedLocations: finding.related?.map((r, i) => location(r.file !== undefined ? artifactLocation(run, r.file) : artifact, r.range, r.pointer, r.message, i + 1)),
     fixes: sarifFixes(artifact, [...(finding.fix ? [finding.fix] : []), ...(finding.alternatives ?? [])]),
     properties: measuredProperties(report, finding),
     suppressions: finding.accepted

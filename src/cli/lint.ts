@@ -13,6 +13,7 @@ import { summarize, type LintedFile, type LintRun } from './lint-results';
 import { renderSarif } from './lint-sarif';
 import { renderText } from './lint-text';
 import { compareRunWithKnown, writeKnown } from './lint-known';
+import { completeRun } from './lint-workspace';
 import * as nodePath from 'node:path';
 
 const OPTIONS: Record<string, OptionSpec> = {
@@ -141,6 +142,7 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   files.sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
 
   const run: LintRun = { mapping: mapping.value, cwd: io.cwd, files, errorsOnly: request.errorsOnly, fix: request.fix, version };
+  completeRun(run);
   const known = applyKnown(run, request, io);
   if (known !== undefined) return known;
   const render = request.format === 'json' ? renderJson : request.format === 'sarif' ? renderSarif : renderText;

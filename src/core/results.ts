@@ -38,6 +38,8 @@ export interface RelatedLocation {
   message: string;
   pointer: string;
   range: SourceRange;
+  /** Absolute path of another definition file it sits in (absent: the finding's own file). */
+  file?: string;
 }
 
 /** How an accepted finding was accepted: an accept comment in the definition, or the mapping file's accept list. */

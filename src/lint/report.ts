@@ -72,6 +72,7 @@ export interface MachineReport {
   /** The hypervisor host it runs on, and where the definition says so. */
   host?: string;
   hostPointer?: string;
+  hostRange?: SourceRange;
   budget?: bigint;
   cacheMemoryTotal: bigint;
   /** Indices into FileReport.disks. */
@@ -147,7 +148,7 @@ export function assemble(context: FileContext, units: Units): FileReport {
       pointer: machine.pointer,
       range: machine.range,
       memory,
-      ...(machine.host ? { host: machine.host.value, hostPointer: machine.host.pointer } : {}),
+      ...(machine.host ? { host: machine.host.value, hostPointer: machine.host.pointer, hostRange: machine.host.range } : {}),
       budget: memory === undefined ? undefined : cacheBudgetOf(memory, mapping.cacheShareOfMemory),
       cacheMemoryTotal: total,
       disks: indices,

@@ -8,6 +8,7 @@ import { invalidValue } from './invalid-value';
 import { l2CacheOversized } from './l2-cache-oversized';
 import { l2CacheUndersized } from './l2-cache-undersized';
 import { machineCacheBudget } from './machine-cache-budget';
+import { hostCacheBudget } from './host-cache-budget';
 import { parseError } from './parse-error';
 import { cacheEntrySizeSuggested } from './cache-entry-size-suggested';
 import { backingChainCycle } from './backing-chain-cycle';
@@ -35,6 +36,7 @@ export const RULE_REGISTRY = registry({
   'cleanup-interval-missing': cleanupIntervalMissing,
   'cache-entry-size-suggested': cacheEntrySizeSuggested,
   'machine-cache-budget': machineCacheBudget,
+  'host-cache-budget': hostCacheBudget,
   'image-mismatch': imageMismatch,
   'image-unreadable': imageUnreadable,
   'trace-unreadable': traceUnreadable,

@@ -3,9 +3,9 @@
 // parses, never touches the file system and never formats output.
 import type { DiskSizing, LayerCache } from '../core/cache';
 import type { DriverProfile } from '../core/profiles';
-import type { Fix, RelatedLocation, Severity } from '../core/results';
+import type { Fix, RelatedLocation, Severity, SourceRange } from '../core/results';
 import type { DiskSpec, DiskValues, Located, MachineSpec } from '../model/disks';
-import type { Assumptions, Mapping } from '../model/mapping';
+import type { Assumptions, HostBudget, Mapping } from '../model/mapping';
 import type { ImageChainFacts } from '../model/images';
 import type { TraceFacts } from '../model/traces';
 
@@ -67,9 +67,41 @@ export interface MachineCheck {
   report(finding: FindingInput): void;
 }
 
+/** A machine as the cross-file step sees it: where it is, what it needs, which host it is on. */
+export interface PlacedMachine {
+  /** Absolute path of its definition file. */
+  file: string;
+  name: string;
+  pointer: string;
+  range: SourceRange;
+  /** Where the definition names its host. */
+  host: { name: string; pointer: string; range: SourceRange };
+  memory?: bigint;
+  cacheMemoryTotal: bigint;
+}
+
+export interface HostFindingInput {
+  severity: Severity;
+  message: string;
+  related: RelatedLocation[];
+}
+
+/** One host and every machine placed on it, across all the files linted together. */
+export interface HostCheck {
+  host: string;
+  /** Its memory and cache share; undefined when the mapping knows no memory for it. */
+  budget?: HostBudget;
+  /** In the order of the files (sorted by path), then of the machines in each. */
+  machines: readonly PlacedMachine[];
+  /** Reported at the first machine's host value; a severity set in the mapping or editor wins. */
+  report(finding: HostFindingInput): void;
+}
+
 export interface Rule<Id extends string = string> extends RuleMeta<Id> {
   checkDisk?(check: DiskCheck): void;
   checkMachine?(check: MachineCheck): void;
+  /** Runs once per host after every file is linted (rules that need the whole fleet). */
+  checkHost?(check: HostCheck): void;
 }
 
 export const docsPage = (id: string): string => `docs/rules/${id}.md`;

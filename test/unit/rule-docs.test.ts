@@ -9,7 +9,7 @@ import { ImageFacts } from '../../src/cli/lint-images';
 import { TraceCurves } from '../../src/cli/lint-traces';
 import { prepareDocument } from '../../src/lint';
 import { traceRequestsOf } from '../../src/lint/traces';
-import { lintDocument, loadMapping, RULES, type LintOptions } from '../../src/lint';
+import { lintDocument, lintHosts, loadMapping, RULES, type LintOptions } from '../../src/lint';
 import { parseSize } from '../../src/core/units';
 import { writeImage } from '../image/qcow2-writer';
 
@@ -94,7 +94,10 @@ describe('rule docs pages', () => {
           await curves.load(traceRequestsOf(prepared, options.images));
           options = { ...options, traces: curves.lookup };
         }
-        const report = lintDocument({ path: definition, text: found.text }, demoMapping(), options);
+        const mapping = demoMapping();
+        const report = lintDocument({ path: definition, text: found.text }, mapping, options);
+        // The cross-file step, over this one file (host rules report there).
+        lintHosts([{ path: definition, machines: report.machines, findings: report.findings }], mapping);
         if (dir) rmSync(dir, { recursive: true, force: true });
         const actual = report.findings.filter((f) => f.rule === rule.id).map((f) => ({ line: f.range.line, column: f.range.column }));
         assert.deepEqual(actual, found.places, report.findings.map((f) => `${f.rule} ${f.range.line}:${f.range.column}`).join('\n'));

@@ -1,0 +1,81 @@
+// The cross-file step: after every definition is linted on its own, the rules that look at the
+// whole fleet run once per hypervisor host over the machines of all files. Their findings go to
+// the file of the first machine placed on the host (files in path order), where the mapping
+// file's accept list can accept them like any other.
+import type { SourceRange } from '../core/results';
+import { hostBudget, type Mapping } from '../model/mapping';
+import { pointerWithin } from '../model/jsonpath';
+import { RULES, type RuleId } from '../rules';
+import type { PlacedMachine } from '../rules/types';
+import type { Severity } from '../core/results';
+import type { LintFinding, MachineReport } from './report';
+
+/** What the step reads of one linted file, and where it adds findings. */
+export interface WorkspaceFile {
+  /** Absolute path. */
+  path: string;
+  machines: readonly Pick<MachineReport, 'name' | 'pointer' | 'range' | 'memory' | 'host' | 'hostPointer' | 'hostRange' | 'cacheMemoryTotal'>[];
+  /** The file's findings: the step appends to this list in place. */
+  findings: LintFinding[];
+}
+
+export interface HostLintOptions {
+  severities?: Record<string, Severity | 'off'>;
+}
+
+function placedMachines(files: readonly WorkspaceFile[]): Map<string, PlacedMachine[]> {
+  const byHost = new Map<string, PlacedMachine[]>();
+  const ordered = [...files].sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
+  for (const file of ordered) {
+    for (const machine of file.machines) {
+      if (machine.host === undefined || machine.hostPointer === undefined || machine.hostRange === undefined) continue;
+      const placed: PlacedMachine = {
+        file: file.path,
+        name: machine.name,
+        pointer: machine.pointer,
+        range: machine.range,
+        host: { name: machine.host, pointer: machine.hostPointer, range: machine.hostRange as SourceRange },
+        ...(machine.memory !== undefined ? { memory: machine.memory } : {}),
+        cacheMemoryTotal: machine.cacheMemoryTotal,
+      };
+      byHost.set(machine.host, [...(byHost.get(machine.host) ?? []), placed]);
+    }
+  }
+  return byHost;
+}
+
+/** Runs every host rule over the files linted together; adds their findings to the files. */
+export function lintHosts(files: readonly WorkspaceFile[], mapping: Mapping, options: HostLintOptions = {}): void {
+  const severities = { ...mapping.severities, ...options.severities };
+  const filesByPath = new Map(files.map((f) => [f.path, f]));
+  const hostRules = RULES.filter((rule) => rule.checkHost && severities[rule.id] !== 'off');
+  if (hostRules.length === 0) return;
+  for (const [host, machines] of placedMachines(files)) {
+    const first = machines[0] as PlacedMachine;
+    const file = filesByPath.get(first.file) as WorkspaceFile;
+    const budget = hostBudget(mapping.hosts, host);
+    for (const rule of hostRules) {
+      rule.checkHost?.({
+        host,
+        ...(budget ? { budget } : {}),
+        machines,
+        report: ({ severity, message, related }) => {
+          const finding: LintFinding = {
+            rule: rule.id as RuleId,
+            severity: (severities[rule.id] as Severity | undefined) ?? severity,
+            message,
+            pointer: first.host.pointer,
+            range: first.host.range,
+            related: related.map((r) => (r.file === first.file ? { message: r.message, pointer: r.pointer, range: r.range } : r)),
+            host,
+            written: host,
+          };
+          const accepted = mapping.accept.find((entry) => entry.rule === rule.id && (entry.file === undefined || entry.file === first.file) && pointerWithin(finding.pointer, entry.pointer));
+          if (accepted) finding.accepted = { reason: accepted.reason, from: 'mapping' };
+          file.findings.push(finding);
+          file.findings.sort((a, b) => a.range.offset - b.range.offset);
+        },
+      });
+    }
+  }
+}
