@@ -10,6 +10,8 @@ import { valueAtPath } from '../model/jsonpath';
 import type { Mapping } from '../model/mapping';
 import { lintDisk } from './disks';
 import { imagePathsOf, prepareDocument } from './documents';
+import { traceRequestsOfMachines } from './traces';
+import type { TraceRequest } from '../model/traces';
 import { lintPreparedUnits } from './lint';
 import { FileContext, type LintOptions } from './prepare';
 import { assemble, type DiskUnit, type FileReport, type LintFinding, type MachineUnit, type Units } from './report';
@@ -80,6 +82,11 @@ export class LintSession {
   /** Absolute paths of the image files the last text's disks name. */
   imagePaths(): string[] {
     return imagePathsOf(this.path, this.machines);
+  }
+
+  /** The measured curves the last text's disks ask for (traces and geometry). */
+  traceRequests(): TraceRequest[] {
+    return traceRequestsOfMachines(this.path, this.mapping, this.machines, this.options.images);
   }
 
   update(text: string): FileReport {

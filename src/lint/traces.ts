@@ -4,7 +4,8 @@
 import * as nodePath from 'node:path';
 import type { LayerCache } from '../core/cache';
 import { sizeChain } from '../core/cache';
-import type { DiskSpec } from '../model/disks';
+import type { DiskSpec, MachineSpec } from '../model/disks';
+import type { Mapping } from '../model/mapping';
 import type { ImageLookup } from '../model/images';
 import type { TraceRequest } from '../model/traces';
 import { layerSpecsOf } from './disks';
@@ -21,15 +22,20 @@ export function traceRequestFor(disk: DiskSpec, top: LayerCache, definitionPath:
 
 /** Every request a prepared definition makes (read the image facts first: they can change the geometry). */
 export function traceRequestsOf(prepared: PreparedDocument, images?: ImageLookup): TraceRequest[] {
+  return traceRequestsOfMachines(prepared.file.path, prepared.mapping, prepared.extraction?.machines ?? [], images);
+}
+
+/** The same from extracted machines (the editor's session keeps those). */
+export function traceRequestsOfMachines(definitionPath: string, mapping: Mapping, machines: readonly MachineSpec[], images?: ImageLookup): TraceRequest[] {
   const requests: TraceRequest[] = [];
-  const dir = nodePath.dirname(prepared.file.path);
-  for (const machine of prepared.extraction?.machines ?? []) {
+  const dir = nodePath.dirname(definitionPath);
+  for (const machine of machines) {
     for (const disk of machine.disks) {
       if (!disk.values.trace || !disk.isQcow2) continue;
       const imagePath = disk.values.image ? nodePath.resolve(dir, disk.values.image.value) : undefined;
-      const chain = layerSpecsOf(disk, prepared.mapping, imagePath ? images?.(imagePath) : undefined);
-      const top = chain ? sizeChain(chain, prepared.mapping.profile).layers[0] : undefined;
-      const request = top ? traceRequestFor(disk, top, prepared.file.path) : undefined;
+      const chain = layerSpecsOf(disk, mapping, imagePath ? images?.(imagePath) : undefined);
+      const top = chain ? sizeChain(chain, mapping.profile).layers[0] : undefined;
+      const request = top ? traceRequestFor(disk, top, definitionPath) : undefined;
       if (request) requests.push(request);
     }
   }

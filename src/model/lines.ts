@@ -1,11 +1,19 @@
-// Offsets to 1-based lines and columns (UTF-16 code units, as editors and SARIF count them).
+// Offsets to 1-based lines and columns (UTF-16 code units, as editors and SARIF count them). A line
+// ends at LF, CRLF or a lone CR, as YAML 1.2 (section 5.4) and editors count line breaks.
 import type { SourceRange } from '../core/results';
 
 export class LineIndex {
   private readonly starts: number[] = [0];
 
   constructor(readonly text: string) {
-    for (let i = text.indexOf('\n'); i !== -1; i = text.indexOf('\n', i + 1)) this.starts.push(i + 1);
+    for (let i = 0; i < text.length; i++) {
+      const code = text.charCodeAt(i);
+      if (code === 10) this.starts.push(i + 1);
+      else if (code === 13) {
+        if (text.charCodeAt(i + 1) === 10) i++;
+        this.starts.push(i + 1);
+      }
+    }
   }
 
   /** 1-based line and column of an offset. */
@@ -33,7 +41,7 @@ export class LineIndex {
   lineText(line: number): string {
     const start = this.lineStart(line);
     const next = line < this.starts.length ? (this.starts[line] as number) : this.text.length;
-    return this.text.slice(start, next).replace(/\r?\n$/, '');
+    return this.text.slice(start, next).replace(/(\r\n|\r|\n)$/, '');
   }
 
   range(start: number, end: number): SourceRange {

@@ -22,7 +22,7 @@ const RULES = new Set(RULE_IDS);
 /** A place must lie inside the text it points into. */
 function assertRange(text: string, range: { offset: number; length: number; line: number; column: number }, what: string): void {
   assert.ok(Number.isInteger(range.offset) && range.offset >= 0 && range.offset + range.length <= text.length, `${what}: offset ${range.offset}+${range.length} outside ${text.length}`);
-  const lines = text.split('\n');
+  const lines = text.split(/\r\n|\r|\n/); // line breaks as YAML 1.2 §5.4 and editors count them
   assert.ok(range.line >= 1 && range.line <= lines.length, `${what}: line ${range.line}`);
   assert.ok(range.column >= 1 && range.column <= (lines[range.line - 1] as string).length + 1, `${what}: column ${range.column}`);
 }

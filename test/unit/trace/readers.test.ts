@@ -7,6 +7,7 @@ import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { BLOCK_TRACE_MANUAL, CONTRACT } from '../../helpers/sources';
+import { runCurve } from '../../../src/cli/curve';
 import { curve, curveJson, tempFolder } from './helpers';
 
 const IO_LOG_MANUAL = '[the I/O tester\'s manual page, Trace file format v2/v3]';
@@ -177,5 +178,38 @@ describe('trace readers: formats and unusable traces', function () {
     assert.equal(report.trace.requests, 2);
     assert.equal(report.trace.skippedLines, 1);
     assert.deepEqual(report.trace.firstSkipped, { file: name, line: 2 });
+  });
+});
+
+describe('curve command: what the output says', function () {
+  this.timeout(30_000);
+  let folder: ReturnType<typeof tempFolder>;
+  before(() => {
+    folder = tempFolder('curve-output');
+    const lines = Array.from({ length: 20_000 }, (_, i) => `${((i * 7919) % 4096) * 32768},4096`);
+    writeFileSync(join(folder.dir, 'spread.csv'), `${lines.join('\n')}\n`);
+  });
+  after(() => folder.remove());
+
+  it(`${CONTRACT} a sampled curve says so and at which rate, in JSON and in text`, async () => {
+    const json = await curveJson(folder.dir, 'spread.csv', '--size', '128M', '--cluster-size', '512', '--sample', '25%');
+    assert.equal(json.sampleRate, 0.25);
+    // A quarter sample resolves caches of 4 entries and more: the curve starts there.
+    assert.equal(json.curve[0]?.entries, 4);
+    const text = await curve(folder.dir, 'spread.csv', '--size', '128M', '--cluster-size', '512', '--sample', '0.25');
+    assert.match(text.stdout, /SAMPLED\s+only 25% of cache entries were counted/);
+    assert.match(text.stdout, /cache size against hit ratio \(estimated\)/);
+    const exact = await curve(folder.dir, 'spread.csv', '--size', '128M', '--cluster-size', '512');
+    assert.doesNotMatch(exact.stdout, /SAMPLED|estimated/);
+  });
+
+  it(`${CONTRACT} a progress line goes to stderr when it is a terminal, and is erased at the end`, async () => {
+    let stderr = '';
+    let stdout = '';
+    const code = await runCurve(['spread.csv', '--size', '128M'], { stdout: (t) => void (stdout += t), stderr: (t) => void (stderr += t), cwd: folder.dir, stderrIsTTY: true });
+    assert.equal(code, 0);
+    assert.match(stderr, /\r\u001b\[Kreading spread\.csv: \d+%, [\d,]+ requests/);
+    assert.ok(stderr.endsWith('\r\u001b[K'), 'the line is erased');
+    assert.doesNotMatch(stdout, /reading/);
   });
 });
