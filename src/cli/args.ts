@@ -1,6 +1,8 @@
 // A small argument reader for the cachewright commands: options are declared per command, so an
 // unknown or malformed option is a usage error (exit 2) with a message, never an exception.
 import { fail, ok, type Outcome } from '../core/results';
+import { checkClusterSize, checkExtendedL2, checkSlice, DEFAULT_CLUSTER } from '../core/sizing';
+import { parseSize } from '../core/units';
 
 export interface OptionSpec {
   /** Takes a value (`--size 20G` or `--size=20G`), or is a flag. */
@@ -57,4 +59,42 @@ export function formatOption(args: ParsedArgs): Outcome<'text' | 'json'> {
   const format = lastOption(args, 'format') ?? 'text';
   if (format !== 'text' && format !== 'json') return fail(`--format must be text or json, not "${format}"`);
   return ok(format);
+}
+
+/** A size option as bytes (undefined when absent), or a usage message naming the option. */
+export function sizeOption(args: ParsedArgs, name: string, what: string): Outcome<bigint | undefined> {
+  const raw = lastOption(args, name);
+  if (raw === undefined) return ok(undefined);
+  const parsed = parseSize(raw);
+  return parsed.ok ? parsed : fail(`--${name} (${what}): ${parsed.error}`);
+}
+
+export interface DiskGeometryOptions {
+  virtualSize: bigint;
+  clusterSize: bigint;
+  extendedL2: boolean;
+  /** Absent: whole L2 tables. */
+  cacheEntrySize?: bigint;
+}
+
+/** --size (required), --cluster-size, --extended-l2 and --cache-entry-size, each checked as a qcow2 image allows. */
+export function diskGeometryOptions(args: ParsedArgs): Outcome<DiskGeometryOptions> {
+  const size = sizeOption(args, 'size', 'virtual size');
+  if (!size.ok) return size;
+  if (size.value === undefined) return fail('--size is required (the virtual size of the disk, e.g. 20G)');
+  if (size.value === 0n) return fail('--size (virtual size): a disk of 0 bytes has nothing to cache');
+  const clusterRaw = sizeOption(args, 'cluster-size', 'cluster size');
+  if (!clusterRaw.ok) return clusterRaw;
+  const cluster = checkClusterSize(clusterRaw.value ?? DEFAULT_CLUSTER);
+  if (!cluster.ok) return fail(`--cluster-size: ${cluster.error}`);
+  const extendedL2 = args.flags.has('extended-l2');
+  const extended = checkExtendedL2(cluster.value, extendedL2);
+  if (!extended.ok) return fail(`--extended-l2: ${extended.error}`);
+  const entryRaw = sizeOption(args, 'cache-entry-size', 'cache entry size');
+  if (!entryRaw.ok) return entryRaw;
+  if (entryRaw.value !== undefined) {
+    const entry = checkSlice(entryRaw.value, cluster.value);
+    if (!entry.ok) return fail(`--cache-entry-size: ${entry.error}`);
+  }
+  return ok({ virtualSize: size.value, clusterSize: cluster.value, extendedL2, ...(entryRaw.value !== undefined ? { cacheEntrySize: entryRaw.value } : {}) });
 }

@@ -6,14 +6,14 @@ import { isAbsolute, resolve } from 'node:path';
 import { CAUTIONS } from '../core/cautions';
 import { stringifyJson } from '../core/json';
 import { fail, ok, type Outcome } from '../core/results';
-import { checkClusterSize, checkExtendedL2, checkSlice, DEFAULT_CLUSTER, guestBytesPerCacheEntry } from '../core/sizing';
+import { guestBytesPerCacheEntry } from '../core/sizing';
 import { formatPercent, formatSize, parseShare, parseSize } from '../core/units';
 import { FORMAT_NAMES } from '../trace/detect';
 import { checkSampleRate, measureTraces, type MeasureProgress } from '../trace/measure';
 import { curveReport, DEFAULT_TARGET_HIT_RATIO, type CurveReport } from '../trace/report';
 import type { TraceGeometry } from '../trace/lookups';
 import type { TraceFilter } from '../trace/reader';
-import { formatOption, lastOption, parseArgs, type OptionSpec, type ParsedArgs } from './args';
+import { diskGeometryOptions, formatOption, lastOption, parseArgs, type OptionSpec, type ParsedArgs } from './args';
 import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { renderColumns } from './table';
 
@@ -60,32 +60,13 @@ interface CurveRequest {
   format: 'text' | 'json';
 }
 
-function sizeOption(args: ParsedArgs, name: string, what: string): Outcome<bigint | undefined> {
-  const raw = lastOption(args, name);
-  if (raw === undefined) return ok(undefined);
-  const parsed = parseSize(raw);
-  return parsed.ok ? parsed : fail(`--${name} (${what}): ${parsed.error}`);
-}
-
 function readRequest(args: ParsedArgs): Outcome<CurveRequest> {
   if (args.positionals.length === 0) return fail('name at least one TRACE file');
   const format = formatOption(args);
   if (!format.ok) return format;
-  const size = sizeOption(args, 'size', 'virtual size');
-  if (!size.ok) return size;
-  if (size.value === undefined) return fail('--size is required (the virtual size of the traced disk, e.g. 1T)');
-  if (size.value === 0n) return fail('--size (virtual size): a disk of 0 bytes has nothing to cache');
-  const clusterRaw = sizeOption(args, 'cluster-size', 'cluster size');
-  if (!clusterRaw.ok) return clusterRaw;
-  const cluster = checkClusterSize(clusterRaw.value ?? DEFAULT_CLUSTER);
-  if (!cluster.ok) return fail(`--cluster-size: ${cluster.error}`);
-  const extendedL2 = args.flags.has('extended-l2');
-  const extended = checkExtendedL2(cluster.value, extendedL2);
-  if (!extended.ok) return fail(`--extended-l2: ${extended.error}`);
-  const entryRaw = sizeOption(args, 'cache-entry-size', 'cache entry size');
-  if (!entryRaw.ok) return entryRaw;
-  const entry = checkSlice(entryRaw.value ?? cluster.value, cluster.value);
-  if (!entry.ok) return fail(`--cache-entry-size: ${entry.error}`);
+  const geometry = diskGeometryOptions(args);
+  if (!geometry.ok) return geometry;
+  const { virtualSize, clusterSize, extendedL2, cacheEntrySize } = geometry.value;
   const at: bigint[] = [];
   for (const text of (args.options.get('at') ?? []).flatMap((v) => v.split(','))) {
     const parsed = parseSize(text);
@@ -107,7 +88,7 @@ function readRequest(args: ParsedArgs): Outcome<CurveRequest> {
   const file = lastOption(args, 'file');
   return ok({
     traces: args.positionals,
-    geometry: { virtualSize: size.value, clusterSize: cluster.value, extendedL2, cacheEntryBytes: entry.value },
+    geometry: { virtualSize, clusterSize, extendedL2, cacheEntryBytes: cacheEntrySize ?? clusterSize },
     at,
     target: target.value,
     sampleRate,

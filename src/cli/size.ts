@@ -5,12 +5,12 @@ import { stringifyJson } from '../core/json';
 import { driverProfile, DRIVER_GENERATIONS, HOST_PLATFORMS, type DriverGeneration, type HostPlatform } from '../core/profiles';
 import { fail, ok, type Outcome } from '../core/results';
 import {
-  checkClusterSize, checkExtendedL2, checkRefcountBits, checkSlice, DEFAULT_CLUSTER, DEFAULT_REFCOUNT_BITS,
+  checkRefcountBits, DEFAULT_REFCOUNT_BITS,
   entriesPerL2Table, guestBytesPerL2Table, refcountCoveredBytes, writeAmplification,
 } from '../core/sizing';
-import { formatInterval, formatSize, parseSize } from '../core/units';
+import { formatInterval, formatSize } from '../core/units';
 import { formatAccessSpec, modelCache, parseAccessSpec, type AccessPattern, type CacheModelReport } from '../core/cachemodel';
-import { formatOption, lastOption, parseArgs, type OptionSpec, type ParsedArgs } from './args';
+import { diskGeometryOptions, formatOption, lastOption, parseArgs, sizeOption, type OptionSpec, type ParsedArgs } from './args';
 import { renderColumns } from './table';
 import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 
@@ -64,13 +64,6 @@ interface SizeRequest {
   workingSet?: bigint;
 }
 
-function sizeOption(args: ParsedArgs, name: string, what: string): Outcome<bigint | undefined> {
-  const raw = lastOption(args, name);
-  if (raw === undefined) return ok(undefined);
-  const parsed = parseSize(raw);
-  return parsed.ok ? parsed : fail(`--${name} (${what}): ${parsed.error}`);
-}
-
 function choice<T extends string>(args: ParsedArgs, name: string, allowed: readonly T[], fallback: T): Outcome<T> {
   const raw = lastOption(args, name) ?? fallback;
   return (allowed as readonly string[]).includes(raw) ? ok(raw as T) : fail(`--${name} must be ${allowed.join(' or ')}, not "${raw}"`);
@@ -80,23 +73,9 @@ function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
   if (args.positionals.length > 0) return fail(`unexpected argument "${args.positionals[0]}"`);
   const format = formatOption(args);
   if (!format.ok) return format;
-  const size = sizeOption(args, 'size', 'virtual size');
-  if (!size.ok) return size;
-  if (size.value === undefined) return fail('--size is required (the virtual size of the disk, e.g. 20G)');
-  if (size.value === 0n) return fail('--size (virtual size): a disk of 0 bytes has nothing to cache');
-  const clusterRaw = sizeOption(args, 'cluster-size', 'cluster size');
-  if (!clusterRaw.ok) return clusterRaw;
-  const cluster = checkClusterSize(clusterRaw.value ?? DEFAULT_CLUSTER);
-  if (!cluster.ok) return fail(`--cluster-size: ${cluster.error}`);
-  const extendedL2 = args.flags.has('extended-l2');
-  const extended = checkExtendedL2(cluster.value, extendedL2);
-  if (!extended.ok) return fail(`--extended-l2: ${extended.error}`);
-  const entryRaw = sizeOption(args, 'cache-entry-size', 'cache entry size');
-  if (!entryRaw.ok) return entryRaw;
-  if (entryRaw.value !== undefined) {
-    const entry = checkSlice(entryRaw.value, cluster.value);
-    if (!entry.ok) return fail(`--cache-entry-size: ${entry.error}`);
-  }
+  const geometry = diskGeometryOptions(args);
+  if (!geometry.ok) return geometry;
+  const { virtualSize, clusterSize, extendedL2, cacheEntrySize } = geometry.value;
   const bitsRaw = lastOption(args, 'refcount-bits');
   let refcountBits = DEFAULT_REFCOUNT_BITS;
   if (bitsRaw !== undefined) {
@@ -115,15 +94,15 @@ function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
   if (!access.ok) return fail(`--access: ${access.error.message}`);
   const workingSet = sizeOption(args, 'working-set', 'working set');
   if (!workingSet.ok) return workingSet;
-  if (workingSet.value !== undefined && (workingSet.value === 0n || workingSet.value > size.value)) {
-    return fail(`--working-set: ${workingSet.value} bytes must be more than 0 and at most the virtual size (${size.value} bytes)`);
+  if (workingSet.value !== undefined && (workingSet.value === 0n || workingSet.value > virtualSize)) {
+    return fail(`--working-set: ${workingSet.value} bytes must be more than 0 and at most the virtual size (${virtualSize} bytes)`);
   }
   const generation = choice(args, 'driver', DRIVER_GENERATIONS, 'current');
   if (!generation.ok) return generation;
   const platform = choice(args, 'platform', HOST_PLATFORMS, 'linux');
   if (!platform.ok) return platform;
   return ok({
-    virtualSize: size.value, cluster: cluster.value, extendedL2, cacheEntrySize: entryRaw.value, refcountBits,
+    virtualSize, cluster: clusterSize, extendedL2, cacheEntrySize, refcountBits,
     cache: cache.value, requestSize: request.value ?? 4096n, generation: generation.value,
     platform: platform.value, format: format.value, access: access.value, workingSet: workingSet.value,
   });
