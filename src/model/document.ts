@@ -69,7 +69,9 @@ export function readDefinition(path: string, text: string, format: DocumentForma
     if (problem) return { problems: [problem] };
   }
   // Merge keys (<<) are a YAML 1.1 habit that hand-written definitions still use; JSON has none.
-  const tree = parseDocument(text, { schema: format === 'json' ? 'json' : 'core', merge: format !== 'json', prettyErrors: false, uniqueKeys: true, strict: true });
+  // logLevel 'error': the parser's warnings (a collection used as a key) must not reach stderr as
+  // process warnings; what matters about the text comes back as problems.
+  const tree = parseDocument(text, { schema: format === 'json' ? 'json' : 'core', merge: format !== 'json', prettyErrors: false, uniqueKeys: true, strict: true, logLevel: 'error' });
   const problems: DocumentProblem[] = tree.errors.map((error) => ({
     message: error.code === 'MULTIPLE_DOCS'
       ? 'this file holds more than one YAML document; cachewright reads one definition document per file (split it, or drop the extra "---")'

@@ -126,7 +126,7 @@ export function reparseItem(previous: DefinitionDocument, text: string, change: 
     if (content.trim() === '') continue;
     if (content.length - content.trimStart().length < column) return undefined;
   }
-  const parsed = parseDocument(fragment, { schema: 'core', merge: true, prettyErrors: false, uniqueKeys: true, strict: true });
+  const parsed = parseDocument(fragment, { schema: 'core', merge: true, prettyErrors: false, uniqueKeys: true, strict: true, logLevel: 'error' });
   if (parsed.errors.length > 0 || parsed.warnings.length > 0) return undefined;
   const contents = parsed.contents;
   if (!contents || !isMap(contents) || (contents as YAMLMap).flow || !contents.range || contents.range[0] !== column) return undefined;

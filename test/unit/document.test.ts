@@ -100,6 +100,21 @@ describe(`document: JSON ${RFC8259}`, () => {
       for (const p of result.problems) assert.ok(p.range.offset >= 0 && p.range.offset <= text.length);
     }), { numRuns: 1000 });
   });
+  it('a collection used as a key is read without a process warning on stderr (found by npm run fuzz)', async () => {
+    const warnings: string[] = [];
+    const listen = (warning: Error): void => {
+      warnings.push(warning.message);
+    };
+    process.on('warning', listen);
+    try {
+      const result = readDefinition('/defs/keys.yaml', '{ a: 1 }: x\n? [1, 2]\n: y\n');
+      assert.deepEqual(result.problems, []);
+      await new Promise((resolve) => setImmediate(resolve));
+    } finally {
+      process.off('warning', listen);
+    }
+    assert.deepEqual(warnings, []);
+  });
   it('property: a JSON syntax error is reported at a real line and column of the text', () => {
     fc.assert(fc.property(fc.json(), fc.nat(), (json, cut) => {
       const text = json.slice(0, cut % (json.length + 1));
