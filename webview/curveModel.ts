@@ -189,13 +189,13 @@ export function chartModel(input: ChartInput): ChartOutcome {
     ioSize: input.requestSize > 0n ? input.requestSize : undefined,
   };
   const curves = entrySizeCurves({ ...geometry, entrySize: input.entrySize }, { points: input.points });
-  if (!curves.ok) return { ok: false, reason: curves.problem.message };
+  if (!curves.ok) return { ok: false, reason: curves.error.message };
   const drawn: Array<{ id: SeriesId; curve: CacheCurve }> = [{ id: 'table', curve: curves.value.wholeTable }];
   if (curves.value.slice) drawn.push({ id: 'slice', curve: curves.value.slice });
   const prepared: Array<{ id: SeriesId; at: (bytes: bigint) => number }> = [];
   for (const { id, curve } of drawn) {
     const model = prepareCacheModel({ ...geometry, entrySize: curve.entrySize });
-    if (!model.ok) return { ok: false, reason: model.problem.message };
+    if (!model.ok) return { ok: false, reason: model.error.message };
     prepared.push({ id, at: (bytes) => model.value.at(bytes).hitRatio });
   }
   const inUseId: SeriesId = input.entrySize < input.clusterSize && curves.value.slice?.entrySize === input.entrySize ? 'slice' : 'table';

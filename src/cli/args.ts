@@ -1,6 +1,6 @@
 // A small argument reader for the cachewright commands: options are declared per command, so an
 // unknown or malformed option is a usage error (exit 2) with a message, never an exception.
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 import { checkClusterSize, checkExtendedL2, checkSlice, DEFAULT_CLUSTER } from '../core/sizing';
 import { parseSize } from '../core/units';
 

@@ -4,7 +4,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as os from 'node:os';
 import * as nodePath from 'node:path';
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 
 export interface ExtractedRevision {
   /** The folder in the extracted tree that corresponds to the head folder. */

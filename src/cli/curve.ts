@@ -5,7 +5,7 @@
 import { isAbsolute, resolve } from 'node:path';
 import { CAUTIONS } from '../core/cautions';
 import { stringifyJson } from '../core/json';
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 import { guestBytesPerCacheEntry } from '../core/sizing';
 import { parseShare, parseSize } from '../core/units';
 import { formatShare, formatSize } from '../core/format';

@@ -8,7 +8,7 @@ import * as nodePath from 'node:path';
 import tinyglobby = require('tinyglobby');
 import { loadMapping, type Mapping } from '../lint';
 import { DEFAULT_INCLUDE, MAPPING_FILE_NAMES } from '../model/mapping';
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 import { ioMessage, MAPPING_SIZE_LIMIT, readRegularText } from '../files/open';
 
 /** Folders no one keeps definitions in; skipping them keeps the walk fast. */

@@ -1,7 +1,7 @@
 // `cachewright lint --known FILE` and `--record-known FILE` (docs/cli.md): the CLI's side of
 // known findings. Reading and writing the file happens here; what matches what is src/review's.
 import * as fs from 'node:fs';
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 import { compareWithKnown, readKnownFile, recordKnown, renderKnownFile, type KnownComparison } from '../review/known';
 import type { ReviewedFile } from '../review/types';
 import { ioMessage, readRegularText } from '../files/open';

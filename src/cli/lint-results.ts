@@ -5,7 +5,7 @@ import type { FileReport, Finding, Mapping } from '../lint';
 import type { BaselineState, KnownComparison } from '../review/known';
 
 /** What the outputs read of a disk's report. */
-export type DiskView = Pick<FileReport['disks'][number], 'machine' | 'name' | 'named' | 'pointer' | 'sizing' | 'recommended' | 'configured' | 'measured'>;
+export type DiskView = Pick<FileReport['disks'][number], 'machine' | 'name' | 'named' | 'pointer' | 'sizing' | 'recommended' | 'values' | 'measured'>;
 
 /** What the outputs and the review read of a machine's report. */
 export type MachineView = Omit<FileReport['machines'][number], 'disks' | 'budget'>;
@@ -21,7 +21,7 @@ export interface ReportView {
 export function viewOf(report: FileReport): ReportView {
   return {
     parsed: report.parsed,
-    disks: report.disks.map((d) => ({ machine: d.machine, name: d.name, named: d.named, pointer: d.pointer, sizing: d.sizing, recommended: d.recommended, configured: d.configured, ...(d.measured ? { measured: d.measured } : {}) })),
+    disks: report.disks.map((d) => ({ machine: d.machine, name: d.name, named: d.named, pointer: d.pointer, sizing: d.sizing, recommended: d.recommended, values: d.values, ...(d.measured ? { measured: d.measured } : {}) })),
     machines: report.machines.map(({ disks: _disks, budget: _budget, ...machine }) => machine),
     findings: report.findings,
   };

@@ -3,7 +3,7 @@ import { layerCache, sizeChain, type CacheSettings } from '../core/cache';
 import { CAUTIONS } from '../core/cautions';
 import { stringifyJson } from '../core/json';
 import { driverProfile, DRIVER_GENERATIONS, HOST_PLATFORMS, type DriverGeneration, type HostPlatform } from '../core/profiles';
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 import {
   checkRefcountBits, DEFAULT_REFCOUNT_BITS,
   entriesPerL2Table, guestBytesPerL2Table, refcountCoveredBytes, writeAmplification,
@@ -91,7 +91,7 @@ function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
   if (request.value === 0n) return fail('--request-size (guest write size): must be at least 1 byte');
   const accessText = lastOption(args, 'access') ?? 'random';
   const access = parseAccessSpec(accessText);
-  if (!access.ok) return fail(`--access: ${access.problem.message}`);
+  if (!access.ok) return fail(`--access: ${access.error.message}`);
   const workingSet = sizeOption(args, 'working-set', 'working set');
   if (!workingSet.ok) return workingSet;
   if (workingSet.value !== undefined && (workingSet.value === 0n || workingSet.value > virtualSize)) {
@@ -131,7 +131,7 @@ export function runSize(argv: readonly string[], io: CommandIO): number {
     ...(r.workingSet !== undefined ? { workingSet: { offset: 0n, length: r.workingSet } } : {}),
   });
   if (!predicted.ok) {
-    io.stderr(`cachewright size: ${predicted.problem.field}: ${predicted.problem.message}\n`);
+    io.stderr(`cachewright size: ${predicted.error.field}: ${predicted.error.message}\n`);
     return EXIT_USAGE;
   }
   const m = predicted.value;

@@ -1,6 +1,6 @@
 // The caches a disk really gets: configured values, the combined-size split and the profile's
 // defaults, per layer of a backing chain ([CACHE], docs/sources.md).
-import { fail, ok, type Outcome } from './result';
+import { fail, ok, type Outcome } from './results';
 import {
   l2CoveredBytes, l2EntryBytes, l2FullCoverage, l2Tables, maxOf, minOf,
   minimumL2Cache, minimumRefcountCache, roundUp,

@@ -3,6 +3,15 @@
 
 export type Severity = 'error' | 'warning' | 'info';
 
+/**
+ * The one result shape: parsing user input never throws across a module boundary, it returns one
+ * of these. The error is a sentence by default; a caller that needs more says what (E).
+ */
+export type Outcome<T, E = string> = { ok: true; value: T } | { ok: false; error: E };
+
+export const ok = <T>(value: T): { ok: true; value: T } => ({ ok: true, value });
+export const fail = <E = string>(error: E): { ok: false; error: E } => ({ ok: false, error });
+
 /** A place in a definition file. Lines and columns are 1-based; offsets are UTF-16 code units. */
 export interface SourceRange {
   offset: number;

@@ -1,6 +1,6 @@
 // The qcow2 metadata geometry and cache sizing of docs/sources.md. Pure and exact: every byte count is a
 // bigint, every division rounds the way the format does (up, to whole entries), never through floats.
-import { fail, ok, type Outcome } from './result';
+import { fail, ok, type Outcome } from './results';
 import { formatSize } from './format';
 
 export const KiB = 1024n;

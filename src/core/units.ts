@@ -1,6 +1,6 @@
 // Sizes and intervals as docs/mapping-file.md defines them. Byte counts are bigint so that no value a
 // qcow2 header can hold is ever rounded; decimal fractions ("2.5M") are computed exactly.
-import { fail, ok, type Outcome } from './result';
+import { fail, ok, type Outcome } from './results';
 
 const KI = 1024n;
 /** Binary multipliers [IEC 80000-13]: K, Ki and KiB all mean 2^10, and so on up to P. */

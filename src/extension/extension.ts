@@ -12,7 +12,7 @@ import { SizingPanel } from './panel';
 import { panelView } from './panelView';
 import { CacheStatus } from './statusBar';
 import { proposeMapping } from './starterProposal';
-import { whatIfEdit } from './whatIfEdits';
+import { setDiskSizesEdit } from '../model/diskEdits';
 import { registerImageViewer } from './imageViewer';
 import type { WhatIfValues } from '../protocol/panel';
 
@@ -54,11 +54,11 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
     const document = await vscode.workspace.openTextDocument(uri);
     const result = linting.fresh(document);
     if (!result) return { ok: false, message: 'This file is not one the mapping file includes.' };
-    const outcome = whatIfEdit(uri.fsPath, document.getText(), result.mapping, pointer, values);
-    if (!outcome.ok) return { ok: false, message: outcome.message };
-    const applied = await vscode.workspace.applyEdit(workspaceEdit(document, [outcome.edit]));
+    const outcome = setDiskSizesEdit(uri.fsPath, document.getText(), result.mapping, pointer, values);
+    if (!outcome.ok) return { ok: false, message: outcome.error };
+    const applied = await vscode.workspace.applyEdit(workspaceEdit(document, [outcome.value.edit]));
     return applied
-      ? { ok: true, message: `Wrote ${outcome.fields.join(', ')} into the definition (not saved). ${CAUTIONS.reopen}` }
+      ? { ok: true, message: `Wrote ${outcome.value.fields.join(', ')} into the definition (not saved). ${CAUTIONS.reopen}` }
       : { ok: false, message: 'The editor refused the edit; the file may have changed.' };
   };
 

@@ -120,11 +120,6 @@ function sizeDisk(context: FileContext, disk: DiskSpec, machines: readonly Machi
   const trace: DiskTrace | undefined = traceFacts && disk.values.trace ? { written: disk.values.trace, paths: traceRequest?.paths ?? [], facts: traceFacts } : undefined;
   runDiskRules(context, disk, sizing, top, image, trace, machines, into);
   const measured = trace?.facts.curve ? measuredReport(trace.facts.curve, top, context.mapping.assume.targetHitRatio) : undefined;
-  const configured: DiskReport['configured'] = {};
-  for (const key of ['l2Cache', 'refcountCache', 'combinedCache', 'cacheEntrySize', 'cleanupInterval'] as const) {
-    const value = disk.values[key];
-    if (value) configured[key] = { raw: value.raw, pointer: value.pointer };
-  }
   return {
     sizing,
     report: {
@@ -136,7 +131,7 @@ function sizeDisk(context: FileContext, disk: DiskSpec, machines: readonly Machi
       sizing: sizing.report,
       recommended: sizing.recommended,
       layers: sizing.layers,
-      configured,
+      chain,
       extendedL2: top.geometry.extendedL2,
       requestSize: disk.values.requestSize?.value ?? mapping.assume.requestSize,
       pattern: disk.values.pattern?.value ?? mapping.assume.pattern,

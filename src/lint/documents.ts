@@ -42,6 +42,7 @@ export function unparsedReport(path: string, problems: readonly { message: strin
     disks: [],
     machines: [],
     findings: problems.map((p) => ({ rule: rule.id, severity: 'error' as const, message: p.message, pointer: '', range: p.range })),
+    fileFindings: problems.map((_, index) => index),
     parsed: false,
   };
 }

@@ -80,7 +80,7 @@ export class FileContext {
   fixHelpers(disk: DiskSpec, machines: readonly MachineSpec[]): FixHelpers {
     const set = (field: SizeField | 'cleanupInterval', value: NewValue, title: string): Fix | undefined => {
       const result = setDiskFieldEdit(this.document, this.mapping, disk, field, value, this.fileSizeStyle(machines));
-      return result.ok ? { title, edits: [result.edit] } : undefined;
+      return result.ok ? { title, edits: [result.value] } : undefined;
     };
     return {
       setSize: (field, bytes, title) => set(field, { kind: 'size', bytes }, title),

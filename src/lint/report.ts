@@ -1,16 +1,28 @@
 // The one result of linting a file: per disk its sizing and values, per machine its budget, and the
 // findings in the order they are shown. Front ends only format it.
-import type { DiskSizing, LayerCache } from '../core/cache';
+import type { DiskSizing, LayerCache, LayerSpec } from '../core/cache';
 import type { Finding, SourceRange } from '../core/results';
 import { cacheBudgetOf } from '../core/sizing';
-import type { DiskSpec, MachineSpec } from '../model/disks';
+import type { DiskSpec, DiskValues, MachineSpec } from '../model/disks';
+import { pointerWithin } from '../model/jsonpath';
 import { RULE_IDS, type RuleId } from '../rules';
-import type { SizeField } from '../rules/types';
 import { applyAcceptances } from './acceptance';
 import type { FileContext } from './prepare';
 
 /** A finding of one of the registry's rules. */
 export type LintFinding = Finding<RuleId>;
+
+/** A value the definition writes: parsed, as written, and where it sits. */
+export interface ReportedValue<T> {
+  value: T;
+  /** The value as written (a number, or the string with its unit). */
+  raw: unknown;
+  pointer: string;
+  range: SourceRange;
+}
+
+/** The values a definition writes for a disk, parsed (absent: not written, or not readable). */
+export type DiskValuesReport = { [K in keyof DiskValues]?: ReportedValue<NonNullable<DiskValues[K]>['value']> };
 
 export interface DiskReport {
   machine: string;
@@ -21,9 +33,14 @@ export interface DiskReport {
   range: SourceRange;
   sizing: DiskSizing['report'];
   recommended: DiskSizing['recommended'];
+  /** The sizing of every layer of the chain, top first. */
   layers: LayerCache[];
-  /** What the definition sets, as written (absent: the driver default applies). */
-  configured: Partial<Record<SizeField | 'cleanupInterval', { raw: unknown; pointer: string }>>;
+  /** The model's inputs: each layer's geometry and settings exactly as they were sized, top first. */
+  chain: LayerSpec[];
+  /** The disk's own values as the definition writes them (absent: the driver default applies). */
+  values: DiskValuesReport;
+  /** Indices into FileReport.findings: the findings at or under this disk. */
+  findings: number[];
   extendedL2: boolean;
   requestSize: bigint;
   pattern: string;
@@ -60,6 +77,8 @@ export interface MachineReport {
   cacheMemoryTotal: bigint;
   /** Indices into FileReport.disks. */
   disks: number[];
+  /** Indices into FileReport.findings: the machine's own, not those of its disks. */
+  findings: number[];
 }
 
 export interface FileReport {
@@ -67,6 +86,8 @@ export interface FileReport {
   disks: DiskReport[];
   machines: MachineReport[];
   findings: LintFinding[];
+  /** Indices into findings: those under no disk or machine (syntax, accept comments, stray values). */
+  fileFindings: number[];
   /** False when the file could not be parsed: --fix must leave it alone. */
   parsed: boolean;
 }
@@ -75,7 +96,8 @@ export interface FileReport {
 export interface DiskUnit {
   disk: DiskSpec;
   findings: LintFinding[];
-  result?: { sizing: DiskSizing; report: DiskReport };
+  /** The disk's report but for what the file's assembly adds (its values and findings). */
+  result?: { sizing: DiskSizing; report: Omit<DiskReport, 'values' | 'findings'> };
 }
 
 export interface MachineUnit {
@@ -114,7 +136,7 @@ export function assemble(context: FileContext, units: Units): FileReport {
       findings.push(...disk.findings);
       if (!disk.result) continue;
       indices.push(disks.length);
-      disks.push(disk.result.report);
+      disks.push({ ...disk.result.report, range: disk.disk.range, values: reportedValues(disk.disk), findings: [] });
       total += disk.result.sizing.report.cacheMemoryTotal;
     }
     findings.push(...unit.ruleFindings);
@@ -130,11 +152,37 @@ export function assemble(context: FileContext, units: Units): FileReport {
       budget: memory === undefined ? undefined : cacheBudgetOf(memory, mapping.cacheShareOfMemory),
       cacheMemoryTotal: total,
       disks: indices,
+      findings: [],
     });
   }
   // Findings kept from an earlier update are judged again against today's comments.
   for (const finding of findings) delete finding.accepted;
   applyAcceptances(context, units.machines.map((u) => u.machine), findings);
   findings.sort(byPlace);
-  return { path: document.path, disks, machines: machineReports, findings, parsed: true };
+  const fileFindings = claimFindings(findings, disks, machineReports);
+  return { path: document.path, disks, machines: machineReports, findings, fileFindings, parsed: true };
+}
+
+function reportedValues(disk: DiskSpec): DiskValuesReport {
+  const out: Record<string, ReportedValue<unknown>> = {};
+  for (const [key, located] of Object.entries(disk.values)) {
+    if (located) out[key] = { value: located.value, raw: located.raw, pointer: located.pointer, range: located.range };
+  }
+  return out;
+}
+
+/** Gives each finding to the first disk whose pointer holds it, else its machine, else the file; returns the file's. */
+function claimFindings(findings: readonly LintFinding[], disks: DiskReport[], machines: MachineReport[]): number[] {
+  const claimed = new Set<number>();
+  const claim = (pointer: string, into: number[]) => {
+    findings.forEach((finding, index) => {
+      if (!claimed.has(index) && pointerWithin(finding.pointer, pointer)) {
+        claimed.add(index);
+        into.push(index);
+      }
+    });
+  };
+  for (const disk of disks) claim(disk.pointer, disk.findings);
+  for (const machine of machines) claim(machine.pointer, machine.findings);
+  return findings.flatMap((_, index) => (claimed.has(index) ? [] : [index]));
 }

@@ -168,7 +168,7 @@ export class LintSession {
           disks: unit.disks.map((d): DiskUnit => (d === old ? edited : {
             disk: d.disk,
             findings: d.findings.map((f) => shiftFinding(f, change, lines)),
-            ...(d.result ? { result: { sizing: d.result.sizing, report: { ...d.result.report, range: d.disk.range } } } : {}),
+            ...(d.result ? { result: { sizing: d.result.sizing, report: d.result.report } } : {}),
           })),
         };
         // The edited disk's machine sums its disks again.

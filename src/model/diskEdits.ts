@@ -1,30 +1,31 @@
 // Setting one field of one disk as text edits: replace the value where it is written, or insert
 // the key the mapping's selector names. Rules' fixes and the panel's what-if both go through here.
-import type { TextEdit } from '../core/results';
+import { fail, ok, type Outcome, type TextEdit } from '../core/results';
 import type { SizeStyle } from '../core/units';
-import type { DiskSpec, Located, MachineSpec } from './disks';
-import { nodeAt, type DefinitionDocument } from './document';
-import { documentSizeStyle, insertFieldEdit, replaceValueEdit, type NewValue } from './edits';
+import { extractMachines, type DiskSpec, type DiskValues, type Located, type MachineSpec } from './disks';
+import { nodeAt, readDefinition, type DefinitionDocument } from './document';
+import { applyEdits, documentSizeStyle, insertFieldEdit, replaceValueEdit, type NewValue } from './edits';
+import { diffTexts } from './incremental';
 import type { Mapping } from './mapping';
 import type { DiskField } from './mappingSchema';
 
-export type FieldEdit = { ok: true; edit: TextEdit } | { ok: false; reason: string };
+export type FieldEdit = Outcome<TextEdit>;
 
-export function setDiskFieldEdit(document: DefinitionDocument, mapping: Mapping, disk: DiskSpec, field: DiskField, value: NewValue, style: SizeStyle | undefined): FieldEdit {
-  const existing = (disk.values as Partial<Record<DiskField, Located<unknown>>>)[field];
+export function setDiskFieldEdit(document: DefinitionDocument, mapping: Mapping, disk: DiskSpec, field: DiskField & keyof DiskValues, value: NewValue, style: SizeStyle | undefined): FieldEdit {
+  const existing: Located<unknown> | undefined = disk.values[field];
   if (existing) {
-    if (existing.viaAlias) return { ok: false, reason: `${field} of ${disk.name} comes from a YAML anchor shared with other disks; change it there by hand` };
+    if (existing.viaAlias) return fail(`${field} of ${disk.name} comes from a YAML anchor shared with other disks; change it there by hand`);
     const edit = replaceValueEdit(document, existing.node, existing.raw, value, style);
-    return edit ? { ok: true, edit } : { ok: false, reason: `cachewright cannot rewrite ${field} of ${disk.name} as it is written` };
+    return edit ? ok(edit) : fail(`cachewright cannot rewrite ${field} of ${disk.name} as it is written`);
   }
   const chain = mapping.diskFields[field]?.memberChain;
-  if (!chain || chain.length === 0) return { ok: false, reason: `the mapping file has no plain selector for ${field}, so cachewright cannot write it` };
+  if (!chain || chain.length === 0) return fail(`the mapping file has no plain selector for ${field}, so cachewright cannot write it`);
   // Written but unreadable: invalid-value reports it; inserting would duplicate the key.
-  if (nodeAt(document, [...disk.path, ...chain])) return { ok: false, reason: `${field} of ${disk.name} is written but cannot be read; correct it first` };
+  if (nodeAt(document, [...disk.path, ...chain])) return fail(`${field} of ${disk.name} is written but cannot be read; correct it first`);
   const base = nodeAt(document, disk.path);
-  if (!base || base.viaAlias) return { ok: false, reason: `${disk.name} comes from a YAML anchor; change it there by hand` };
+  if (!base || base.viaAlias) return fail(`${disk.name} comes from a YAML anchor; change it there by hand`);
   const edit = insertFieldEdit(document, base.node, chain, value, style);
-  return edit ? { ok: true, edit } : { ok: false, reason: `cachewright cannot write ${field} of ${disk.name} in this file's layout` };
+  return edit ? ok(edit) : fail(`cachewright cannot write ${field} of ${disk.name} in this file's layout`);
 }
 
 /** The unit style a file's sizes use, from every disk's written sizes. */
@@ -39,4 +40,40 @@ export function sizeStyleOfMachines(machines: readonly MachineSpec[]): SizeStyle
     }
   }
   return documentSizeStyle(raws);
+}
+
+/** What the panel's what-if mode may write for a disk; each absent value is left as it is. */
+export interface DiskSizeValues {
+  clusterSize?: bigint;
+  l2Cache?: bigint;
+  cacheEntrySize?: bigint;
+}
+
+type SizeValueField = keyof DiskSizeValues;
+const SIZE_VALUE_FIELDS: readonly SizeValueField[] = ['clusterSize', 'l2Cache', 'cacheEntrySize'];
+
+/**
+ * Writes several sizes of the disk at `pointer` through the same helpers the rules' fixes use, one
+ * field at a time on the text (each read again, so later fields see earlier ones), and returns one
+ * minimal edit: the span between the unchanged start and end of the text.
+ */
+export function setDiskSizesEdit(path: string, text: string, mapping: Mapping, pointer: string, values: DiskSizeValues): Outcome<{ edit: TextEdit; fields: SizeValueField[] }> {
+  let current = text;
+  const fields: SizeValueField[] = [];
+  for (const field of SIZE_VALUE_FIELDS) {
+    const bytes = values[field];
+    if (bytes === undefined) continue;
+    const read = readDefinition(path, current);
+    if (!read.document) return fail('the definition cannot be parsed; fix its syntax first');
+    const { machines } = extractMachines(read.document, mapping);
+    const disk = machines.flatMap((m) => m.disks).find((d) => d.pointer === pointer);
+    if (!disk) return fail(`no disk at ${pointer} any more`);
+    const result = setDiskFieldEdit(read.document, mapping, disk, field, { kind: 'size', bytes }, sizeStyleOfMachines(machines));
+    if (!result.ok) return result;
+    current = applyEdits(current, [result.value]);
+    fields.push(field);
+  }
+  if (fields.length === 0) return fail('nothing to change');
+  const change = diffTexts(text, current) ?? { start: 0, oldEnd: 0, newEnd: 0, delta: 0 };
+  return ok({ edit: { offset: change.start, length: change.oldEnd - change.start, text: current.slice(change.start, change.newEnd) }, fields });
 }

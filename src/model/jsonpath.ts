@@ -4,7 +4,7 @@
 // library re-parses its expression on each call, and a fleet evaluates a dozen fields per disk.
 import parseJsonPath from 'jsonpath-rfc9535/parser';
 import { exec, type JsonValue } from 'jsonpath-rfc9535';
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 
 export type PathSegment = string | number;
 

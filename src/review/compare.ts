@@ -116,11 +116,14 @@ function machinesOf(files: readonly ReviewedFile[]): Map<string, MachineSide> {
 interface DiskSide {
   ref: DiskRef;
   sizing: SizingReport;
-  configured: ReviewedDisk['configured'];
+  values: ReviewedDisk['values'];
 }
 
+/** The values that tune a disk's caches: a change in any of them is a tuning change. */
+const CACHE_SETTINGS: ReadonlySet<string> = new Set(['l2Cache', 'refcountCache', 'combinedCache', 'cacheEntrySize', 'cleanupInterval']);
+
 function tuningOf(side: DiskSide): string {
-  const settings = Object.entries(side.configured ?? {}).flatMap(([key, value]) => (value ? [[key, value.raw]] : [])).sort(([a], [b]) => byText(String(a), String(b)));
+  const settings = Object.entries(side.values ?? {}).flatMap(([key, value]) => (value && CACHE_SETTINGS.has(key) ? [[key, value.raw]] : [])).sort(([a], [b]) => byText(String(a), String(b)));
   const { clusterSize, l2EntryBytes, layers } = side.sizing;
   return JSON.stringify([settings, String(clusterSize), String(l2EntryBytes), layers]);
 }
@@ -134,7 +137,7 @@ function disksOf(files: readonly ReviewedFile[]): Map<string, DiskSide[]> {
       const diskId = disk.named ? disk.name : disk.pointer;
       const key = `${file.path}\u0000${machineId}\u0000${diskId}`;
       const ref: DiskRef = { file: file.path, machine: machine ? machineLabel(file.path, machine) : disk.machine, disk: disk.named ? disk.name : `${disk.name} (${disk.pointer})`, cacheMemory: disk.sizing.cacheMemoryTotal };
-      out.set(key, [...(out.get(key) ?? []), { ref, sizing: disk.sizing, configured: disk.configured }]);
+      out.set(key, [...(out.get(key) ?? []), { ref, sizing: disk.sizing, values: disk.values }]);
     }
   }
   return out;

@@ -3,7 +3,7 @@
 // one entry per finding, identities only (no lines, no messages whose numbers drift).
 import { z } from 'zod';
 import type { Finding } from '../core/results';
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 import { nodeAt, rangeOfNode, readDefinition } from '../model/document';
 import type { PathSegment } from '../model/jsonpath';
 import { identify, pairUp, type FindingSubject, type IdentifiedFinding } from './identity';

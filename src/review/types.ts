@@ -9,8 +9,8 @@ export interface ReviewedDisk {
   named: boolean;
   pointer: string;
   sizing: SizingReport;
-  /** The cache settings the definition writes, as written. */
-  configured?: Readonly<Record<string, { raw: unknown } | undefined>>;
+  /** The values the definition writes for the disk, as written (the report's `values`). */
+  values?: Readonly<Record<string, { raw: unknown } | undefined>>;
 }
 
 export interface ReviewedMachine {

@@ -3,7 +3,7 @@
 // LRU stack distances -> hit profile.
 
 import { formatSize } from '../core/format';
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 import type { TraceFormat } from './formats/tally';
 import { RequestMapper, type TraceGeometry } from './lookups';
 import { HitProfile } from './profile';

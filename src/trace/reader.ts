@@ -2,7 +2,7 @@
 // and discard to a request sink, and counts what it could not use. Problems come back as an Outcome
 // whose message names the file, never as an exception.
 
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 import { textOf, isBlankRange } from './bytes';
 import { DETECTION_LINES, FORMATS_ACCEPTED, formatOfLine } from './detect';
 import { BlockTraceParser, type BlockEvent } from './formats/block-trace';

@@ -5,7 +5,7 @@
 import { closeSync, createReadStream, readSync } from 'node:fs';
 import { errorCode, ioMessage, openChecked } from '../files/open';
 import { createGunzip } from 'node:zlib';
-import { fail, ok, type Outcome } from '../core/result';
+import { fail, ok, type Outcome } from '../core/results';
 
 const CHUNK_BYTES = 1 << 20;
 

@@ -47,7 +47,7 @@ for (const [name, disk] of [['whole tables', wholeTableDisk], ['4 KiB slices', s
     let entries = 0;
     const result = time(() => {
       const prepared = prepareCacheModel(input);
-      if (!prepared.ok) throw new Error(prepared.problem.message);
+      if (!prepared.ok) throw new Error(prepared.error.message);
       entries = prepared.value.entries;
       if (prepared.value.curve(64).points.length !== 64) throw new Error('expected 64 points');
     }, 25);
@@ -59,5 +59,5 @@ for (const [name, disk] of [['whole tables', wholeTableDisk], ['4 KiB slices', s
 console.log('\nthe panel pair (whole-table and slice curves side by side), 1 TiB disk, zipf s=0.8');
 line('entrySizeCurves, 64 points each', time(() => {
   const curves = entrySizeCurves({ ...wholeTableDisk, virtualSize: 1024n * 1024n * MiB, access: { kind: 'zipf', exponent: 0.8 } });
-  if (!curves.ok) throw new Error(curves.problem.message);
+  if (!curves.ok) throw new Error(curves.error.message);
 }, 25));

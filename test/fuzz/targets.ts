@@ -167,7 +167,7 @@ const values: FuzzTarget = {
       if (interval.ok) assert.ok(Number.isFinite(interval.value) && interval.value >= 0, `interval ${interval.value} from ${JSON.stringify(text)}`);
       else assertMessage(interval.error, 'interval parser');
       const pattern = parseAccessSpec(text);
-      if (!pattern.ok) assertMessage(pattern.problem.message, 'pattern parser');
+      if (!pattern.ok) assertMessage(pattern.error.message, 'pattern parser');
     });
   },
 };

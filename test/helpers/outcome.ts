@@ -1,6 +1,6 @@
 // Assertions on the engine's Outcome values: a test reads the value, or the message of a refusal.
 import { strict as assert } from 'node:assert';
-import type { Outcome } from '../../src/core/result';
+import type { Outcome } from '../../src/core/results';
 
 export function valueOf<T>(outcome: Outcome<T>): T {
   if (!outcome.ok) assert.fail(`expected success, got error: ${outcome.error}`);

@@ -221,6 +221,7 @@ describe('edits: property: inserting into any map of generated, hand-styled YAML
   })).map;
   const choices = fc.array(fc.nat(), { minLength: 20, maxLength: 20 });
   it('the result parses and holds exactly the data plus the new value', () => {
+    let checked = 0;
     fc.assert(fc.property(tree, choices, fc.array(key, { maxLength: 2 }), fc.boolean(), (data, pick, via, crlf) => {
       const styled = parseDocument(yamlStringify(data, { aliasDuplicateObjects: false }));
       let n = 0;
@@ -248,14 +249,16 @@ describe('edits: property: inserting into any map of generated, hand-styled YAML
       let text = styled.toString();
       if (crlf) text = text.replace(/\n/g, '\r\n');
       const reread = readDefinition('/p/a.yaml', text);
-      if (!reread.document) return; // a styling the YAML writer cannot express; not the subject here
+      // A styling the YAML writer cannot express is not the subject here: fast-check draws another.
+      fc.pre(reread.document !== undefined);
       const base = maps[(pick[19] as number) % maps.length] as (string | number)[];
       const target = nodeAt(reread.document, base);
-      if (!target || !isMap(target.node)) return;
+      fc.pre(target !== undefined && isMap(target.node));
       const keys = [...via, 'zz9'];
       const edit = insertFieldEdit(reread.document, target.node, keys, MiB128);
       // Allowed to refuse (a non-map on the way); when it writes, the result must be right.
-      if (!edit) return;
+      fc.pre(edit !== undefined);
+      checked++;
       const result = applyEdits(text, [edit]);
       const after = readDefinition('/p/a.yaml', result);
       assert.ok(after.document, `the result must parse:\n${text}\n--- became ---\n${result}\n${JSON.stringify(after.problems)}`);
@@ -270,6 +273,8 @@ describe('edits: property: inserting into any map of generated, hand-styled YAML
       assert.deepEqual(after.document.data, expected, `${text}\n--- became ---\n${result}`);
       if (crlf) assert.doesNotMatch(result, /[^\r]\n/, 'CRLF kept');
     }), { numRuns: 400 });
+    // fast-check draws again for every precondition that fails, so all 400 cases reach the checks.
+    assert.equal(checked, 400);
   });
 });
 
@@ -294,6 +299,7 @@ describe('edits: property: inserting into any object of hand-formatted JSON', ()
     return multi ? `${open}${style.eol}${inner}${parts.join(`,${style.eol}${inner}`)}${style.eol}${indent}${close}` : `${open}${parts.join(style.comma)}${close}`;
   }
   it('the result is valid JSON holding exactly the data plus the new value', () => {
+    let checked = 0;
     fc.assert(fc.property(tree, styleArb, fc.nat(), fc.array(key, { maxLength: 2 }), (data, style, pickBase, via) => {
       const text = write(data, style, '', { n: 0 });
       const d = doc(text, 'a.json');
@@ -312,7 +318,8 @@ describe('edits: property: inserting into any object of hand-formatted JSON', ()
       assert.ok(target);
       const keys = [...via, 'zz9'];
       const edit = insertFieldEdit(d, target.node, keys, MiB128);
-      if (!edit) return; // refused: a non-object on the way
+      fc.pre(edit !== undefined); // refused: a non-object on the way
+      checked++;
       const result = applyEdits(text, [edit]);
       let parsed: unknown;
       assert.doesNotThrow(() => { parsed = JSON.parse(result); }, `not JSON:\n${text}\n--- became ---\n${result}`);
@@ -327,6 +334,7 @@ describe('edits: property: inserting into any object of hand-formatted JSON', ()
       assert.deepEqual(parsed, expected, `${text}\n--- became ---\n${result}`);
       if (style.eol === '\r\n') assert.doesNotMatch(result, /[^\r]\n/, 'CRLF kept');
     }), { numRuns: 400 });
+    assert.equal(checked, 400);
   });
 });
 

@@ -110,7 +110,7 @@ export function parseAccessSpec(text: string, field = 'access'): ModelResult<Acc
 
 function prefix(result: ModelResult<AccessPattern>, shown: string): ModelResult<AccessPattern> {
   if (result.ok) return result;
-  return fail(result.problem.field, `access pattern ${shown}: ${result.problem.message}`);
+  return fail(result.error.field, `access pattern ${shown}: ${result.error.message}`);
 }
 
 /** The notation for a pattern; parseAccessSpec(formatAccessSpec(p)) gives p back. */

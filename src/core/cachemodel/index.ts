@@ -5,7 +5,7 @@
  * range, default the whole disk) and an access pattern, predicts the steady-state LRU hit ratio of the
  * L2 cache and what the misses cost. Byte counts are bigint; counts of entries and ratios are numbers.
  * Nothing here throws on bad input: every entry point returns ModelResult, { ok: true, value } or
- * { ok: false, problem: { field, message } } with a message naming the value and what is allowed.
+ * { ok: false, error: { field, message } } with a message naming the value and what is allowed.
  *
  * - modelCache(input: CacheModelInput): ModelResult<CacheModelReport>
  *     the model at input.cacheBytes: hitRatio, entries (N), cachedEntries (C), missesPer1000,

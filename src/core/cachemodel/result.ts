@@ -1,5 +1,8 @@
-// Every entry point of the cache model returns one of these instead of throwing: the model also runs
-// in the panel's webview, where a bad what-if value must become a message, never an exception.
+// Every entry point of the cache model returns the one result shape instead of throwing: the model
+// also runs in the panel's webview, where a bad what-if value must become a message, never an exception.
+import { fail as failWith, type Outcome } from '../results';
+
+export { ok } from '../results';
 
 /** What was wrong with an input: the field it came from and a sentence naming the value and what is allowed. */
 export interface ModelProblem {
@@ -7,12 +10,8 @@ export interface ModelProblem {
   message: string;
 }
 
-export type ModelResult<T> = { ok: true; value: T } | { ok: false; problem: ModelProblem };
+export type ModelResult<T> = Outcome<T, ModelProblem>;
 
-export function ok<T>(value: T): ModelResult<T> {
-  return { ok: true, value };
-}
-
-export function fail<T>(field: string, message: string): ModelResult<T> {
-  return { ok: false, problem: { field, message } };
+export function fail(field: string, message: string): { ok: false; error: ModelProblem } {
+  return failWith({ field, message });
 }

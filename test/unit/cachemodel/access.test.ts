@@ -6,14 +6,14 @@ import { formatAccessSpec, parseAccessSpec, type AccessPattern } from '../../../
 
 function parsed(text: string): AccessPattern {
   const result = parseAccessSpec(text);
-  if (!result.ok) assert.fail(`${text}: ${result.problem.message}`);
+  if (!result.ok) assert.fail(`${text}: ${result.error.message}`);
   return result.value;
 }
 
 function problem(text: string): string {
   const result = parseAccessSpec(text);
   assert.equal(result.ok, false, `${text} should be rejected`);
-  return result.ok ? '' : result.problem.message;
+  return result.ok ? '' : result.error.message;
 }
 
 const ACCEPTED = /random, sequential, mixed, zipf\(S\).*"P% on Q%"/;
@@ -65,6 +65,6 @@ describe('cachemodel: access pattern notation', () => {
   it('reports the field it was given', () => {
     const result = parseAccessSpec('nope', 'disks[0].pattern');
     assert.ok(!result.ok);
-    assert.equal(result.problem.field, 'disks[0].pattern');
+    assert.equal(result.error.field, 'disks[0].pattern');
   });
 });

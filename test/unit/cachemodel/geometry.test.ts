@@ -11,13 +11,13 @@ const TiB = 1024n * GiB;
 
 function geometry(clusterSize: bigint, extendedL2 = false, entrySize?: bigint): EntryGeometry {
   const result = entryGeometry(clusterSize, extendedL2, entrySize);
-  if (!result.ok) assert.fail(result.problem.message);
+  if (!result.ok) assert.fail(result.error.message);
   return result.value;
 }
 
 function fullCoverage(virtualSize: bigint, clusterSize: bigint, extendedL2 = false, entrySize?: bigint): bigint {
   const result = modelCache({ virtualSize, clusterSize, extendedL2, entrySize, cacheBytes: 0n, access: { kind: 'random' } });
-  if (!result.ok) assert.fail(result.problem.message);
+  if (!result.ok) assert.fail(result.error.message);
   return result.value.fullCoverageBytes;
 }
 
@@ -77,19 +77,19 @@ describe('cachemodel: entry geometry', () => {
     for (const bad of [256n, 3n * KiB, 4n * MiB]) {
       const result = entryGeometry(bad, false);
       assert.ok(!result.ok);
-      assert.match(result.problem.message, new RegExp(`${bad} bytes.*power of two from 512 bytes to 2 MiB`));
+      assert.match(result.error.message, new RegExp(`${bad} bytes.*power of two from 512 bytes to 2 MiB`));
     }
     const extended = entryGeometry(8n * KiB, true);
     assert.ok(!extended.ok);
-    assert.match(extended.problem.message, /at least 16 KiB/);
+    assert.match(extended.error.message, /at least 16 KiB/);
   });
 
   it('[CACHE] rejects slices that are not a power of two from 512 B to the cluster size', () => {
     for (const bad of [256n, 3000n, 128n * KiB]) {
       const result = entryGeometry(64n * KiB, false, bad);
       assert.ok(!result.ok);
-      assert.equal(result.problem.field, 'entrySize');
-      assert.match(result.problem.message, new RegExp(`${bad} bytes`));
+      assert.equal(result.error.field, 'entrySize');
+      assert.match(result.error.message, new RegExp(`${bad} bytes`));
     }
   });
 });
@@ -128,7 +128,7 @@ describe('cachemodel: working set onto entries', () => {
       workingSet: { offset: 768n * MiB, length: 512n * MiB }, access: { kind: 'random' },
     });
     assert.ok(!result.ok);
-    assert.equal(result.problem.field, 'workingSet');
-    assert.match(result.problem.message, /past the end of the 1073741824-byte disk/);
+    assert.equal(result.error.field, 'workingSet');
+    assert.match(result.error.message, /past the end of the 1073741824-byte disk/);
   });
 });

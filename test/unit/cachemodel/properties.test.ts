@@ -90,12 +90,12 @@ describe('cachemodel: properties', () => {
   it('a bad input is a problem naming the field, never an exception', () => {
     const result = prepareCacheModel({ virtualSize: 0n, clusterSize: 65536n, extendedL2: false, access: { kind: 'random' } });
     assert.ok(!result.ok);
-    assert.equal(result.problem.field, 'virtualSize');
+    assert.equal(result.error.field, 'virtualSize');
     const zipf = prepareCacheModel({ virtualSize: 1n << 30n, clusterSize: 65536n, extendedL2: false, access: { kind: 'zipf', exponent: Number.NaN } });
     assert.ok(!zipf.ok);
-    assert.match(zipf.problem.message, /Zipf exponent NaN is out of range/);
+    assert.match(zipf.error.message, /Zipf exponent NaN is out of range/);
     const device = prepareCacheModel({ virtualSize: 1n << 30n, clusterSize: 65536n, extendedL2: false, access: { kind: 'random' }, device: { name: 'x', accessLatencyUs: -1, bytesPerSecond: 1 } });
     assert.ok(!device.ok);
-    assert.equal(device.problem.field, 'device.accessLatencyUs');
+    assert.equal(device.error.field, 'device.accessLatencyUs');
   });
 });

@@ -30,7 +30,7 @@ function modelled(access: AccessPattern, capacity: number, workingSet: { offset:
     access,
   };
   const result = modelCache({ ...input, cacheBytes: BigInt(capacity) * 4n * KiB });
-  if (!result.ok) assert.fail(result.problem.message);
+  if (!result.ok) assert.fail(result.error.message);
   assert.equal(result.value.method, 'characteristic-time');
   return result.value.hitRatio;
 }

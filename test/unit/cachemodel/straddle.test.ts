@@ -18,7 +18,7 @@ function report(entrySize: bigint, cacheBytes: bigint, minEntries?: number): Cac
     virtualSize: 4n * GiB, clusterSize: 64n * KiB, extendedL2: false, entrySize, cacheBytes, workingSet, minEntries,
     access: { kind: 'random' },
   });
-  if (!result.ok) assert.fail(result.problem.message);
+  if (!result.ok) assert.fail(result.error.message);
   return result.value;
 }
 

@@ -12,7 +12,7 @@ const TiB = 1024n * GiB;
 
 function uniform(virtualSize: bigint, clusterSize: bigint, cacheBytes: bigint, entrySize?: bigint, workingSet?: { offset: bigint; length: bigint }): CacheModelReport {
   const result = modelCache({ virtualSize, clusterSize, extendedL2: false, entrySize, cacheBytes, workingSet, access: { kind: 'random' } });
-  if (!result.ok) assert.fail(result.problem.message);
+  if (!result.ok) assert.fail(result.error.message);
   return result.value;
 }
 
