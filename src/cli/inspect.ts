@@ -7,7 +7,7 @@ import { driverProfile, type DriverProfile } from '../core/profiles';
 import { inspectImage, reportFailed, type ImageReport, type InspectProgress } from '../image';
 import { resolveBackingPath } from '../image/chain';
 import { chainCost, layerCost } from '../image/cost';
-import { chainRows, GROUP_TITLES, layerGroups, type CostRow, type HeaderNotes } from '../image/cost-rows';
+import { chainRows, GROUP_TITLES, layerGroups, type CostRow, type HeaderNotes } from '../protocol/image-groups';
 import { formatOption, parseArgs, type OptionSpec } from './args';
 import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { renderColumns } from './table';

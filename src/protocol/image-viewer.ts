@@ -5,7 +5,7 @@
 import { fromWire, toWire } from './wire';
 import type { DriverGeneration, HostPlatform } from '../core/profiles';
 import type { ChainCost, LayerCost } from '../image/cost';
-import type { HeaderNotes } from '../image/cost-rows';
+import type { HeaderNotes } from '../protocol/image-groups';
 import type { ImageErrorKind } from '../image/errors';
 
 /** Where the viewer is with one image. */

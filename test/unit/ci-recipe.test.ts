@@ -2,7 +2,7 @@
 // of it (one disk grown, one undersized cache fixed, one machine moved onto a host that is already
 // full), the review script extracted from the page and run as it stands, the page's workflow read
 // and its steps run where they need no network. Checks the markdown, the JSON and the exit status
-// (CONTRACTS.md §8).
+// (docs/cli.md).
 import { strict as assert } from 'node:assert';
 import { execFileSync, spawnSync } from 'node:child_process';
 import * as fs from 'node:fs';

@@ -106,7 +106,7 @@ function uiTexts(): Label[] {
   const files = [
     ...sourceFiles(path.join(ROOT, 'webview')),
     ...sourceFiles(path.join(ROOT, 'src', 'extension')),
-    path.join(ROOT, 'src', 'image', 'cost-rows.ts'),
+    path.join(ROOT, 'src', 'protocol', 'image-groups.ts'),
     path.join(ROOT, 'src', 'core', 'cautions.ts'),
     path.join(ROOT, 'src', 'core', 'profiles.ts'),
     path.join(ROOT, 'src', 'core', 'cachemodel', 'access.ts'),

@@ -1,8 +1,8 @@
 // Draws an ImageView: state and progress, then the groups `cachewright inspect` prints (layout,
-// allocation, caches, chain) with the same labels and wording (src/image/cost-rows.ts), the
+// allocation, caches, chain) with the same labels and wording (src/protocol/image-groups.ts), the
 // allocation map drawn as a picture. Every number arrives from the host; this file only lays it out.
 import { formatCount, formatCounted } from '../../src/core/format';
-import { chainRows, GROUP_TITLES, layerGroups, type CostGroup, type CostRow } from '../../src/image/cost-rows';
+import { chainRows, GROUP_TITLES, layerGroups, type CostGroup, type CostRow } from '../../src/protocol/image-groups';
 import {
   ERROR_KIND_WORDS,
   type DrawnSummary, type ProfileChoice, type ImageView, type LayerView, type ThemeSummary, type WalkProgressView,

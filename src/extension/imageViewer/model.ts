@@ -5,7 +5,7 @@ import { CAUTIONS } from '../../core/cautions';
 import { driverProfile, type DriverProfile } from '../../core/profiles';
 import type { ImageReport } from '../../image';
 import { chainCost, layerCost } from '../../image/cost';
-import type { HeaderNotes } from '../../image/cost-rows';
+import type { HeaderNotes } from '../../protocol/image-groups';
 import { ERROR_KIND_WORDS, type ImageView, type LayerView, type ViewState, type WalkProgressView } from '../../protocol/image-viewer';
 
 export interface ViewInput {

@@ -2,7 +2,7 @@
 // `cachewright inspect` and the image viewer so both show one tool. Pure: no DOM, no fs; numbers
 // come from cost.ts and are written through the one formatting module (core/format.ts).
 import { formatCount, formatCounted, formatShare, formatSize } from '../core/format';
-import type { AllocationMapGroup, ChainCost, LayerCost } from './cost';
+import type { AllocationMapGroup, ChainCost, LayerCost } from '../image/cost';
 
 export type GroupName = 'layout' | 'allocation' | 'caches' | 'chain';
 
