@@ -6,17 +6,11 @@ import { strict as assert } from 'node:assert';
 import { execFileSync } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as path from 'node:path';
-import Ajv from 'ajv-draft-04';
-import addFormats from 'ajv-formats';
-import sarifSchema from '@microsoft/jest-sarif/lib/schemas/sarif-2.1.0-rtm.5.json';
 import { runCommand } from '../../src/cli/main';
 import { CONTRACT } from '../helpers/sources';
+import { SARIF, validateSarif } from '../helpers/sarif';
 import { makeWorkspace, removeWorkspace, type Run } from '../fixtures/lint/run';
 
-const SARIF = '[SARIF OASIS SARIF 2.1.0]';
-const ajv = new Ajv({ allErrors: true, strict: false, unicodeRegExp: false });
-addFormats(ajv);
-const validateSarif = ajv.compile(sarifSchema);
 
 async function compareIn(cwd: string, args: readonly string[]): Promise<Run> {
   let stdout = '';

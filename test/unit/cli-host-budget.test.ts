@@ -2,16 +2,10 @@
 // text, JSON and SARIF with related places in other files. The SARIF log is validated against the
 // SARIF 2.1.0 JSON schema shipped in @microsoft/jest-sarif (as in cli-lint-sarif.test.ts).
 import { strict as assert } from 'node:assert';
-import Ajv from 'ajv-draft-04';
-import addFormats from 'ajv-formats';
-import sarifSchema from '@microsoft/jest-sarif/lib/schemas/sarif-2.1.0-rtm.5.json';
 import { CONTRACT } from '../helpers/sources';
+import { SARIF, validateSarif } from '../helpers/sarif';
 import { lintIn, makeWorkspace, removeWorkspace } from '../fixtures/lint/run';
 
-const SARIF = '[SARIF OASIS SARIF 2.1.0]';
-const ajv = new Ajv({ allErrors: true, strict: false, unicodeRegExp: false });
-addFormats(ajv);
-const validateSarif = ajv.compile(sarifSchema);
 
 const MAPPING = `version: 1
 include: ["fleet/*.yaml"]

@@ -5,19 +5,13 @@
 import { strict as assert } from 'node:assert';
 import * as fs from 'node:fs';
 import * as path from 'node:path';
-import Ajv from 'ajv-draft-04';
-import addFormats from 'ajv-formats';
-import sarifSchema from '@microsoft/jest-sarif/lib/schemas/sarif-2.1.0-rtm.5.json';
 import { loadMapping, lintDocument } from '../../src/lint';
 import { identify } from '../../src/review/identity';
 import { readKnownFile } from '../../src/review/known';
 import { CONTRACT } from '../helpers/sources';
+import { SARIF, validateSarif } from '../helpers/sarif';
 import { lintIn, makeWorkspace, removeWorkspace, type LintJson } from '../fixtures/lint/run';
 
-const SARIF = '[SARIF OASIS SARIF 2.1.0]';
-const ajv = new Ajv({ allErrors: true, strict: false, unicodeRegExp: false });
-addFormats(ajv);
-const validateSarif = ajv.compile(sarifSchema);
 
 const MAPPING = `version: 1
 include: ["fleet/**/*.yaml"]
