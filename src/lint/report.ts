@@ -4,7 +4,6 @@ import type { DiskSizing, LayerCache, LayerSpec } from '../core/cache';
 import type { Finding, SourceRange } from '../core/results';
 import { cacheBudgetOf } from '../core/sizing';
 import type { DiskSpec, DiskValues, MachineSpec } from '../model/disks';
-import { pointerWithin } from '../model/jsonpath';
 import { RULE_IDS, type RuleId } from '../rules';
 import { applyAcceptances } from './acceptance';
 import type { FileContext } from './prepare';
@@ -171,18 +170,26 @@ function reportedValues(disk: DiskSpec): DiskValuesReport {
   return out;
 }
 
-/** Gives each finding to the first disk whose pointer holds it, else its machine, else the file; returns the file's. */
+/**
+ * Gives each finding to the disk whose pointer holds it, else its machine, else the file; returns
+ * the file's. Found by walking each finding's pointer up to its owner, so the cost grows with the
+ * findings, not with findings times disks.
+ */
 function claimFindings(findings: readonly LintFinding[], disks: DiskReport[], machines: MachineReport[]): number[] {
-  const claimed = new Set<number>();
-  const claim = (pointer: string, into: number[]) => {
-    findings.forEach((finding, index) => {
-      if (!claimed.has(index) && pointerWithin(finding.pointer, pointer)) {
-        claimed.add(index);
-        into.push(index);
-      }
-    });
+  const diskAt = new Map<string, number[]>();
+  const machineAt = new Map<string, number[]>();
+  for (const disk of disks) if (!diskAt.has(disk.pointer)) diskAt.set(disk.pointer, disk.findings);
+  for (const machine of machines) if (!machineAt.has(machine.pointer)) machineAt.set(machine.pointer, machine.findings);
+  const ownerIn = (owners: Map<string, number[]>, pointer: string): number[] | undefined => {
+    for (let at = pointer; ; at = at.slice(0, at.lastIndexOf('/'))) {
+      const owner = owners.get(at);
+      if (owner) return owner;
+      if (at === '') return undefined;
+    }
   };
-  for (const disk of disks) claim(disk.pointer, disk.findings);
-  for (const machine of machines) claim(machine.pointer, machine.findings);
-  return findings.flatMap((_, index) => (claimed.has(index) ? [] : [index]));
+  const file: number[] = [];
+  findings.forEach((finding, index) => {
+    (ownerIn(diskAt, finding.pointer) ?? ownerIn(machineAt, finding.pointer) ?? file).push(index);
+  });
+  return file;
 }
