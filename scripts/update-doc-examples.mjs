@@ -6,6 +6,8 @@ import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 
 const root = new URL('..', import.meta.url).pathname;
+// The examples show the demo as `npm run demo` leaves it, with the ledger's trace written.
+spawnSync(process.execPath, [join(root, 'scripts', 'demo-traces.mjs')], { cwd: root, stdio: 'inherit' });
 const docs = (dir) => readdirSync(dir, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? docs(join(dir, e.name)) : e.name.endsWith('.md') ? [join(dir, e.name)] : []));
 
 for (const file of [join(root, 'README.md'), ...docs(join(root, 'docs'))]) {

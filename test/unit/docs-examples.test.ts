@@ -4,6 +4,7 @@
 // optionally `[exit N]` when it does not exit 0. They run in examples/, the invented demo fleet.
 // Any other fenced line that starts with `$ ` is an error: every example must be checked.
 import { strict as assert } from 'node:assert';
+import { spawnSync } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as path from 'node:path';
 import { runCommand } from '../../src/cli/main';
@@ -107,6 +108,12 @@ const normal = (text: string): string => text.split('\n').map((l) => l.trimEnd()
 
 describe('documentation examples run as written', function () {
   this.timeout(60000);
+  // The examples show the demo as `npm run demo` leaves it: with the ledger's I/O trace written
+  // (seeded, not kept in git), so whether a developer ran the demo first changes nothing.
+  before(() => {
+    const traces = spawnSync(process.execPath, [path.join(ROOT, 'scripts', 'demo-traces.mjs')], { cwd: ROOT, encoding: 'utf8' });
+    assert.equal(traces.status, 0, traces.stderr);
+  });
   const files = docFiles();
   const all = files.map(examplesOf);
 
