@@ -1,5 +1,6 @@
 // One open qcow2 image: its path, the inspection running on it and the webviews showing it. The
 // file is only ever read (the reader opens it with 'r'); there is nothing here that could save it.
+import { statSync } from 'node:fs';
 import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { inspectImage, readChain, type ImageReport, type InspectProgress } from '../../image';
@@ -34,6 +35,9 @@ export class ImageDocument implements vscode.CustomDocument {
   private lastProgressPost = 0;
   private stopAtFirstProgress = false;
   private changedOnDisk: 'changed' | 'deleted' | null = null;
+  /** The file's modification time and size when the last read began: a watcher event that finds
+   *  both unchanged is a late echo of how the file came to be (its creation), not a new write. */
+  private readStamp: string | undefined;
   private profile: DriverProfile = driverProfile();
   private readonly watcher: vscode.FileSystemWatcher | undefined;
   current: ImageView;
@@ -55,6 +59,7 @@ export class ImageDocument implements vscode.CustomDocument {
   }
 
   private fileChanged(how: 'changed' | 'deleted'): void {
+    if (how === 'changed' && this.readStamp !== undefined && stampOf(this.path) === this.readStamp) return;
     this.changedOnDisk = how;
     this.publish(this.state);
   }
@@ -90,6 +95,7 @@ export class ImageDocument implements vscode.CustomDocument {
     const abort = new AbortController();
     this.abort = abort;
     this.changedOnDisk = null;
+    this.readStamp = stampOf(this.path);
     this.note = undefined;
     this.progress = null;
     const run = this.inspect(abort.signal).finally(() => {
@@ -213,5 +219,14 @@ export class ImageDocument implements vscode.CustomDocument {
     this.listeners.clear();
     this.disposed.fire();
     this.disposed.dispose();
+  }
+}
+
+function stampOf(file: string): string | undefined {
+  try {
+    const stat = statSync(file, { bigint: true });
+    return `${stat.mtimeNs}:${stat.size}`;
+  } catch {
+    return undefined;
   }
 }
