@@ -178,7 +178,7 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
     const found = await waitUntil(`a Problems row for ${rule}`, async () => {
       const texts = await page.locator('.markers-panel .monaco-list-row').allTextContents();
       return texts.some((t) => t.includes(rule)) ? true : undefined;
-    }, 5000).catch(() => false);
+    }, 15000).catch(() => false);
     if (!found) {
       missing.push(rule);
       if (missing.length === 1) await page.screenshot({ path: path.join(dirs.base, 'problems-filter.png') });
@@ -186,8 +186,11 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   }
   checks.check('Problems rows carry the rule ids', missing.length === 0, missing.length ? `missing ${missing.join(', ')}` : `${rows.length} rows before filtering`);
   await setFilter('l2-cache-oversized');
-  await sleep(500);
-  const accepted = await page.locator('.markers-panel .monaco-list-row').allTextContents();
+  // The filter has taken effect once no row of another rule is listed.
+  const accepted = await waitUntil('the Problems filter for l2-cache-oversized', async () => {
+    const texts = await page.locator('.markers-panel .monaco-list-row').allTextContents();
+    return texts.every((t) => !problemRules.some((rule) => t.includes(rule))) ? texts : undefined;
+  }, 10000);
   checks.check('an accepted finding is not listed as a problem', !accepted.some((t) => t.includes('l2-cache-oversized')));
   await setFilter('');
 
