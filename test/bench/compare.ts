@@ -8,16 +8,10 @@ import { spawnSync } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as os from 'node:os';
 import * as path from 'node:path';
+import { CLI, option } from './lib/options';
 
 const TARGET_RATIO = 2.2;
-const ROOT = path.resolve(__dirname, '..', '..');
-const CLI = path.join(ROOT, 'dist', 'cli.js');
 
-function option(name: string, fallback: number): number {
-  const at = process.argv.indexOf(`--${name}`);
-  const value = at === -1 ? undefined : Number(process.argv[at + 1]);
-  return value !== undefined && Number.isFinite(value) && value > 0 ? value : fallback;
-}
 const FILES = option('files', 3000);
 const RUNS = option('runs', 3);
 

@@ -4,14 +4,10 @@
 //   npx tsx test/bench/editor-latency.ts [--disks N] [--runs N]
 import * as path from 'node:path';
 import { LintSession, lintDocument, loadMapping } from '../../src/lint';
+import { option } from './lib/options';
 
 const TARGET_MS = 30;
 
-function option(name: string, fallback: number): number {
-  const at = process.argv.indexOf(`--${name}`);
-  const value = at === -1 ? undefined : Number(process.argv[at + 1]);
-  return value !== undefined && Number.isFinite(value) && value > 0 ? value : fallback;
-}
 const DISKS = option('disks', 2000);
 const RUNS = option('runs', 41);
 

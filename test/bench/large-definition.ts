@@ -9,17 +9,11 @@ import { spawnSync } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as os from 'node:os';
 import * as path from 'node:path';
+import { CLI, option } from './lib/options';
 
 const TIME_TARGET = 1.5;
 const MEMORY_TARGET = 1.3;
-const ROOT = path.resolve(__dirname, '..', '..');
-const CLI = path.join(ROOT, 'dist', 'cli.js');
 
-function option(name: string, fallback: number): number {
-  const at = process.argv.indexOf(`--${name}`);
-  const value = at === -1 ? undefined : Number(process.argv[at + 1]);
-  return value !== undefined && Number.isFinite(value) && value > 0 ? value : fallback;
-}
 const MIB = option('mib', 10);
 const RUNS = option('runs', 2);
 
