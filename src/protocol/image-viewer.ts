@@ -2,7 +2,7 @@
 // module, so a message's shape cannot drift between them. Pure: no DOM, no vscode, no fs.
 // Byte counts are bigint and travel as tagged strings (the panel's codec), so no size is ever
 // rounded through a float on the way.
-import { fromWire, toWire } from './wire';
+import { fromWire, messageDecoder, toWire } from './wire';
 import type { DriverGeneration, HostPlatform } from '../core/profiles';
 import type { ChainCost, LayerCost } from '../image/cost';
 import type { HeaderNotes } from '../protocol/image-groups';
@@ -120,22 +120,8 @@ export type ViewerWebviewMessage =
   | { type: 'reread' }
   | { type: 'profile'; choice: ProfileChoice };
 
-const HOST_TYPES = new Set<ViewerHostMessage['type']>(['view', 'progress']);
-const WEBVIEW_TYPES = new Set<ViewerWebviewMessage['type']>(['ready', 'rendered', 'stop', 'reread', 'profile']);
-
-function typeOf(value: unknown): unknown {
-  return value !== null && typeof value === 'object' ? (value as { type?: unknown }).type : undefined;
-}
-
-export function decodeViewerHostMessage(raw: unknown): ViewerHostMessage | undefined {
-  const value = fromWire(raw);
-  return HOST_TYPES.has(typeOf(value) as ViewerHostMessage['type']) ? (value as ViewerHostMessage) : undefined;
-}
-
-export function decodeViewerWebviewMessage(raw: unknown): ViewerWebviewMessage | undefined {
-  const value = fromWire(raw);
-  return WEBVIEW_TYPES.has(typeOf(value) as ViewerWebviewMessage['type']) ? (value as ViewerWebviewMessage) : undefined;
-}
+export const decodeViewerHostMessage = messageDecoder<ViewerHostMessage>(['view', 'progress']);
+export const decodeViewerWebviewMessage = messageDecoder<ViewerWebviewMessage>(['ready', 'rendered', 'stop', 'reread', 'profile']);
 
 export const encodeViewerMessage = (message: ViewerHostMessage | ViewerWebviewMessage): unknown => toWire(message);
 

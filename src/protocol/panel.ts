@@ -3,7 +3,7 @@
 import type { SourceRange, Severity, SizingReport } from '../core/results';
 import type { LayerSpec } from '../core/cache';
 import type { DriverGeneration, HostPlatform } from '../core/profiles';
-import { fromWire, toWire } from './wire';
+import { messageDecoder, toWire } from './wire';
 
 export interface FindingView {
   rule: string;
@@ -87,23 +87,9 @@ export type PanelMessage =
   | { type: 'reveal'; uri: string; range: SourceRange }
   | { type: 'applyWhatIf'; uri: string; version: number; pointer: string; values: WhatIfValues };
 
-const HOST_TYPES = new Set<HostMessage['type']>(['show', 'empty', 'focusDisk', 'applied']);
-const PANEL_TYPES = new Set<PanelMessage['type']>(['ready', 'rendered', 'reveal', 'applyWhatIf']);
-
-function typeOf(value: unknown): unknown {
-  return value !== null && typeof value === 'object' ? (value as { type?: unknown }).type : undefined;
-}
-
 /** Decodes a message from the host; undefined for anything that is not one. */
-export function decodeHostMessage(raw: unknown): HostMessage | undefined {
-  const value = fromWire(raw);
-  return HOST_TYPES.has(typeOf(value) as HostMessage['type']) ? (value as HostMessage) : undefined;
-}
-
+export const decodeHostMessage = messageDecoder<HostMessage>(['show', 'empty', 'focusDisk', 'applied']);
 /** Decodes a message from the panel; undefined for anything that is not one. */
-export function decodePanelMessage(raw: unknown): PanelMessage | undefined {
-  const value = fromWire(raw);
-  return PANEL_TYPES.has(typeOf(value) as PanelMessage['type']) ? (value as PanelMessage) : undefined;
-}
+export const decodePanelMessage = messageDecoder<PanelMessage>(['ready', 'rendered', 'reveal', 'applyWhatIf']);
 
 export const encodeMessage = (message: HostMessage | PanelMessage): unknown => toWire(message);

@@ -25,3 +25,16 @@ export function fromWire(value: unknown): unknown {
   }
   return value;
 }
+
+/**
+ * A decoder for one side's messages: the wire value back in shape when its `type` is one of that
+ * side's, undefined for anything else (a webview may receive messages meant for others).
+ */
+export function messageDecoder<M extends { type: string }>(types: readonly M['type'][]): (raw: unknown) => M | undefined {
+  const known = new Set<unknown>(types);
+  return (raw) => {
+    const value = fromWire(raw);
+    const type = value !== null && typeof value === 'object' ? (value as { type?: unknown }).type : undefined;
+    return known.has(type) ? (value as M) : undefined;
+  };
+}
