@@ -11,6 +11,7 @@ import { createWriteStream, mkdtempSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { once } from 'node:events';
+import { mulberry32 as generator } from '../unit/cachemodel/lru-simulation';
 
 const runsArg = process.argv.indexOf('--runs');
 const RUNS = runsArg > 0 ? Number(process.argv[runsArg + 1]) : 3;
@@ -22,17 +23,6 @@ const ENTRIES = 100_000;
 const SPAN = 2 * 1024 * 1024;
 const GEOMETRY = ['--size', '256G', '--cluster-size', '4K'];
 
-/** mulberry32 (public domain), seeded: the same trace every run. */
-function generator(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Requests over ENTRIES cache entries: 80% of them on a hot 10% (4 KiB to 64 KiB, 4 KiB aligned). */
 async function writeTrace(path: string, requests: number, line: (i: number, offset: number, length: number, write: boolean) => string, header = ''): Promise<void> {
