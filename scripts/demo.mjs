@@ -4,7 +4,9 @@
 import { spawnSync } from 'node:child_process';
 
 const run = (title, args) => {
-  process.stdout.write(`\n$ cachewright ${args.join(' ')}    # ${title}\n\n`);
+  // Quoted as a shell needs it, so a printed line can be copied as it stands.
+  const shown = args.map((a) => (/^[\w@%+=:,./-]+$/.test(a) ? a : `'${a.replace(/'/g, `'\\''`)}'`));
+  process.stdout.write(`\n$ cachewright ${shown.join(' ')}    # ${title}\n\n`);
   const result = spawnSync(process.execPath, ['dist/cli.js', ...args], { stdio: 'inherit' });
   return result.status ?? 2;
 };
