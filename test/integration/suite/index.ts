@@ -10,7 +10,7 @@ const testFiles: Array<() => unknown> = [
   () => require('./hosts.test'),
   () => require('./mapping-and-commands.test'),
   () => require('./settings.test'),
-  () => require('./imageViewer.test'),
+  () => require('./image-viewer.test'),
 ];
 
 export function run(): Promise<void> {

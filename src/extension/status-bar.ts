@@ -4,7 +4,7 @@ import * as vscode from 'vscode';
 import { formatCounted, formatPercent, formatShare, formatSize } from '../core/format';
 import type { HostReport } from '../lint';
 import type { LintResult } from './linting';
-import { fileCacheTotal } from './panelView';
+import { fileCacheTotal } from './panel-view';
 
 /** How full a host is, for ordering: over its memory first, then caches against its cache share. */
 function pressure(host: HostReport): number {
