@@ -3,7 +3,7 @@
 // text summary and a table of the marks for readers who cannot see the drawing.
 import { formatSize } from '../src/core/format';
 import { el, svg } from './dom';
-import { CHART, chartModel, hitRatioText, yOf, type ChartInput, type ChartModel, type SeriesId } from './curve-model';
+import { CHART, chartModel, hitRatioText, yOf, type ChartInput, type ChartModel } from './curve-model';
 
 let figureCount = 0;
 
@@ -112,7 +112,7 @@ function marksTable(chart: ChartModel, tableId: string): HTMLTableElement {
     size.title = `${mark.bytes.toString()} bytes`;
     row.append(name, size);
     for (const series of chart.series) {
-      const ratio = mark.ratios[series.id as SeriesId];
+      const ratio = mark.ratios[series.id];
       const cell = el('td', `curve-ratio${series.inUse ? ' in-use' : ''}`, ratio === undefined ? '—' : hitRatioText(ratio));
       cell.dataset.series = series.id;
       if (ratio !== undefined) cell.dataset.hitRatio = String(ratio);

@@ -21,6 +21,11 @@ export function custom(tag: string, attrs: Record<string, string> = {}, text?: s
   return node;
 }
 
+/** The value of a form control or web component (a dropdown, a text field): '' when it has none. */
+export function controlValue(element: HTMLElement): string {
+  return 'value' in element && typeof element.value === 'string' ? element.value : '';
+}
+
 /** An SVG element with attributes and optional text. */
 export function svg<K extends keyof SVGElementTagNameMap>(tag: K, attrs: Record<string, string | number> = {}, text?: string): SVGElementTagNameMap[K] {
   const node = document.createElementNS(SVG, tag);

@@ -5,7 +5,7 @@ import { formatSizeExact, parseSize } from '../src/core/units';
 import { formatInterval, formatPercent, formatShare, formatSize } from '../src/core/format';
 import type { DiskView, FindingView, HostView, MachineView, PanelView, WhatIfValues } from '../src/protocol/panel';
 import { curveFigure } from './curve';
-import { custom, el, svg } from './dom';
+import { controlValue, custom, el, svg } from './dom';
 import { CLUSTER_CHOICES, sliceChoices, whatIf, type WhatIfResult } from './whatif';
 
 export interface PanelActions {
@@ -137,7 +137,7 @@ function whatIfControls(disk: DiskView, values: WhatIfValues, result: WhatIfResu
   const clusterPick = custom('vscode-dropdown', { 'data-control': 'clusterSize', 'aria-label': 'Cluster size' });
   for (const choice of CLUSTER_CHOICES) clusterPick.append(option(choice.toString(), formatSize(choice), choice === cluster));
   clusterPick.addEventListener('change', () => {
-    const picked = BigInt((clusterPick as HTMLSelectElement).value);
+    const picked = BigInt(controlValue(clusterPick));
     const next: WhatIfValues = { ...values, clusterSize: picked };
     if (next.cacheEntrySize !== undefined && next.cacheEntrySize > picked) next.cacheEntrySize = picked;
     update(next);
@@ -148,7 +148,7 @@ function whatIfControls(disk: DiskView, values: WhatIfValues, result: WhatIfResu
   slicePick.append(option('table', 'whole L2 table', currentSlice === undefined));
   for (const choice of sliceChoices(cluster)) slicePick.append(option(choice.toString(), formatSize(choice), choice === currentSlice));
   slicePick.addEventListener('change', () => {
-    const raw = (slicePick as HTMLSelectElement).value;
+    const raw = controlValue(slicePick);
     update({ ...values, cacheEntrySize: raw === 'table' ? undefined : BigInt(raw) });
   });
 
@@ -156,14 +156,14 @@ function whatIfControls(disk: DiskView, values: WhatIfValues, result: WhatIfResu
   const l2Field = custom('vscode-text-field', { 'data-control': 'l2Cache', placeholder: 'e.g. 2560K', value: l2Shown !== undefined ? formatSizeExact(l2Shown) : '' }, 'L2 cache');
   const l2Error = el('span', 'field-error');
   const readL2 = (): void => {
-    const text = ((l2Field as HTMLInputElement).value ?? '').trim();
+    const text = controlValue(l2Field).trim();
     if (text === '') { const next = { ...values }; delete next.l2Cache; update(next); return; }
     const parsed = parseSize(text);
     if (!parsed.ok) { l2Error.textContent = parsed.error; return; }
     update({ ...values, l2Cache: parsed.value });
   };
   l2Field.addEventListener('change', readL2);
-  l2Field.addEventListener('keydown', (event) => { if ((event as KeyboardEvent).key === 'Enter') readL2(); });
+  l2Field.addEventListener('keydown', (event) => { if (event instanceof KeyboardEvent && event.key === 'Enter') readL2(); });
 
   const fullButton = custom('vscode-button', { appearance: 'secondary', 'data-action': 'full-coverage' }, 'Use full coverage');
   fullButton.addEventListener('click', () => update({ ...values, l2Cache: result.recommended.l2Cache }));

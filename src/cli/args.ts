@@ -19,7 +19,8 @@ export interface ParsedArgs {
 export function parseArgs(argv: readonly string[], spec: Record<string, OptionSpec>): Outcome<ParsedArgs> {
   const parsed: ParsedArgs = { positionals: [], options: new Map(), flags: new Set() };
   for (let i = 0; i < argv.length; i++) {
-    const arg = argv[i] as string;
+    const arg = argv[i];
+    if (arg === undefined) continue;
     if (arg === '--') {
       parsed.positionals.push(...argv.slice(i + 1));
       break;

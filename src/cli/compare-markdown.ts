@@ -24,7 +24,7 @@ function link(file: string, line: number, options: MarkdownOptions): string {
 
 function subject(f: ComparedFinding): string {
   if (f.host !== undefined) return `host ${escape(f.host)}`;
-  return [f.machine, f.disk].filter((p) => p !== undefined).map((p) => escape(p as string)).join(' / ');
+  return [f.machine, f.disk].flatMap((p) => (p === undefined ? [] : [escape(p)])).join(' / ');
 }
 
 const findingItem = (f: ComparedFinding, options: MarkdownOptions) =>

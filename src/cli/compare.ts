@@ -21,6 +21,7 @@ import { startProgress } from './lint-progress';
 import type { LintedFile, LintRun } from './lint-results';
 import { renderSarif } from './lint-sarif';
 import { completeRun } from './lint-workspace';
+import { isOneOf } from '../core/guards';
 
 const OPTIONS: Record<string, OptionSpec> = {
   git: { value: true },
@@ -78,7 +79,7 @@ function readRequest(argv: readonly string[], io: CommandIO): CompareRequest | n
     return EXIT_OK;
   }
   const format = lastOption(args, 'format') ?? 'text';
-  if (!(FORMATS as readonly string[]).includes(format)) return usageError(io, `--format must be text, json, sarif or markdown, not "${format}"`);
+  if (!isOneOf(FORMATS, format)) return usageError(io, `--format must be text, json, sarif or markdown, not "${format}"`);
   const allowRaw = lastOption(args, 'allow-warnings');
   let allowWarnings: number | undefined;
   if (allowRaw !== undefined) {
@@ -90,9 +91,11 @@ function readRequest(argv: readonly string[], io: CommandIO): CompareRequest | n
   if (gitRef !== undefined ? positionals.length > 1 : positionals.length !== 2) {
     return usageError(io, gitRef !== undefined ? 'with --git, give at most one folder (the head)' : 'give two folders, BASE_DIR and HEAD_DIR, or --git REF');
   }
-  const common = { format: format as CompareFormat, ...(allowWarnings !== undefined ? { allowWarnings } : {}), mapping: lastOption(args, 'mapping'), linkBase: lastOption(args, 'link-base') };
+  const common = { format, ...(allowWarnings !== undefined ? { allowWarnings } : {}), mapping: lastOption(args, 'mapping'), linkBase: lastOption(args, 'link-base') };
   if (gitRef !== undefined) return { ...common, gitRef, head: positionals[0] ?? '.' };
-  return { ...common, base: positionals[0] as string, head: positionals[1] as string };
+  const [base, head] = positionals;
+  if (base === undefined || head === undefined) return usageError(io, 'give two folders, BASE_DIR and HEAD_DIR, or --git REF');
+  return { ...common, base, head };
 }
 
 function isDirectory(path: string): boolean {
@@ -166,7 +169,7 @@ export async function runCompare(argv: readonly string[], io: CommandIO, version
     baseLabel = request.gitRef;
     cleanup = extracted.value.remove;
   } else {
-    baseDir = nodePath.resolve(io.cwd, request.base as string);
+    baseDir = nodePath.resolve(io.cwd, request.base ?? '.');
     baseLabel = displayPath(baseDir, io.cwd);
   }
   try {

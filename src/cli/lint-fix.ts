@@ -34,7 +34,7 @@ export function fixText(path: string, text: string, mapping: Mapping, first?: Fi
   if (!report.parsed) return { text, report, applied };
   const seen = new Set<string>([current]);
   for (let pass = 0; pass < FIX_PASSES; pass++) {
-    const { chosen } = nonOverlapping(report.findings.filter(wantsFix).map((f) => f.fix as NonNullable<Finding['fix']>));
+    const { chosen } = nonOverlapping(report.findings.filter(wantsFix).flatMap((f) => (f.fix ? [f.fix] : [])));
     if (chosen.length === 0) break;
     const next = applyEdits(current, chosen.flatMap((fix) => fix.edits));
     if (seen.has(next)) break;

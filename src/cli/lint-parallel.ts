@@ -10,6 +10,7 @@ import { isMainThread, parentPort, Worker, workerData } from 'node:worker_thread
 import type { Mapping } from '../lint';
 import { loadMappingText, resolveMapping } from './lint-discovery';
 import { lintFile, type LintRequest } from './lint-file';
+import { errorCode } from '../files/open';
 import { ImageFactsCache } from '../image/facts-cache';
 import { TraceCurves } from './lint-traces';
 import type { Progress } from './lint-progress';
@@ -78,7 +79,7 @@ async function lintShare(files: readonly string[], mapping: Mapping, request: Li
 type ShareEnd = { kind: 'finished' } | { kind: 'refused'; message: string } | { kind: 'died'; why: string };
 
 function diedBecause(error: unknown): string {
-  const code = typeof error === 'object' && error !== null && 'code' in error ? String((error as { code: unknown }).code) : '';
+  const code = errorCode(error);
   if (code === 'ERR_WORKER_OUT_OF_MEMORY') return 'ran out of memory';
   return `failed (${error instanceof Error ? error.message : String(error)})`;
 }
@@ -174,6 +175,6 @@ async function serveShare(job: ShareJob): Promise<void> {
   }
 }
 
-const isShareJob = (data: unknown): data is ShareJob => typeof data === 'object' && data !== null && (data as { kind?: unknown }).kind === WORKER_KIND;
+const isShareJob = (data: unknown): data is ShareJob => typeof data === 'object' && data !== null && 'kind' in data && data.kind === WORKER_KIND;
 
 if (!isMainThread && isShareJob(workerData)) void serveShare(workerData);

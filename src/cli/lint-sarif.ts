@@ -110,14 +110,14 @@ function absentResult(run: LintRun, entry: KnownEntry) {
 
 export function renderSarif(run: LintRun): string {
   const results = [
-    ...run.files.flatMap((file) => (file.report ? shownFindings(run, file.report).map((f) => result(run, file.path, f, file.report as NonNullable<typeof file.report>)) : [])),
+    ...run.files.flatMap((file) => ((report) => (report ? shownFindings(run, report).map((f) => result(run, file.path, f, report)) : []))(file.report)),
     ...(run.known?.gone ?? []).map((entry) => absentResult(run, entry)),
   ];
   const notifications = run.files
-    .filter((file) => file.error !== undefined)
+    .flatMap((file) => (file.error === undefined ? [] : [{ path: file.path, error: file.error }]))
     .map((file) => ({
       level: 'error',
-      message: { text: file.error as string },
+      message: { text: file.error },
       locations: [{ physicalLocation: { artifactLocation: artifactLocation(run, file.path) } }],
     }));
   const log = {

@@ -16,6 +16,7 @@ import { renderText } from './lint-text';
 import { compareRunWithKnown, writeKnown } from './lint-known';
 import { completeRun } from './lint-workspace';
 import * as nodePath from 'node:path';
+import { isOneOf } from '../core/guards';
 
 const OPTIONS: Record<string, OptionSpec> = {
   mapping: { value: true },
@@ -73,7 +74,7 @@ function readRequest(argv: readonly string[], io: CommandIO): LintRequest | numb
     return EXIT_OK;
   }
   const format = lastOption(args, 'format') ?? 'text';
-  if (!(FORMATS as readonly string[]).includes(format)) return usageError(io, `--format must be text, json or sarif, not "${format}"`);
+  if (!isOneOf(FORMATS, format)) return usageError(io, `--format must be text, json or sarif, not "${format}"`);
   const allowedRaw = lastOption(args, 'allow-warnings');
   let allowWarnings: number | undefined;
   if (allowedRaw !== undefined) {
@@ -86,7 +87,7 @@ function readRequest(argv: readonly string[], io: CommandIO): LintRequest | numb
     fileSizeLimit,
     paths: args.positionals,
     mappingPath: lastOption(args, 'mapping'),
-    format: format as LintFormat,
+    format,
     fix: args.flags.has('fix'),
     allowWarnings,
     errorsOnly: args.flags.has('errors-only'),

@@ -13,6 +13,7 @@ import { formatAccessSpec, modelCache, parseAccessSpec, type AccessPattern, type
 import { diskGeometryOptions, formatOption, lastOption, parseArgs, sizeOption, type OptionSpec, type ParsedArgs } from './args';
 import { renderColumns } from './table';
 import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
+import { isOneOf } from '../core/guards';
 
 const OPTIONS: Record<string, OptionSpec> = {
   size: { value: true },
@@ -66,7 +67,7 @@ interface SizeRequest {
 
 function choice<T extends string>(args: ParsedArgs, name: string, allowed: readonly T[], fallback: T): Outcome<T> {
   const raw = lastOption(args, name) ?? fallback;
-  return (allowed as readonly string[]).includes(raw) ? ok(raw as T) : fail(`--${name} must be ${allowed.join(' or ')}, not "${raw}"`);
+  return isOneOf(allowed, raw) ? ok(raw) : fail(`--${name} must be ${allowed.join(' or ')}, not "${raw}"`);
 }
 
 function readRequest(args: ParsedArgs): Outcome<SizeRequest> {

@@ -20,7 +20,7 @@ function write(value: unknown, current: string, step: string): string | undefine
     case 'symbol':
       return undefined;
   }
-  if (value === null) return 'null';
+  if (value === null || value === undefined) return 'null';
   const inner = current + step;
   const open = step ? `\n${inner}` : '';
   const close = step ? `\n${current}` : '';
@@ -31,7 +31,7 @@ function write(value: unknown, current: string, step: string): string | undefine
     return `[${open}${items.join(separator)}${close}]`;
   }
   const members: string[] = [];
-  for (const [key, member] of Object.entries(value as Record<string, unknown>)) {
+  for (const [key, member] of Object.entries(value)) {
     const text = write(member, inner, step);
     if (text !== undefined) members.push(`${JSON.stringify(key)}:${step ? ' ' : ''}${text}`);
   }

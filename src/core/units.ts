@@ -1,6 +1,7 @@
 // Sizes and intervals as docs/mapping-file.md defines them. Byte counts are bigint so that no value a
 // qcow2 header can hold is ever rounded; decimal fractions ("2.5M") are computed exactly.
 import { fail, ok, type Outcome } from './results';
+import { atIndex } from './indexed';
 
 const KI = 1024n;
 /** Binary multipliers [IEC 80000-13]: K, Ki and KiB all mean 2^10, and so on up to P. */
@@ -89,7 +90,7 @@ export function formatSizeExact(bytes: bigint, style: SizeStyle = DEFAULT_STYLE)
   for (let i = BINARY_LETTERS.length; i >= 1; i--) {
     const factor = KI ** BigInt(i);
     if (bytes % factor === 0n) {
-      const letter = BINARY_LETTERS[i - 1] as string;
+      const letter = atIndex(BINARY_LETTERS, i - 1);
       const suffix = style.kind === 'letter' ? letter : style.kind === 'iec' ? `${letter}i` : `${letter}iB`;
       return `${bytes / factor}${style.space ? ' ' : ''}${suffix}`;
     }

@@ -12,7 +12,7 @@ const sameRange = (a: vscode.Range, b: vscode.Range): boolean => a.isEqual(b);
 
 /** Fixes of every active finding that can be applied together in one pass. */
 export function fixAllEdits(findings: readonly Finding[]): { fixes: Fix[]; deferred: number } {
-  const fixes = findings.filter((f) => f.fix && !f.accepted).map((f) => f.fix as Fix);
+  const fixes = findings.flatMap((f) => (f.fix && !f.accepted ? [f.fix] : []));
   const { chosen, deferred } = nonOverlapping(fixes);
   return { fixes: chosen, deferred: deferred.length };
 }

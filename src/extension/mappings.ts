@@ -7,6 +7,7 @@ import { loadMapping, type Mapping, type MappingProblem } from '../lint';
 import { FileReadError, MAPPING_SIZE_LIMIT, readRegularText } from '../files/open';
 import { MAPPING_FILE_NAMES } from '../model/mapping';
 import { readSettings } from './settings';
+import { isOneOf } from '../core/guards';
 
 export interface MappingState {
   folder: vscode.WorkspaceFolder;
@@ -73,7 +74,7 @@ export async function readDefinitionText(uri: vscode.Uri, maxBytes: number): Pro
 
 /** A file that would be a folder's mapping file if it existed: a standard name at a folder's root. */
 export function isMappingFileName(uri: vscode.Uri): boolean {
-  if (!(MAPPING_FILE_NAMES as readonly string[]).includes(path.basename(uri.path))) return false;
+  if (!isOneOf(MAPPING_FILE_NAMES, path.basename(uri.path))) return false;
   const folder = vscode.workspace.getWorkspaceFolder(uri);
   return folder !== undefined && path.dirname(uri.fsPath) === folder.uri.fsPath;
 }

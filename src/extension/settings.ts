@@ -3,6 +3,7 @@ import * as vscode from 'vscode';
 import type { Severity } from '../core/results';
 import { parseSize } from '../core/units';
 import { DEFINITION_SIZE_LIMIT, MAX_FILE_SIZE_LIMIT } from '../files/open';
+import { isOneOf } from '../core/guards';
 
 export type SeveritySetting = Severity | 'off';
 const SEVERITIES: readonly SeveritySetting[] = ['error', 'warning', 'info', 'off'];
@@ -30,8 +31,8 @@ export function readSettings(scope?: vscode.Uri): Settings {
   const rules: Record<string, SeveritySetting> = {};
   const rawRules = config.get<unknown>('rules');
   if (rawRules && typeof rawRules === 'object') {
-    for (const [rule, severity] of Object.entries(rawRules as Record<string, unknown>)) {
-      if (SEVERITIES.includes(severity as SeveritySetting)) rules[rule] = severity as SeveritySetting;
+    for (const [rule, severity] of Object.entries(rawRules)) {
+      if (isOneOf(SEVERITIES, severity)) rules[rule] = severity;
     }
   }
   const debounce = config.get<number>('debounceMs', 200);

@@ -61,7 +61,10 @@ export class WorkspaceHosts implements vscode.Disposable {
     const reports = new Map<string, HostReport[]>();
     for (const [mappingPath, { mapping, files }] of groups) {
       // The step appends to each file's list: it gets empty lists, the reports stay as linted.
-      const workspace = files.map(({ uri, report }) => ({ uri, path: uri.fsPath, machines: report.machines, findings: [] as Finding[] }));
+      const workspace = files.map(({ uri, report }) => {
+        const added: Finding[] = [];
+        return { uri, path: uri.fsPath, machines: report.machines, findings: added };
+      });
       lintHosts(workspace, mapping, { severities: readSettings(vscode.Uri.file(mappingPath)).rules });
       for (const file of workspace) if (file.findings.length > 0) findings.set(file.uri.toString(), file.findings);
       reports.set(mappingPath, hostReports(workspace, mapping));

@@ -97,7 +97,7 @@ export function ioMessage(error: unknown): string {
 }
 
 export const errorCode = (error: unknown): string =>
-  typeof error === 'object' && error !== null && 'code' in error ? String((error as { code: unknown }).code) : '';
+  typeof error === 'object' && error !== null && 'code' in error ? String(error.code) : '';
 
 const MISSING = new Set(['ENOENT', 'ENOTDIR']);
 

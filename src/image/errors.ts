@@ -40,7 +40,7 @@ const MISSING_CODES = new Set(['ENOENT', 'ENOTDIR']);
 /** Turns anything thrown while reading `path` into a problem with a message that names the file. */
 export function toProblem(error: unknown, path: string): ImageProblem {
   if (error instanceof ImageError) return { kind: error.kind, message: `${path}: ${error.message}` };
-  const code = typeof error === 'object' && error !== null && 'code' in error ? String((error as { code: unknown }).code) : '';
+  const code = typeof error === 'object' && error !== null && 'code' in error ? String(error.code) : '';
   if (MISSING_CODES.has(code)) return { kind: 'missing', message: `${path}: no such file` };
   if (code === 'EACCES' || code === 'EPERM') return { kind: 'unreadable', message: `${path}: permission denied` };
   if (code === 'EISDIR') return { kind: 'unreadable', message: `${path}: is a directory, not an image file` };

@@ -6,6 +6,7 @@
 import { ImageError } from './errors';
 import type { Qcow2Header } from './header';
 import type { BlockScanner } from './zero-scan';
+import { atIndex } from '../core/indexed';
 
 const TWO_32 = 4294967296;
 const hex = (n: number): string => `0x${n.toString(16)}`;
@@ -85,11 +86,11 @@ export class L2Counter {
     const entries = Math.min(this.entriesPerTable, this.totalClusters - firstCluster);
     this.lastEntry = firstCluster + entries === this.totalClusters ? entries - 1 : -1;
     this.lastEntryBytes = this.lastClusterBytes;
-    const view = this.views[slot]!;
-    const words = this.words[slot]!;
+    const view = atIndex(this.views, slot);
+    const words = atIndex(this.words, slot);
     const { offsets, count } = this.scanner.scan(slot);
     for (let k = 0; k < count; k++) {
-      const offset = offsets[k]!;
+      const offset = atIndex(offsets, k);
       if (this.extended) {
         const i = offset >> 4;
         if (i < entries) this.countEntry(view, i);
@@ -98,8 +99,8 @@ export class L2Counter {
       // A 16-byte block holds two standard entries; usually only one of them is set.
       const i = offset >> 3;
       const w = offset >> 2;
-      if ((words[w]! | words[w + 1]!) !== 0 && i < entries) this.countEntry(view, i);
-      if ((words[w + 2]! | words[w + 3]!) !== 0 && i + 1 < entries) this.countEntry(view, i + 1);
+      if ((atIndex(words, w) | atIndex(words, w + 1)) !== 0 && i < entries) this.countEntry(view, i);
+      if ((atIndex(words, w + 2) | atIndex(words, w + 3)) !== 0 && i + 1 < entries) this.countEntry(view, i + 1);
     }
   }
 
@@ -140,7 +141,7 @@ export class L2Counter {
       if (this.extended && (view.getInt32(at + 8) !== 0 || view.getInt32(at + 12) !== 0)) this.warn('compressed clusters with a non-zero subcluster bitmap (reserved)', i);
       tally.compressedClusters++;
       tally.dataClustersAllocated++;
-      this.dataPerRegion[region]! += guestBytes;
+      this.dataPerRegion[region] = atIndex(this.dataPerRegion, region) + guestBytes;
       return;
     }
 
@@ -171,19 +172,19 @@ export class L2Counter {
       if (allocated > 0) {
         tally.standardClusters++;
         tally.dataClustersAllocated++;
-        this.dataPerRegion[region]! += Math.min(allocated * this.subclusterBytes, guestBytes);
+        this.dataPerRegion[region] = atIndex(this.dataPerRegion, region) + Math.min(allocated * this.subclusterBytes, guestBytes);
       }
-      if (zeros > 0) this.zeroPerRegion[region]! += Math.min(zeros * this.subclusterBytes, guestBytes);
+      if (zeros > 0) this.zeroPerRegion[region] = atIndex(this.zeroPerRegion, region) + Math.min(zeros * this.subclusterBytes, guestBytes);
       return;
     }
 
     if (this.zeroFlagAllowed && (low & 1) !== 0) {
       tally.zeroClusters++;
-      this.zeroPerRegion[region]! += guestBytes;
+      this.zeroPerRegion[region] = atIndex(this.zeroPerRegion, region) + guestBytes;
     } else if (hasHost) {
       tally.standardClusters++;
       tally.dataClustersAllocated++;
-      this.dataPerRegion[region]! += guestBytes;
+      this.dataPerRegion[region] = atIndex(this.dataPerRegion, region) + guestBytes;
     }
   }
 }

@@ -6,6 +6,7 @@ import type { Qcow2Header } from './header';
 import type { ByteSource } from './source';
 import { L2Counter, type Tally } from './l2-counter';
 import { acquireBlockScanner, releaseBlockScanner, type BlockScanner } from './zero-scan';
+import { atIndex } from '../core/indexed';
 
 export interface WalkProgress {
   /** L1 entries looked at so far, of `l1Total` (the entries that map the virtual size). */
@@ -123,7 +124,7 @@ async function walkWith(scanner: BlockScanner, source: ByteSource, header: Qcow2
   };
 
   const readTable = async (offset: number, slot: number): Promise<number> => {
-    const buffer = scanner.buffers[slot]!;
+    const buffer = atIndex(scanner.buffers, slot);
     const got = source.readInto ? await source.readInto(offset, buffer) : await copyRead(source, offset, buffer);
     if (got < cluster) throw new ImageError('malformed', `the file ends inside the L2 table at ${hex(offset)}`);
     return slot;
@@ -168,8 +169,8 @@ async function walkWith(scanner: BlockScanner, source: ByteSource, header: Qcow2
     if (readSync) {
       // Blocking reads: one buffer, no promise per table; a turn for the event loop now and then.
       for (let t = 0; t < tables.length; t++) {
-        const { offset, l1Index } = tables[t]!;
-        if (readSync(offset, scanner.buffers[0]!) < cluster) throw new ImageError('malformed', `the file ends inside the L2 table at ${hex(offset)}`);
+        const { offset, l1Index } = atIndex(tables, t);
+        if (readSync(offset, atIndex(scanner.buffers, 0)) < cluster) throw new ImageError('malformed', `the file ends inside the L2 table at ${hex(offset)}`);
         counter.countTable(0, l1Index);
         afterTable(l1Index);
         if ((t & 15) === 15) {
@@ -186,15 +187,15 @@ async function walkWith(scanner: BlockScanner, source: ByteSource, header: Qcow2
         pending.push(read);
       };
       try {
-        for (let t = 0; t < tables.length && t < READS_IN_FLIGHT; t++) start(tables[t]!.offset, t);
+        for (let t = 0; t < tables.length && t < READS_IN_FLIGHT; t++) start(atIndex(tables, t).offset, t);
         for (let t = 0; t < tables.length; t++) {
-          const slot = await pending[t]!;
+          const slot = await atIndex(pending, t);
           await breathe();
           throwIfAborted(signal);
-          counter.countTable(slot, tables[t]!.l1Index);
-          afterTable(tables[t]!.l1Index);
+          counter.countTable(slot, atIndex(tables, t).l1Index);
+          afterTable(atIndex(tables, t).l1Index);
           const next = t + READS_IN_FLIGHT;
-          if (next < tables.length) start(tables[next]!.offset, slot);
+          if (next < tables.length) start(atIndex(tables, next).offset, slot);
         }
       } finally {
         // No read may still be filling a buffer once the scanner goes back to the pool.

@@ -2,6 +2,7 @@
 // must be looked at, which in plain JavaScript costs about as much as reading the table; a tiny
 // WebAssembly function with 128-bit SIMD compares 128 bytes per step instead. Both paths give the
 // same answer: the byte offsets of the non-zero 16-byte blocks of a table.
+import { atIndex } from '../core/indexed';
 
 export interface BlockScanner {
   /** Buffers to read tables into; `scan` looks at one of them. */
@@ -117,7 +118,7 @@ export function createBlockScanner(tableBytes: number, slots: number, preferJs =
       scan(slot) {
         const base = slot * tableBytes;
         const count = scan(base, base + tableBytes, outAt);
-        for (let i = 0; i < count; i++) offsets[i] = found[i]! - base;
+        for (let i = 0; i < count; i++) offsets[i] = atIndex(found, i) - base;
         return { offsets, count };
       },
     };
@@ -128,12 +129,12 @@ export function createBlockScanner(tableBytes: number, slots: number, preferJs =
   return {
     buffers,
     scan(slot) {
-      const w = words[slot]!;
+      const w = atIndex(words, slot);
       let count = 0;
-      for (let i = 0; i < w.length; i += 16) {
-        if ((w[i]! | w[i + 1]! | w[i + 2]! | w[i + 3]! | w[i + 4]! | w[i + 5]! | w[i + 6]! | w[i + 7]! |
-          w[i + 8]! | w[i + 9]! | w[i + 10]! | w[i + 11]! | w[i + 12]! | w[i + 13]! | w[i + 14]! | w[i + 15]!) === 0) continue;
-        for (let k = i; k < i + 16; k += 4) if ((w[k]! | w[k + 1]! | w[k + 2]! | w[k + 3]!) !== 0) offsets[count++] = k * 4;
+      // A word read by index is `number | undefined` to the compiler; comparing it with 0 needs no
+      // assertion, and every index here is inside the table (its length is a multiple of 16 words).
+      for (let k = 0; k < w.length; k += 4) {
+        if (w[k] !== 0 || w[k + 1] !== 0 || w[k + 2] !== 0 || w[k + 3] !== 0) offsets[count++] = k * 4;
       }
       return { offsets, count };
     },

@@ -2,11 +2,10 @@
 // whole fleet run once per hypervisor host over the machines of all files. Their findings go to
 // the file of the first machine placed on the host (files in path order), where the mapping
 // file's accept list can accept them like any other.
-import type { SourceRange } from '../core/results';
 import { hostLoadOf, type HostLoad } from '../core/host-load';
 import { hostBudget, type HostBudget, type Mapping } from '../model/mapping';
 import { pointerWithin } from '../model/jsonpath';
-import { RULES, type RuleId } from '../rules';
+import { RULES } from '../rules';
 import type { PlacedMachine } from '../rules/types';
 import type { Severity } from '../core/results';
 import type { LintFinding, MachineReport } from './report';
@@ -35,7 +34,7 @@ function placedMachines(files: readonly Pick<WorkspaceFile, 'path' | 'machines'>
         name: machine.name,
         pointer: machine.pointer,
         range: machine.range,
-        host: { name: machine.host, pointer: machine.hostPointer, range: machine.hostRange as SourceRange },
+        host: { name: machine.host, pointer: machine.hostPointer, range: machine.hostRange },
         ...(machine.memory !== undefined ? { memory: machine.memory } : {}),
         cacheMemoryTotal: machine.cacheMemoryTotal,
       };
@@ -65,6 +64,9 @@ export function hostReports(files: readonly Pick<WorkspaceFile, 'path' | 'machin
     });
 }
 
+/** The severity the file or settings ask for ('off' rules never run, so it is left out). */
+const chosenSeverity = (setting: Severity | 'off' | undefined): Severity | undefined => (setting === 'off' ? undefined : setting);
+
 /** Runs every host rule over the files linted together; adds their findings to the files. */
 export function lintHosts(files: readonly WorkspaceFile[], mapping: Mapping, options: HostLintOptions = {}): void {
   const severities = { ...mapping.severities, ...options.severities };
@@ -72,8 +74,9 @@ export function lintHosts(files: readonly WorkspaceFile[], mapping: Mapping, opt
   const hostRules = RULES.filter((rule) => rule.checkHost && severities[rule.id] !== 'off');
   if (hostRules.length === 0) return;
   for (const [host, machines] of placedMachines(files)) {
-    const first = machines[0] as PlacedMachine;
-    const file = filesByPath.get(first.file) as WorkspaceFile;
+    const first = machines[0];
+    const file = first && filesByPath.get(first.file);
+    if (!first || !file) continue; // placedMachines lists a host only with a machine of these files
     const budget = hostBudget(mapping.hosts, host);
     for (const rule of hostRules) {
       rule.checkHost?.({
@@ -82,8 +85,8 @@ export function lintHosts(files: readonly WorkspaceFile[], mapping: Mapping, opt
         machines,
         report: ({ severity, message, related }) => {
           const finding: LintFinding = {
-            rule: rule.id as RuleId,
-            severity: (severities[rule.id] as Severity | undefined) ?? severity,
+            rule: rule.id,
+            severity: chosenSeverity(severities[rule.id]) ?? severity,
             message,
             pointer: first.host.pointer,
             range: first.host.range,

@@ -122,8 +122,9 @@ class Extractor {
   }
 
   machines(): MachineSpec[] {
+    const NO_PATH: PathSegment[] = [];
     const { mapping, document } = this;
-    const roots = mapping.machines ? select(mapping.machines, document.data) : [{ path: [] as PathSegment[], value: document.data }];
+    const roots = mapping.machines ? select(mapping.machines, document.data) : [{ path: NO_PATH, value: document.data }];
     return roots.map((root, index) => this.machine(root.path, root.value, index));
   }
 

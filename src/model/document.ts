@@ -1,8 +1,8 @@
 // A definition file read with every node's place in the text. YAML and JSON both go through the
 // `yaml` package (JSON is read with its JSON schema), which keeps comments and exact offsets.
 import {
-  isAlias, isMap, isScalar, isSeq, parseDocument, type Document, type Node, type Pair, type Scalar,
-  type YAMLMap, type YAMLSeq,
+  isAlias, isMap, isNode, isScalar, isSeq, parseDocument, type Document, type Node, type Pair,
+  type YAMLMap,
 } from 'yaml';
 import type { SourceRange } from '../core/results';
 import { LineIndex } from './lines';
@@ -116,16 +116,16 @@ export function nodeAt(document: DefinitionDocument, path: readonly PathSegment[
   let pair: Pair | undefined;
   for (const segment of path) {
     if (isMap(current)) {
-      pair = findPair(current as YAMLMap, String(segment), state, document.tree);
+      pair = findPair(current, String(segment), state, document.tree);
       if (!pair) return undefined;
       current = resolve(pair.value, state, document.tree);
     } else if (isSeq(current) && typeof segment === 'number') {
       pair = undefined;
-      current = resolve((current as YAMLSeq).items[segment], state, document.tree);
+      current = resolve(current.items[segment], state, document.tree);
     } else return undefined;
   }
-  if (!current || typeof current !== 'object' || !('range' in current)) return undefined;
-  return { node: current as Node, pair, viaAlias: state.viaAlias };
+  if (!isNode(current)) return undefined;
+  return { node: current, pair, viaAlias: state.viaAlias };
 }
 
 /** A map's own key first, then keys a merge key (<<) brings in, which live at the anchor. */
@@ -134,12 +134,12 @@ function findPair(map: YAMLMap, key: string, state: { viaAlias: boolean }, doc: 
   if (own || depth > 16) return own;
   for (const item of map.items) {
     if (keyText(item.key) !== '<<') continue;
-    const sources = isSeq(item.value) ? (item.value as YAMLSeq).items : [item.value];
+    const sources = isSeq(item.value) ? item.value.items : [item.value];
     for (const source of sources) {
       const inner = { viaAlias: false };
       const resolved = resolve(source, inner, doc);
       if (!isMap(resolved)) continue;
-      const found = findPair(resolved as YAMLMap, key, inner, doc, depth + 1);
+      const found = findPair(resolved, key, inner, doc, depth + 1);
       if (found) {
         state.viaAlias = true;
         return found;
@@ -151,7 +151,7 @@ function findPair(map: YAMLMap, key: string, state: { viaAlias: boolean }, doc: 
 
 export function keyText(key: unknown): string | undefined {
   if (isScalar(key)) {
-    const value = (key as Scalar).value;
+    const value = key.value;
     // The yaml package marks a merge key with a symbol.
     return typeof value === 'symbol' ? '<<' : String(value);
   }

@@ -1,10 +1,11 @@
 // Fixes as data: the smallest text edits that set a value in place or insert a missing key, written
 // in the file's own style (YAML block or flow, JSON with its indentation, the unit style the file
 // uses), so everything the fix does not mean to change keeps its bytes.
-import { isMap, isScalar, type Node, type Pair, type Scalar, type YAMLMap } from 'yaml';
+import { isMap, isNode, isScalar, type Node, type Pair } from 'yaml';
 import type { TextEdit } from '../core/results';
 import { formatSizeExact, sizeStyleOf, type SizeStyle } from '../core/units';
 import { keyText, type DefinitionDocument } from './document';
+import { atIndex } from '../core/indexed';
 
 /**
  * How many rounds of "apply the fixes that do not overlap, lint again" a fix-all runs (CLI --fix and
@@ -34,7 +35,7 @@ function valueText(value: NewValue, style: SizeStyle | undefined): { text: strin
 function quoteFor(document: DefinitionDocument, node: Node | undefined): '"' | "'" | '' {
   if (document.format === 'json') return '"';
   if (node && isScalar(node)) {
-    const type = (node as Scalar).type;
+    const type = node.type;
     if (type === 'QUOTE_DOUBLE') return '"';
     if (type === 'QUOTE_SINGLE') return "'";
   }
@@ -53,12 +54,15 @@ function render(document: DefinitionDocument, value: NewValue, style: SizeStyle 
 export function replaceValueEdit(document: DefinitionDocument, node: Node, raw: unknown, value: NewValue, fileStyle?: SizeStyle): TextEdit | undefined {
   const [start, end] = node.range ?? [];
   if (start === undefined || end === undefined || !isScalar(node)) return undefined;
-  if ((node as Scalar).type === 'BLOCK_LITERAL' || (node as Scalar).type === 'BLOCK_FOLDED') return undefined;
+  if (node.type === 'BLOCK_LITERAL' || node.type === 'BLOCK_FOLDED') return undefined;
   const style = value.kind === 'size' ? (sizeStyleOf(raw) ?? fileStyle) : undefined;
   // A value written as a plain number stays a number; a string keeps its unit style.
   const effectiveStyle = typeof raw === 'number' ? { kind: 'bytes' as const, space: false } : style;
   return { offset: start, length: end - start, text: render(document, value, effectiveStyle, node, typeof raw === 'string') };
 }
+
+/** Where a pair's key or value sits, when it is a node (a pair may hold plain values). */
+const rangeOf = (value: unknown): Node['range'] | undefined => (isNode(value) ? value.range : undefined);
 
 const yamlKey = (key: string): string => (/^[A-Za-z_][\w.-]*$/.test(key) ? key : JSON.stringify(key));
 const jsonKey = (key: string): string => JSON.stringify(key);
@@ -76,14 +80,14 @@ function lineEndOf(text: string, offset: number): number {
 /** End of the last non-blank character at or before `offset`. */
 function backOverSpace(text: string, offset: number): number {
   let i = offset;
-  while (i > 0 && /\s/.test(text[i - 1] as string)) i--;
+  while (i > 0 && /\s/.test(atIndex(text, i - 1))) i--;
   return i;
 }
 
 function indentUnit(document: DefinitionDocument): string {
   const match = /\n([ \t]+)\S/.exec(document.text);
   if (!match) return '  ';
-  const first = match[1] as string;
+  const first = atIndex(match, 1);
   return first.startsWith('\t') ? '\t' : first.length >= 2 && first.length <= 8 ? ' '.repeat(Math.min(first.length, 4)) : '  ';
 }
 
@@ -112,10 +116,10 @@ export function insertFieldEdit(document: DefinitionDocument, base: Node, keys: 
   let map: Node = base;
   let depth = 0;
   while (depth < keys.length - 1 && isMap(map)) {
-    const pair = (map as YAMLMap).items.find((item: Pair) => keyText(item.key) === keys[depth]);
+    const pair = map.items.find((item: Pair) => keyText(item.key) === keys[depth]);
     if (!pair) break;
     if (!pair.value || !isMap(pair.value)) return undefined;
-    map = pair.value as Node;
+    map = pair.value;
     depth++;
   }
   if (!isMap(map)) return undefined;
@@ -123,21 +127,21 @@ export function insertFieldEdit(document: DefinitionDocument, base: Node, keys: 
   const json = document.format === 'json';
   const leaf = render(document, value, value.kind === 'size' ? fileStyle : undefined);
   const { text, eol } = document;
-  const items = (map as YAMLMap).items;
+  const items = map.items;
   const [start, end] = map.range ?? [];
   if (start === undefined || end === undefined) return undefined;
-  const flow = (map as YAMLMap).flow === true || json;
+  const flow = map.flow === true || json;
   const last = items.at(-1);
 
   if (flow) {
     const close = text.lastIndexOf('}', end - 1);
     if (close < start) return undefined;
     if (!last) return { offset: close, length: 0, text: inlineNested(remaining, leaf, json) };
-    const lastEnd = (last.value as Node | null)?.range?.[1] ?? (last.key as Node | null)?.range?.[1];
+    const lastEnd = rangeOf(last.value)?.[1] ?? rangeOf(last.key)?.[1];
     if (lastEnd === undefined) return undefined;
     const multiline = text.slice(start, close).includes('\n');
     if (!multiline) return { offset: lastEnd, length: 0, text: `, ${inlineNested(remaining, leaf, json)}` };
-    const keyStart = (last.key as Node).range?.[0] ?? lastEnd;
+    const keyStart = rangeOf(last.key)?.[0] ?? lastEnd;
     const lineStart = lineStartOf(text, keyStart);
     const indent = text.slice(lineStart, keyStart);
     if (!/^[ \t]*$/.test(indent)) return { offset: lastEnd, length: 0, text: `, ${inlineNested(remaining, leaf, json)}` };
@@ -145,7 +149,7 @@ export function insertFieldEdit(document: DefinitionDocument, base: Node, keys: 
   }
 
   if (!last) return undefined;
-  const keyStart = (last.key as Node | null)?.range?.[0];
+  const keyStart = rangeOf(last.key)?.[0];
   if (keyStart === undefined) return undefined;
   const lineStart = lineStartOf(text, keyStart);
   let indent = text.slice(lineStart, keyStart).replace(/^\uFEFF/, '');

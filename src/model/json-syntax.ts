@@ -1,10 +1,18 @@
 // Finds where a JSON text (RFC 8259) first goes wrong. JSON.parse only says "is not valid JSON" for
 // many errors on this Node, with no position, and the yaml reader accepts things JSON does not
 // (trailing commas, comments), so JSON files get this exact check first.
+import { atIndex } from '../core/indexed';
 
 export interface JsonSyntaxError {
   offset: number;
   message: string;
+}
+
+/** What the scanner throws: a syntax error with its offset, told apart from any other error. */
+class JsonSyntaxFailure extends Error {
+  constructor(readonly offset: number, message: string) {
+    super(message);
+  }
 }
 
 class Scanner {
@@ -12,11 +20,11 @@ class Scanner {
   constructor(private readonly text: string) {}
 
   fail(message: string, offset = this.i): never {
-    throw { offset, message } satisfies JsonSyntaxError;
+    throw new JsonSyntaxFailure(offset, message);
   }
 
   space(): void {
-    while (this.i < this.text.length && ' \t\n\r'.includes(this.text[this.i] as string)) this.i++;
+    while (this.i < this.text.length && ' \t\n\r'.includes(atIndex(this.text, this.i))) this.i++;
   }
 
   describe(): string {
@@ -123,7 +131,7 @@ export function findJsonSyntaxError(text: string): JsonSyntaxError | undefined {
     new Scanner(text).document();
     return undefined;
   } catch (error) {
-    if (typeof error === 'object' && error !== null && 'offset' in error) return error as JsonSyntaxError;
+    if (error instanceof JsonSyntaxFailure) return { offset: error.offset, message: error.message };
     return { offset: 0, message: String(error) };
   }
 }

@@ -36,7 +36,8 @@ function stepOf(segment: AstNode): Step | undefined {
   if (node.type === 'MemberNameShorthand' && typeof node.value === 'string') return { kind: 'name', name: node.value };
   if (node.type === 'WildcardSelector') return { kind: 'wildcard' };
   if (node.type !== 'BracketedSelection' || node.selectors?.length !== 1) return undefined;
-  const only = node.selectors[0] as AstNode;
+  const only = node.selectors[0];
+  if (!only) return undefined;
   if (only.type === 'NameSelector' && typeof only.value === 'string') return { kind: 'name', name: only.value };
   if (only.type === 'IndexSelector' && typeof only.value === 'number') return { kind: 'index', index: only.value };
   if (only.type === 'WildcardSelector') return { kind: 'wildcard' };
@@ -46,7 +47,7 @@ function stepOf(segment: AstNode): Step | undefined {
 export function compileSelector(expression: string): Outcome<Selector> {
   let ast: { segments?: AstNode[] };
   try {
-    ast = (parseJsonPath as unknown as (text: string) => { segments?: AstNode[] })(expression);
+    ast = parseJsonPath(expression);
   } catch (error) {
     const message = error instanceof Error ? error.message : String(error);
     return fail(`"${expression}" is not an RFC 9535 JSONPath selector: ${message}`);
@@ -59,16 +60,19 @@ export function compileSelector(expression: string): Outcome<Selector> {
     if (!step) return ok({ expression });
     steps.push(step);
   }
-  const names = steps.every((s) => s.kind === 'name') ? steps.map((s) => (s as { name: string }).name) : undefined;
-  return ok({ expression, steps, memberChain: names });
+  const names = steps.flatMap((s) => (s.kind === 'name' ? [s.name] : []));
+  const memberChain = names.length === steps.length ? names : undefined;
+  return ok({ expression, steps, memberChain });
 }
+
+const ESCAPED: Readonly<Record<string, string>> = { b: '\b', f: '\f', n: '\n', r: '\r', t: '\t' };
 
 /** The library writes member names as normalized paths do (RFC 9535 §2.7): undo that escaping. */
 function unescapeName(segment: string | number): string | number {
   if (typeof segment !== 'string' || !segment.includes('\\')) return segment;
   return segment.replace(/\\(u[0-9a-fA-F]{4}|.)/g, (_, code: string) => {
     if (code.length === 5) return String.fromCharCode(parseInt(code.slice(1), 16));
-    return ({ b: '\b', f: '\f', n: '\n', r: '\r', t: '\t' } as Record<string, string>)[code] ?? code;
+    return ESCAPED[code] ?? code;
   });
 }
 
@@ -136,7 +140,7 @@ function wellTypedness(root: unknown): string | undefined {
       if (!signature) return `unknown function ${node.name}() (RFC 9535 defines length, count, match, search and value)`;
       const args = node.arguments ?? [];
       if (args.length !== signature.params.length) return `${node.name}() takes ${signature.params.length} argument(s)`;
-      const bad = args.findIndex((arg, i) => !fits(arg, signature.params[i] as FunctionType));
+      const bad = args.findIndex((arg, i) => { const wanted = signature.params[i]; return wanted !== undefined && !fits(arg, wanted); });
       if (bad !== -1) return `argument ${bad + 1} of ${node.name}() must be of ${signature.params[bad]}${signature.params[bad] === 'ValueType' ? ' (a literal, a singular query or a value function)' : ''}`;
     } else if (node.type === 'ComparisonExpr') {
       for (const side of [node.left, node.right]) {
@@ -186,8 +190,9 @@ export function select(selector: Selector, root: unknown): Match[] {
 export function valueAtPath(data: unknown, path: readonly PathSegment[]): unknown {
   let current = data;
   for (const segment of path) {
-    if (typeof current !== 'object' || current === null) return undefined;
-    current = (current as Record<string | number, unknown>)[segment];
+    if (Array.isArray(current)) current = current[Number(segment)];
+    else if (isObject(current)) current = current[String(segment)];
+    else return undefined;
   }
   return current;
 }

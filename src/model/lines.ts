@@ -1,6 +1,7 @@
 // Offsets to 1-based lines and columns (UTF-16 code units, as editors and SARIF count them). A line
 // ends at LF, CRLF or a lone CR, as YAML 1.2 (section 5.4) and editors count line breaks.
 import type { SourceRange } from '../core/results';
+import { atIndex } from '../core/indexed';
 
 export class LineIndex {
   private readonly starts: number[] = [0];
@@ -23,14 +24,14 @@ export class LineIndex {
     let high = this.starts.length - 1;
     while (low < high) {
       const mid = (low + high + 1) >> 1;
-      if ((this.starts[mid] as number) <= clamped) low = mid;
+      if ((atIndex(this.starts, mid)) <= clamped) low = mid;
       else high = mid - 1;
     }
-    return { line: low + 1, column: clamped - (this.starts[low] as number) + 1 };
+    return { line: low + 1, column: clamped - (atIndex(this.starts, low)) + 1 };
   }
 
   lineStart(line: number): number {
-    return this.starts[Math.max(0, Math.min(line - 1, this.starts.length - 1))] as number;
+    return atIndex(this.starts, Math.max(0, Math.min(line - 1, this.starts.length - 1)));
   }
 
   get lineCount(): number {
@@ -40,7 +41,7 @@ export class LineIndex {
   /** The text of a 1-based line without its line break. */
   lineText(line: number): string {
     const start = this.lineStart(line);
-    const next = line < this.starts.length ? (this.starts[line] as number) : this.text.length;
+    const next = line < this.starts.length ? (atIndex(this.starts, line)) : this.text.length;
     return this.text.slice(start, next).replace(/(\r\n|\r|\n)$/, '');
   }
 

@@ -2,6 +2,7 @@
 // reported at its own line and column in the mapping file.
 import * as nodePath from 'node:path';
 import picomatch from 'picomatch';
+import { isNode } from 'yaml';
 import type { core } from 'zod';
 type ZodIssue = core.$ZodIssue;
 import { driverProfile, type DriverGeneration, type HostPlatform } from '../core/profiles';
@@ -105,12 +106,12 @@ function locate(doc: DefinitionDocument, path: readonly PathSegment[], key?: str
     if (key !== undefined && depth === path.length) {
       const child = nodeAt(doc, [...prefix, key]);
       const keyNode = child?.pair?.key;
-      if (keyNode && typeof keyNode === 'object' && 'range' in keyNode) {
-        return { pointer: toJsonPointer([...prefix, key]), range: rangeOfNode(doc, keyNode as never) };
+      if (isNode(keyNode)) {
+        return { pointer: toJsonPointer([...prefix, key]), range: rangeOfNode(doc, keyNode) };
       }
     }
     const keyNode = found.pair?.key;
-    const anchor = depth < path.length && keyNode && typeof keyNode === 'object' && 'range' in keyNode ? (keyNode as never) : found.node;
+    const anchor = depth < path.length && isNode(keyNode) ? keyNode : found.node;
     const range = rangeOfNode(doc, anchor);
     // A missing key is reported at the start of the map that lacks it, not across the whole map.
     return { pointer: toJsonPointer(prefix), range: depth < path.length ? doc.lines.range(range.offset, range.offset + Math.min(range.length, 1)) : range };
@@ -118,9 +119,12 @@ function locate(doc: DefinitionDocument, path: readonly PathSegment[], key?: str
   return { pointer: '', range: doc.lines.range(0, 0) };
 }
 
+/** A zod issue's path as JSON keys and indices (symbol keys cannot occur in parsed YAML or JSON). */
+const pathOf = (issue: ZodIssue): PathSegment[] => issue.path.flatMap((key) => (typeof key === 'symbol' ? [] : [key]));
+
 function describeIssue(issue: ZodIssue, data: unknown): string {
   const where = issue.path.length ? `"${issue.path.join('.')}"` : 'the mapping file';
-  if (issue.code !== 'unrecognized_keys' && issue.path.length > 0 && valueAtPath(data, issue.path as PathSegment[]) === undefined) return `${where} is required`;
+  if (issue.code !== 'unrecognized_keys' && issue.path.length > 0 && valueAtPath(data, pathOf(issue)) === undefined) return `${where} is required`;
   switch (issue.code) {
     case 'unrecognized_keys':
       return `unknown key${issue.keys.length > 1 ? 's' : ''} ${issue.keys.map((k) => `"${k}"`).join(', ')} in ${where}`;
@@ -189,8 +193,8 @@ export function loadMapping(text: string, path: string, knownRuleIds: readonly s
   const problems: MappingProblem[] = [];
   const parsed = mappingSchema.safeParse(doc.data ?? {});
   if (!parsed.success) {
-    for (const issue of parsed.error.issues as unknown as ZodIssue[]) {
-      const path = issue.path as PathSegment[];
+    for (const issue of parsed.error.issues) {
+      const path = pathOf(issue);
       if (issue.code === 'unrecognized_keys') {
         for (const key of issue.keys) problems.push({ message: describeIssue({ ...issue, keys: [key] }, doc.data), ...locate(doc, path, key) });
       } else {

@@ -16,11 +16,10 @@ export function toWire(value: unknown): unknown {
 export function fromWire(value: unknown): unknown {
   if (Array.isArray(value)) return value.map(fromWire);
   if (value !== null && typeof value === 'object') {
-    const record = value as Record<string, unknown>;
-    const tagged = record[BIGINT_TAG];
-    if (typeof tagged === 'string' && Object.keys(record).length === 1 && /^-?\d+$/.test(tagged)) return BigInt(tagged);
+    const tagged = BIGINT_TAG in value ? value[BIGINT_TAG] : undefined;
+    if (typeof tagged === 'string' && Object.keys(value).length === 1 && /^-?\d+$/.test(tagged)) return BigInt(tagged);
     const out: Record<string, unknown> = {};
-    for (const [key, member] of Object.entries(record)) out[key] = fromWire(member);
+    for (const [key, member] of Object.entries(value)) out[key] = fromWire(member);
     return out;
   }
   return value;
@@ -34,7 +33,7 @@ export function messageDecoder<M extends { type: string }>(types: readonly M['ty
   const known = new Set<unknown>(types);
   return (raw) => {
     const value = fromWire(raw);
-    const type = value !== null && typeof value === 'object' ? (value as { type?: unknown }).type : undefined;
+    const type = value !== null && typeof value === 'object' && 'type' in value ? value.type : undefined;
     return known.has(type) ? (value as M) : undefined;
   };
 }

@@ -190,7 +190,8 @@ function memoryChanges(base: readonly ReviewedFile[], head: readonly ReviewedFil
   for (const key of new Set([...before.keys(), ...after.keys()])) {
     const was = before.get(key);
     const now = after.get(key);
-    const shown = (now ?? was) as MachineSide;
+    const shown = now ?? was;
+    if (!shown) continue; // every key comes from one of the two maps
     const host = now ? now.host : was?.host;
     machines.push({ name: shown.label, ...(host !== undefined ? { host } : {}), file: shown.file, ...change(was?.cache ?? 0n, now?.cache ?? 0n) });
     onHost(was?.host, 'before', was?.cache ?? 0n);

@@ -52,7 +52,10 @@ export function renderKnownFile(file: KnownFile): string {
   const keys = ['rule', 'file', 'machine', 'disk', 'host', 'field', 'value', 'fingerprint'] as const;
   const lines = file.known.map((entry) => {
     const ordered: Record<string, string> = {};
-    for (const key of keys) if (entry[key] !== undefined) ordered[key] = entry[key] as string;
+    for (const key of keys) {
+      const value = entry[key];
+      if (value !== undefined) ordered[key] = value;
+    }
     return `    ${JSON.stringify(ordered)}`;
   });
   return `{\n  "tool": "cachewright",\n  "known": [${lines.length > 0 ? `\n${lines.join(',\n')}\n  ` : ''}]\n}\n`;
@@ -81,7 +84,7 @@ export function readKnownFile(path: string, source: string): Outcome<KnownEntry[
   const parsed = fileSchema.safeParse(document.data);
   if (parsed.success) return ok(parsed.data.known);
   const issue = parsed.error.issues[0];
-  const path_ = (issue?.path ?? []) as PathSegment[];
+  const path_: PathSegment[] = (issue?.path ?? []).flatMap((key) => (typeof key === 'symbol' ? [] : [key]));
   let found = nodeAt(document, path_);
   for (let depth = path_.length - 1; !found && depth >= 0; depth--) found = nodeAt(document, path_.slice(0, depth));
   const range = found ? rangeOfNode(document, found.node) : document.lines.range(0, 0);

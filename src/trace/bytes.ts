@@ -1,5 +1,6 @@
 // Byte-level helpers for the trace readers: a trace of tens of millions of lines is read without
 // making a string per line. A line is a range [start, end) of a byte buffer.
+import { atIndex } from '../core/indexed';
 
 const SPACE = 0x20;
 const TAB = 0x09;
@@ -18,11 +19,11 @@ export class Fields {
     let count = 0;
     let i = start;
     while (i < end) {
-      let c = buf[i] as number;
-      while (i < end && (c === SPACE || c === TAB || c === CR)) c = buf[++i] as number;
+      let c = atIndex(buf, i);
+      while (i < end && (c === SPACE || c === TAB || c === CR)) c = atIndex(buf, ++i);
       if (i >= end) break;
       const fieldStart = i;
-      while (i < end && c !== SPACE && c !== TAB && c !== CR) c = buf[++i] as number;
+      while (i < end && c !== SPACE && c !== TAB && c !== CR) c = atIndex(buf, ++i);
       if (count < 32) {
         this.starts[count] = fieldStart;
         this.ends[count] = i;
@@ -41,8 +42,8 @@ export class Fields {
       if (i < end && buf[i] !== separator) continue;
       let s = fieldStart;
       let e = i;
-      while (s < e && isBlank(buf[s] as number)) s++;
-      while (e > s && isBlank(buf[e - 1] as number)) e--;
+      while (s < e && isBlank(atIndex(buf, s))) s++;
+      while (e > s && isBlank(atIndex(buf, e - 1))) e--;
       if (count < 32) {
         this.starts[count] = s;
         this.ends[count] = e;
@@ -55,11 +56,11 @@ export class Fields {
   }
 
   start(i: number): number {
-    return this.starts[i] as number;
+    return atIndex(this.starts, i);
   }
 
   end(i: number): number {
-    return this.ends[i] as number;
+    return atIndex(this.ends, i);
   }
 }
 
@@ -67,7 +68,7 @@ const isBlank = (c: number): boolean => c === SPACE || c === TAB || c === CR;
 
 /** True when [start, end) holds only spaces, tabs and CR. */
 export function isBlankRange(buf: Uint8Array, start: number, end: number): boolean {
-  for (let i = start; i < end; i++) if (!isBlank(buf[i] as number)) return false;
+  for (let i = start; i < end; i++) if (!isBlank(atIndex(buf, i))) return false;
   return true;
 }
 
@@ -79,7 +80,7 @@ export function readUnsigned(buf: Uint8Array, start: number, end: number): numbe
   if (end <= start || end - start > 15) return -1;
   let value = 0;
   for (let i = start; i < end; i++) {
-    const c = buf[i] as number;
+    const c = atIndex(buf, i);
     if (c < ZERO || c > NINE) return -1;
     value = value * 10 + (c - ZERO);
   }
@@ -91,7 +92,7 @@ export function isDecimal(buf: Uint8Array, start: number, end: number): boolean 
   if (end <= start) return false;
   let dots = 0;
   for (let i = start; i < end; i++) {
-    const c = buf[i] as number;
+    const c = atIndex(buf, i);
     if (c === 0x2e) dots++;
     else if (c < ZERO || c > NINE) return false;
   }
@@ -105,7 +106,7 @@ export const ascii = (text: string): Uint8Array => Uint8Array.from(text, (c) => 
 export function equalsWord(buf: Uint8Array, start: number, end: number, word: Uint8Array, caseless = false): boolean {
   if (end - start !== word.length) return false;
   for (let i = 0; i < word.length; i++) {
-    let c = buf[start + i] as number;
+    let c = atIndex(buf, start + i);
     if (caseless && c >= 0x41 && c <= 0x5a) c += 0x20;
     if (c !== word[i]) return false;
   }

@@ -1,6 +1,7 @@
 // Cache entry index -> dense id (0, 1, 2, ... in order of first touch). An open-addressing table over
 // typed arrays: a trace of millions of lookups over a hundred thousand entries costs a few megabytes
 // and no per-entry objects, which a Map of numbers would allocate.
+import { atIndex } from '../core/indexed';
 
 const EMPTY = -1;
 
@@ -36,7 +37,7 @@ export class KeyTable {
   idOf(key: number): number {
     let slot = mixEntryIndex(key, 0x2545f491) & this.mask;
     for (;;) {
-      const id = this.ids[slot] as number;
+      const id = atIndex(this.ids, slot);
       if (id === EMPTY) break;
       if (this.keys[slot] === key) return id;
       slot = (slot + 1) & this.mask;
@@ -51,8 +52,8 @@ export class KeyTable {
   /** Every key with its id, for callers that need the entries back (tests, per-entry counts). */
   *entries(): IterableIterator<[key: number, id: number]> {
     for (let slot = 0; slot < this.ids.length; slot++) {
-      const id = this.ids[slot] as number;
-      if (id !== EMPTY) yield [this.keys[slot] as number, id];
+      const id = atIndex(this.ids, slot);
+      if (id !== EMPTY) yield [atIndex(this.keys, slot), id];
     }
   }
 
@@ -64,11 +65,11 @@ export class KeyTable {
     this.ids = new Int32Array(capacity).fill(EMPTY);
     this.mask = capacity - 1;
     for (let old = 0; old < oldIds.length; old++) {
-      const id = oldIds[old] as number;
+      const id = atIndex(oldIds, old);
       if (id === EMPTY) continue;
-      const key = oldKeys[old] as number;
+      const key = atIndex(oldKeys, old);
       let slot = mixEntryIndex(key, 0x2545f491) & this.mask;
-      while ((this.ids[slot] as number) !== EMPTY) slot = (slot + 1) & this.mask;
+      while ((atIndex(this.ids, slot)) !== EMPTY) slot = (slot + 1) & this.mask;
       this.keys[slot] = key;
       this.ids[slot] = id;
     }

@@ -4,6 +4,7 @@
 // d + 1 <= C * R; counts stand for 1/R as many.
 
 import type { StackDistances } from './stack-distance';
+import { atIndex } from '../core/indexed';
 
 /** Guards the floor of C * R against a product such as 3 * 0.1 = 0.30000000000000004 rounding down. */
 const EPSILON = 1e-9;
@@ -40,7 +41,7 @@ export class HitProfile implements ProfileCounts {
     this.cumulative = new Float64Array(histogram.length);
     let sum = 0;
     for (let d = 0; d < histogram.length; d++) {
-      sum += histogram[d] as number;
+      sum += atIndex(histogram, d);
       this.cumulative[d] = sum;
     }
     this.expected = sampleRate === 1 ? distances.lookups : allLookups * sampleRate;
@@ -57,7 +58,7 @@ export class HitProfile implements ProfileCounts {
     const reach = Math.floor(entries * this.sampleRate + EPSILON);
     if (reach < 1) return 0;
     const index = Math.min(reach, this.cumulative.length) - 1;
-    return Math.max(0, Math.min(1, ((this.cumulative[index] as number) + this.adjustment) / this.expected));
+    return Math.max(0, Math.min(1, ((atIndex(this.cumulative, index)) + this.adjustment) / this.expected));
   }
 
   /** The smallest cache, in entries, a sampled curve resolves: one sampled distance stands for 1/R entries. */
@@ -79,7 +80,7 @@ export class HitProfile implements ProfileCounts {
     let high = this.cumulative.length;
     while (low < high) {
       const mid = (low + high) >>> 1;
-      if ((this.cumulative[mid] as number) >= needed) high = mid;
+      if ((atIndex(this.cumulative, mid)) >= needed) high = mid;
       else low = mid + 1;
     }
     if (low === this.cumulative.length || this.expected === 0) return undefined;

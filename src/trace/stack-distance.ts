@@ -10,6 +10,7 @@
 // of it is live. Each compaction costs O(T) and buys at least T/2 lookups, so it is O(1) amortised.
 
 import { KeyTable } from './key-table';
+import { atIndex } from '../core/indexed';
 
 const INITIAL_TIME_SLOTS = 1 << 16;
 
@@ -44,16 +45,16 @@ export class StackDistances {
       this.firstTouches++;
       if (id >= this.lastTime.length) this.growEntries();
     } else {
-      const previous = this.lastTime[id] as number;
+      const previous = atIndex(this.lastTime, id);
       // Marks at times 0..previous, the entry's own included; every other mark came later.
       let marksUpTo = 0;
-      for (let i = previous + 1; i > 0; i &= i - 1) marksUpTo += this.tree[i] as number;
+      for (let i = previous + 1; i > 0; i &= i - 1) marksUpTo += atIndex(this.tree, i);
       const distance = before - marksUpTo;
-      this.histogram[distance] = (this.histogram[distance] as number) + 1;
-      for (let i = previous + 1; i <= this.slots; i += i & -i) this.tree[i] = (this.tree[i] as number) - 1;
+      this.histogram[distance] = (atIndex(this.histogram, distance)) + 1;
+      for (let i = previous + 1; i <= this.slots; i += i & -i) this.tree[i] = (atIndex(this.tree, i)) - 1;
     }
     const time = this.now++;
-    for (let i = time + 1; i <= this.slots; i += i & -i) this.tree[i] = (this.tree[i] as number) + 1;
+    for (let i = time + 1; i <= this.slots; i += i & -i) this.tree[i] = (atIndex(this.tree, i)) + 1;
     this.owner[time] = id;
     this.lastTime[id] = time;
   }
@@ -84,7 +85,7 @@ export class StackDistances {
     let kept = 0;
     // In place: slot `kept` never runs ahead of the slot being read.
     for (let time = 0; time < this.now; time++) {
-      const id = this.owner[time] as number;
+      const id = atIndex(this.owner, time);
       if (this.lastTime[id] !== time) continue;
       this.owner[kept] = id;
       this.lastTime[id] = kept;

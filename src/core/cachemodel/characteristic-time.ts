@@ -5,6 +5,7 @@
 //
 // Items come as weighted nodes (weight = how many items share that probability), so a million
 // equally likely entries cost one term, and a Zipf tail can be a quadrature rule (see zipf.ts).
+import { atIndex } from '../indexed';
 
 export interface WeightedItems {
   /** How many items each node stands for (may be fractional for quadrature nodes). */
@@ -50,8 +51,8 @@ export function characteristicTime(items: WeightedItems, capacity: number, start
     let s0 = 0;
     let s1 = 0;
     for (let i = 0; i < n; i++) {
-      const q = probabilities[i] as number;
-      const term = (weights[i] as number) * Math.exp(-q * t);
+      const q = atIndex(probabilities, i);
+      const term = (atIndex(weights, i)) * Math.exp(-q * t);
       s0 += term;
       s1 += term * q;
     }
@@ -86,8 +87,8 @@ export function cheHitRatio(items: WeightedItems, capacity: number, warm?: WarmS
   const { weights, probabilities } = items;
   let hit = 0;
   for (let i = 0; i < weights.length; i++) {
-    const q = probabilities[i] as number;
-    hit += (weights[i] as number) * q * -Math.expm1(-q * t);
+    const q = atIndex(probabilities, i);
+    hit += (atIndex(weights, i)) * q * -Math.expm1(-q * t);
   }
   return Math.min(1, Math.max(0, hit));
 }
@@ -101,8 +102,8 @@ export function singleEntryHitRatio(items: WeightedItems): number {
   const { weights, probabilities } = items;
   let hit = 0;
   for (let i = 0; i < weights.length; i++) {
-    const q = probabilities[i] as number;
-    hit += (weights[i] as number) * q * q;
+    const q = atIndex(probabilities, i);
+    hit += (atIndex(weights, i)) * q * q;
   }
   return Math.min(1, hit);
 }

@@ -9,6 +9,7 @@ import { estimateThroughput, resolveDevice, type DeviceClass, type DeviceLatency
 import { checkWorkingSet, entryClasses, entryGeometry, entrySpan, type DensitySegment, type EntryGeometry, type WorkingSet } from './geometry';
 import { fail, ok, type ModelResult } from './result';
 import { zipfItems } from './zipf';
+import { atIndex } from '../indexed';
 
 /** The driver keeps at least this many L2 cache entries whatever size is asked for [CACHE]. */
 export const DRIVER_MIN_ENTRIES = 2;
@@ -179,7 +180,7 @@ export function prepareCacheModel(input: CacheModelGeometryInput): ModelResult<P
     const warm: WarmStart = { capacity: 0, time: 0 };
     for (let k = 0; k < total; k++) {
       const spaced = total === 1 ? high : Math.round(Math.exp(Math.log(low) + ((Math.log(high) - Math.log(low)) * k) / (total - 1)));
-      const previous = capacities.length === 0 ? low - 1 : (capacities[capacities.length - 1] as number);
+      const previous = capacities.length === 0 ? low - 1 : (atIndex(capacities, capacities.length - 1));
       capacities.push(Math.min(high - (total - 1 - k), Math.max(previous + 1, spaced)));
     }
     return {

@@ -5,6 +5,7 @@
 // integrand (1 - exp(-T x^-s / Z)) is a smooth step. A million entries become a few hundred nodes.
 
 import { weightedItems, type WeightedItems } from './characteristic-time';
+import { atIndex } from '../indexed';
 
 export const EXACT_ZIPF_LIMIT = 256;
 const HEAD_RANKS = 128;
@@ -58,10 +59,10 @@ export function zipfItems(entries: number, exponent: number): WeightedItems {
     for (let panel = 0; panel < panels; panel++) {
       const middle = from + (panel + 0.5) * width;
       for (let k = 0; k < GAUSS_ORDER; k++) {
-        const t = middle + (0.5 * width * (RULE.nodes[k] as number));
+        const t = middle + (0.5 * width * (atIndex(RULE.nodes, k)));
         const x = Math.exp(t);
         // dx = x dt: the node stands for (weight * width/2 * x) ranks.
-        nodes.push({ count: (RULE.weights[k] as number) * 0.5 * width * x, probability: x ** -exponent });
+        nodes.push({ count: (atIndex(RULE.weights, k)) * 0.5 * width * x, probability: x ** -exponent });
       }
     }
   }

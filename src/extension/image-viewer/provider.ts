@@ -8,12 +8,11 @@ import {
   decodeViewerWebviewMessage, encodeViewerMessage, type ProfileChoice, type ViewerHostMessage, type ViewerSnapshot,
 } from '../../protocol/image-viewer';
 import { DRIVER_GENERATIONS, HOST_PLATFORMS } from '../../core/profiles';
+import { isOneOf } from '../../core/guards';
 
 function isProfileChoice(value: unknown): value is ProfileChoice {
-  const v = value as Partial<ProfileChoice> | null;
-  return typeof v === 'object' && v !== null
-    && DRIVER_GENERATIONS.includes(v.generation as ProfileChoice['generation'])
-    && HOST_PLATFORMS.includes(v.platform as ProfileChoice['platform']);
+  return typeof value === 'object' && value !== null && 'generation' in value && 'platform' in value
+    && isOneOf(DRIVER_GENERATIONS, value.generation) && isOneOf(HOST_PLATFORMS, value.platform);
 }
 
 export const IMAGE_VIEW_TYPE = 'cachewright.qcow2Image';

@@ -15,6 +15,7 @@
 import { Fields, isBlankRange, isDecimal, readUnsigned } from '../bytes';
 import type { RequestSink } from '../lookups';
 import { emit, type LineParser, type ReadTally, type StreamChoice } from './tally';
+import { atIndex } from '../../core/indexed';
 
 export const SECTOR_BYTES = 512;
 const COMMA = 0x2c;
@@ -63,7 +64,7 @@ export class BlockTraceParser implements LineParser {
       return;
     }
     const actionStart = fields.start(5);
-    const action = fields.end(5) - actionStart === 1 ? (buf[actionStart] as number) : 0;
+    const action = fields.end(5) - actionStart === 1 ? (atIndex(buf, actionStart)) : 0;
     const hasRange = count >= 10 && fields.end(8) - fields.start(8) === 1 && buf[fields.start(8)] === PLUS;
     if ((action !== LETTER_D && action !== LETTER_Q) || !hasRange || !this.looksUp(buf, fields.start(6), fields.end(6))) {
       this.tally.ignoredEvents++;
