@@ -3,8 +3,9 @@
 import * as vscode from 'vscode';
 import { webviewHtml } from './webview-page';
 import {
-  decodePanelMessage, encodeMessage, type HostMessage, type PanelView, type WhatIfValues,
+  encodeMessage, type HostMessage, type PanelView, type WhatIfValues,
 } from '../protocol/panel';
+import { decodePanelMessage } from '../protocol/webview-input';
 import type { SourceRange } from '../core/results';
 
 export interface PanelHandlers {

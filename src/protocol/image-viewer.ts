@@ -121,7 +121,7 @@ export type ViewerWebviewMessage =
   | { type: 'profile'; choice: ProfileChoice };
 
 export const decodeViewerHostMessage = messageDecoder<ViewerHostMessage>(['view', 'progress']);
-export const decodeViewerWebviewMessage = messageDecoder<ViewerWebviewMessage>(['ready', 'rendered', 'stop', 'reread', 'profile']);
+
 
 export const encodeViewerMessage = (message: ViewerHostMessage | ViewerWebviewMessage): unknown => toWire(message);
 

@@ -122,6 +122,6 @@ export type PanelMessage =
 /** Decodes a message from the host; undefined for anything that is not one. */
 export const decodeHostMessage = messageDecoder<HostMessage>(['show', 'empty', 'focusDisk', 'applied']);
 /** Decodes a message from the panel; undefined for anything that is not one. */
-export const decodePanelMessage = messageDecoder<PanelMessage>(['ready', 'rendered', 'reveal', 'applyWhatIf']);
+
 
 export const encodeMessage = (message: HostMessage | PanelMessage): unknown => toWire(message);

@@ -26,8 +26,10 @@ export function fromWire(value: unknown): unknown {
 }
 
 /**
- * A decoder for one side's messages: the wire value back in shape when its `type` is one of that
- * side's, undefined for anything else (a webview may receive messages meant for others).
+ * A decoder for the messages the host sends its own webview, the one trusted direction (both ends are
+ * this extension's code, built from one protocol module): the wire value back in shape when its
+ * `type` is one of that side's, undefined for anything else (a webview may receive messages meant
+ * for others). Messages from a webview to the host are checked in full (webview-input.ts).
  */
 export function messageDecoder<M extends { type: string }>(types: readonly M['type'][]): (raw: unknown) => M | undefined {
   const known = new Set<unknown>(types);

@@ -19,11 +19,11 @@ export class Fields {
     let count = 0;
     let i = start;
     while (i < end) {
-      let c = atIndex(buf, i);
-      while (i < end && (c === SPACE || c === TAB || c === CR)) c = atIndex(buf, ++i);
+      // Each byte is read only while i < end: the range may end at the buffer's end.
+      while (i < end && isBlank(atIndex(buf, i))) i++;
       if (i >= end) break;
       const fieldStart = i;
-      while (i < end && c !== SPACE && c !== TAB && c !== CR) c = atIndex(buf, ++i);
+      while (i < end && !isBlank(atIndex(buf, i))) i++;
       if (count < 32) {
         this.starts[count] = fieldStart;
         this.ends[count] = i;

@@ -5,8 +5,9 @@ import * as vscode from 'vscode';
 import { webviewHtml } from '../webview-page';
 import { ImageDocument } from './document';
 import {
-  decodeViewerWebviewMessage, encodeViewerMessage, type ProfileChoice, type ViewerHostMessage, type ViewerSnapshot,
+  encodeViewerMessage, type ProfileChoice, type ViewerHostMessage, type ViewerSnapshot,
 } from '../../protocol/image-viewer';
+import { decodeViewerWebviewMessage } from '../../protocol/webview-input';
 import { DRIVER_GENERATIONS, HOST_PLATFORMS } from '../../core/profiles';
 import { isOneOf } from '../../core/guards';
 
