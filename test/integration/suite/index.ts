@@ -7,9 +7,10 @@ import { SUITE_START_MARK } from './marks';
 const testFiles: Array<() => unknown> = [
   () => require('./activation.test'),
   () => require('./diagnostics.test'),
+  () => require('./hosts.test'),
   () => require('./mapping-and-commands.test'),
   () => require('./settings.test'),
-  () => require('./imageViewer.test'),
+  () => require('./image-viewer.test'),
 ];
 
 export function run(): Promise<void> {
