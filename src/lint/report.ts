@@ -5,7 +5,7 @@ import type { Finding, SourceRange } from '../core/results';
 import { cacheBudgetOf } from '../core/sizing';
 import type { DiskSpec, DiskValues, MachineSpec } from '../model/disks';
 import { RULE_IDS, type RuleId } from '../rules';
-import { applyAcceptances } from './acceptance';
+import { applyAcceptances, type HostAcceptance } from './acceptance';
 import type { FileContext } from './prepare';
 
 /** A finding of one of the registry's rules. */
@@ -74,6 +74,8 @@ export interface MachineReport {
   hostRange?: SourceRange;
   budget?: bigint;
   cacheMemoryTotal: bigint;
+  /** Accept comments on the machine or its host line: what they accept of its host's findings. */
+  hostAcceptances?: HostAcceptance[];
   /** Indices into FileReport.disks. */
   disks: number[];
   /** Indices into FileReport.findings: the machine's own, not those of its disks. */
@@ -156,7 +158,11 @@ export function assemble(context: FileContext, units: Units): FileReport {
   }
   // Findings kept from an earlier update are judged again against today's comments.
   for (const finding of findings) delete finding.accepted;
-  applyAcceptances(context, units.machines.map((u) => u.machine), findings);
+  const hostAcceptances = applyAcceptances(context, units.machines.map((u) => u.machine), findings);
+  for (const machine of machineReports) {
+    const accepts = hostAcceptances.get(machine.pointer);
+    if (accepts && machine.host !== undefined) machine.hostAcceptances = accepts;
+  }
   findings.sort(byPlace);
   const fileFindings = claimFindings(findings, disks, machineReports);
   return { path: document.path, disks, machines: machineReports, findings, fileFindings, parsed: true };
