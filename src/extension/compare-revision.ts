@@ -2,7 +2,7 @@
 // gives in CI, for the workspace as the editor holds it (unsaved edits included). The base is read
 // from the revision into a temporary folder (the work tree is never touched); both sides are linted
 // with the workspace's mapping file by the engine and paired up by src/review; the summary opens in
-// the editor's markdown preview as a read-only document.
+// the editor's markdown preview (beside the active editor) as a read-only document.
 import * as vscode from 'vscode';
 import * as nodePath from 'node:path';
 import { extractRevision, listRevisions } from '../git/revision';
@@ -133,7 +133,8 @@ export async function compareWithRevision(states: readonly MappingState[], docum
       () => review(state, revision),
     );
     const uri = documents.add(revision, markdown);
-    await vscode.commands.executeCommand('markdown.showPreview', uri);
+    // Beside the editor, which keeps the focus: the summary next to the edits it reviews.
+    await vscode.commands.executeCommand('markdown.showPreviewToSide', uri);
     return { ok: true, revision, uri, markdown };
   } catch (error) {
     if (error instanceof ReviewError) return fail(error.message);

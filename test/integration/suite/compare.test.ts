@@ -24,11 +24,16 @@ describe('compare with a git revision', () => {
     root = workspaceRoot().fsPath;
     // The workspace copy sits inside the project's own checkout: git must not look above it.
     process.env.GIT_CEILING_DIRECTORIES = path.dirname(root);
+    // The web editor saves a changed file after a delay by default; this test's edit must stay unsaved.
+    await vscode.workspace.getConfiguration('files').update('autoSave', 'off', vscode.ConfigurationTarget.Global);
   });
 
-  after(() => {
+  after(async () => {
+    // Whatever happened, later tests find the demo as it was committed here.
+    if (fs.existsSync(path.join(root, '.git'))) git('checkout', '--', '.');
     delete process.env.GIT_CEILING_DIRECTORIES;
     fs.rmSync(path.join(root, '.git'), { recursive: true, force: true });
+    await vscode.workspace.getConfiguration('files').update('autoSave', undefined, vscode.ConfigurationTarget.Global);
   });
 
   it('says clearly that a workspace outside any git repository has no revision to compare with', async () => {
@@ -56,7 +61,7 @@ describe('compare with a git revision', () => {
         .find((t) => t.input instanceof vscode.TabInputWebview && /markdown\.preview/.test(t.input.viewType) && t.label.includes('timetable-v1')));
       assert.ok(preview.label.includes('timetable-v1'), preview.label);
       // The base came from the revision alone: the work tree and the index are as they were.
-      assert.equal(git('status', '--porcelain'), '');
+      assert.equal(git('status', '--porcelain', '--untracked-files=no'), '');
     } finally {
       await revert(document);
     }
