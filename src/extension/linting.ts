@@ -3,7 +3,7 @@
 // mapping files themselves, whose own problems show at their positions.
 import * as vscode from 'vscode';
 import { LintSession, oversizedFileReport, type FileReport, type Mapping } from '../lint';
-import { ImageFactsCache } from './images';
+import { ImageFactsCache } from '../image/facts-cache';
 import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
 import { isMappingFileName, Mappings, readDefinitionText } from './mappings';
 import { readSettings } from './settings';
@@ -48,7 +48,7 @@ export class Linting implements vscode.Disposable {
   private readonly toldTooLarge = new Set<string>();
 
   /** Image facts for the image rules; only in a trusted workspace (untrusted: the text alone). */
-  private images = vscode.workspace.isTrusted ? new ImageFactsCache() : undefined;
+  private images = vscode.workspace.isTrusted ? new ImageFactsCache({ recheck: true }) : undefined;
 
   /** The cross-file host rule over every definition's latest report, a moment after each lint. */
   readonly hosts = new WorkspaceHosts({ results: () => this.results.values(), republish: (uri) => this.show(uri) });
@@ -79,7 +79,7 @@ export class Linting implements vscode.Disposable {
       }),
       vscode.workspace.onDidChangeWorkspaceFolders(() => void this.reloadMappings().then(() => this.lintWorkspace(false))),
       vscode.workspace.onDidGrantWorkspaceTrust(() => {
-        this.images = new ImageFactsCache();
+        this.images = new ImageFactsCache({ recheck: true });
         void this.lintWorkspace(false);
       }),
       this.watch(),
