@@ -199,29 +199,38 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   const ledgerLine = demo.findIndex((line) => /^\s*l2: 8M\b/.test(line));
   await goTo(page, ledgerLine + 1, (demo[ledgerLine] ?? '').indexOf('8M') + 1);
   let titles: string[] = [];
-  for (let attempt = 0; attempt < 5 && titles.length === 0; attempt++) {
+  // Until the trace is measured the list offers full coverage alone: ask again until it is in.
+  const measuredFix = (list: string[]): boolean => list.some((t) => /80 MiB/.test(t));
+  for (let attempt = 0; attempt < 8 && !measuredFix(titles); attempt++) {
     await page.keyboard.press('Control+.');
     titles = await waitUntil('the code action list', async () => {
       const rows = await page.locator('.action-widget .monaco-list-row').allTextContents();
       return rows.length > 0 ? rows : undefined;
     }, 3000).catch(() => []);
-    if (titles.length === 0) await page.keyboard.press('Escape');
+    if (!measuredFix(titles)) {
+      await page.keyboard.press('Escape');
+      await sleep(500);
+    }
   }
-  const wanted = titles.findIndex((t) => /L2 cache/i.test(t) && /128 MiB/.test(t));
-  checks.check('Ctrl+. offers the computed fix for the undersized cache', wanted >= 0, titles.join(' | '));
+  // The ledger names the demo's trace (scripts/demo-traces.mjs): once the worker has measured it, the
+  // fix is the smallest cache reaching 99 % on the trace, 80 MiB, as the command line computes it
+  // (docs/traces.md), with full coverage (128 MiB [qcow2 specification]) beside it.
+  const wanted = titles.findIndex((t) => /L2 cache/i.test(t) && /80 MiB/.test(t));
+  checks.check('Ctrl+. offers the measured fix (80 MiB) and full coverage (128 MiB) for the undersized cache',
+    wanted >= 0 && titles.some((t) => /L2 cache/i.test(t) && /128 MiB/.test(t)), titles.join(' | '));
   if (wanted >= 0) {
     for (let i = 0; i < 8; i++) {
       const focused = await page.locator('.action-widget .monaco-list-row.focused').textContent().catch(() => '');
-      if (focused && /128 MiB/.test(focused)) break;
+      if (focused && /80 MiB/.test(focused)) break;
       await page.keyboard.press('ArrowDown');
     }
     await page.keyboard.press('Enter');
   }
   const fixed = await waitUntil('the fixed line', async () => {
     const text = (await page.locator('.editor-instance .view-lines').first().textContent()) ?? '';
-    return text.replace(/\u00a0/g, ' ').includes('l2: 128M') ? true : undefined;
+    return text.replace(/\u00a0/g, ' ').includes('l2: 80M') ? true : undefined;
   }, 10_000).catch(() => false);
-  checks.check('Enter applies it: the editor now reads "l2: 128M"', fixed === true);
+  checks.check('Enter applies it: the editor now reads "l2: 80M"', fixed === true);
 
   // --- the sizing panel, numbers read from its DOM ---
   // Close the bottom panel to give editor and sizing panel the room.
@@ -252,9 +261,10 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   }
   const ledger = { machine: 'tern-db-01', name: 'ledger' };
   const ledgerEffective = await cellValue(frame, ledger, 'l2Effective');
-  checks.check('after the quick fix the ledger\'s effective L2 cache is full coverage (128 MiB)', ledgerEffective === (128n * MiB).toString(), `shown ${ledgerEffective}`);
+  checks.check('after the quick fix the ledger\'s effective L2 cache is the measured recommendation (80 MiB)', ledgerEffective === (80n * MiB).toString(), `shown ${ledgerEffective}`);
   const ledgerCoverage = await frame.locator('article.disk[data-disk="ledger"] td[data-field="coverage"] .num').textContent();
-  checks.check('and it maps 100 % of the disk', ledgerCoverage?.trim() === '100 %', `shown ${ledgerCoverage}`);
+  // 80 MiB of 8-byte L2 entries maps 10 Mi clusters of 64 KiB = 640 GiB of the 1 TiB disk [qcow2 specification].
+  checks.check('and it maps 62.5 % of the disk', ledgerCoverage?.trim() === '62.5 %', `shown ${ledgerCoverage}`);
   const bars = await frame.locator('article.disk svg.bar-coverage').count();
   checks.check('each disk\'s coverage is drawn', bars === 4, `${bars} coverage bars`);
 
@@ -273,8 +283,8 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   const field = frame.locator('article.disk[data-disk="ledger"] vscode-text-field[data-control="l2Cache"] input');
   await waitUntil('the what-if controls', async () => ((await field.count()) > 0 ? true : undefined));
 
-  // Opening the what-if selects the ledger: the chart moves to its card. The quick fix set 128M, full
-  // coverage, so the configured mark sits on the full-coverage mark and both read 100 %.
+  // Opening the what-if selects the ledger: the chart moves to its card. The quick fix set 80M, the
+  // measured recommendation; full coverage stays at 128 MiB and reads 100 % on both modelled curves.
   const ledgerChart = await waitUntil('the ledger\'s chart', async () => ((await curveIn(frame, LEDGER_CARD).count()) === 1 ? true : undefined), 5000).catch(() => false);
   const series = await curveIn(frame, LEDGER_CARD).locator('svg.curve-chart path.curve-series').evaluateAll((paths) => paths.map((p) => `${p.getAttribute('data-series')}:${p.getAttribute('data-entry-size')}`)).catch(() => [] as string[]);
   checks.check('selecting the ledger draws its chart: whole 64 KiB tables and 4 KiB slices side by side', ledgerChart === true && series.sort().join(' ') === 'slice:4096 table:65536', series.join(' '));
