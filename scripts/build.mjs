@@ -24,8 +24,8 @@ if (existsSync('webview/main.ts')) {
   targets.push({ ...common, entryPoints: ['webview/main.ts'], outfile: 'dist/webview.js',
     platform: 'browser', format: 'iife' });
 }
-if (existsSync('webview/imageViewer/main.ts')) {
-  targets.push({ ...common, entryPoints: ['webview/imageViewer/main.ts'], outfile: 'dist/imageViewer.js',
+if (existsSync('webview/image-viewer/main.ts')) {
+  targets.push({ ...common, entryPoints: ['webview/image-viewer/main.ts'], outfile: 'dist/image-viewer.js',
     platform: 'browser', format: 'iife' });
 }
 if (watch) {

@@ -2,7 +2,7 @@
 // validation and the linter's can never disagree. `--check` fails when the file is stale.
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { mappingJsonSchema } from '../src/model/mappingSchema';
+import { mappingJsonSchema } from '../src/model/mapping-schema';
 
 const target = join(__dirname, '..', 'schema', 'cachewright.schema.json');
 const text = `${JSON.stringify(mappingJsonSchema(), null, 2)}\n`;

@@ -2,7 +2,7 @@
 // security policy allows no inline style), coloured by the editor's theme in media/panel.css, with a
 // text summary and a table of the marks for readers who cannot see the drawing.
 import { formatSize } from '../src/core/format';
-import { CHART, chartModel, hitRatioText, yOf, type ChartInput, type ChartModel, type SeriesId } from './curveModel';
+import { CHART, chartModel, hitRatioText, yOf, type ChartInput, type ChartModel, type SeriesId } from './curve-model';
 
 const SVG = 'http://www.w3.org/2000/svg';
 let figureCount = 0;

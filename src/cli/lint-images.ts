@@ -1,7 +1,7 @@
 // The image files definitions name, read for the linter's image rules: headers only (no table
 // walk), each chain once per run however many definitions name it. Images are only ever read.
 import { readChain } from '../image';
-import { chainFacts } from '../image/lintFacts';
+import { chainFacts } from '../image/lint-facts';
 import type { ImageChainFacts, ImageLookup } from '../model/images';
 
 /** Reads chains on demand and remembers them for the rest of the run. */

@@ -5,15 +5,15 @@ import * as vscode from 'vscode';
 import { parse as parseYaml } from 'yaml';
 import type { SourceRange } from '../core/results';
 import { CAUTIONS } from '../core/cautions';
-import { CachewrightCodeActions, fixAllInDocument } from './codeActions';
+import { CachewrightCodeActions, fixAllInDocument } from './code-actions';
 import { toRange, workspaceEdit } from './edits';
 import { Linting, type LintResult, type Timings } from './linting';
 import { SizingPanel } from './panel';
-import { panelView } from './panelView';
-import { CacheStatus } from './statusBar';
-import { proposeMapping } from './starterProposal';
-import { setDiskSizesEdit } from '../model/diskEdits';
-import { registerImageViewer } from './imageViewer';
+import { panelView } from './panel-view';
+import { CacheStatus } from './status-bar';
+import { proposeMapping } from './starter-proposal';
+import { setDiskSizesEdit } from '../model/disk-edits';
+import { registerImageViewer } from './image-viewer';
 import type { WhatIfValues } from '../protocol/panel';
 
 /** What the extension exports: read by the integration tests, useful to other extensions. */

@@ -2,7 +2,7 @@
 // each chain once, read again only when one of its files changed (size or time). Read-only.
 import { promises as fs } from 'node:fs';
 import { readChain } from '../image';
-import { chainFacts } from '../image/lintFacts';
+import { chainFacts } from '../image/lint-facts';
 import type { ImageChainFacts, ImageLookup } from '../model/images';
 
 interface Entry {

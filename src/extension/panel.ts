@@ -1,7 +1,7 @@
 // Hosts the sizing panel's webview beside the editor: a strict content security policy (the
 // extension's own resources only, scripts with a nonce), and the typed protocol for every message.
 import * as vscode from 'vscode';
-import { webviewHtml } from './webviewPage';
+import { webviewHtml } from './webview-page';
 import {
   decodePanelMessage, encodeMessage, type HostMessage, type PanelView, type WhatIfValues,
 } from '../protocol/panel';

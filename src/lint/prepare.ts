@@ -2,7 +2,7 @@
 // lint carries (severities after overrides, the image facts, the file's size style, fix helpers).
 import type { Fix, Severity } from '../core/results';
 import type { SizeStyle } from '../core/units';
-import { setDiskFieldEdit, sizeStyleOfMachines } from '../model/diskEdits';
+import { setDiskFieldEdit, sizeStyleOfMachines } from '../model/disk-edits';
 import { isScalar } from 'yaml';
 import { nodeAt, type DefinitionDocument } from '../model/document';
 import type { DiskSpec, MachineSpec } from '../model/disks';

@@ -9,7 +9,7 @@ import { accessOfPattern, PATTERN_HELP } from '../core/workload';
 import { nodeAt, rangeOfNode, type DefinitionDocument } from './document';
 import { select, toJsonPointer, type PathSegment, type Selector } from './jsonpath';
 import type { AccessPattern, Mapping } from './mapping';
-import type { DiskField } from './mappingSchema';
+import type { DiskField } from './mapping-schema';
 
 export interface Located<T> {
   value: T;

@@ -6,7 +6,7 @@ import {
 } from 'yaml';
 import type { SourceRange } from '../core/results';
 import { LineIndex } from './lines';
-import { findJsonSyntaxError } from './jsonSyntax';
+import { findJsonSyntaxError } from './json-syntax';
 import type { PathSegment } from './jsonpath';
 
 export type DocumentFormat = 'yaml' | 'json';

@@ -11,7 +11,7 @@ import { parseShare, parseSize } from '../core/units';
 import { accessOfPattern } from '../core/workload';
 import { nodeAt, rangeOfNode, readDefinition, type DefinitionDocument } from './document';
 import { compileSelector, parseJsonPointer, toJsonPointer, valueAtPath, type PathSegment, type Selector } from './jsonpath';
-import { DISK_FIELDS, MACHINE_FIELDS, mappingSchema, type DiskField, type MachineField, type MappingFile } from './mappingSchema';
+import { DISK_FIELDS, MACHINE_FIELDS, mappingSchema, type DiskField, type MachineField, type MappingFile } from './mapping-schema';
 import type { Severity } from '../core/results';
 
 export const MAPPING_FILE_NAMES = ['cachewright.yaml', 'cachewright.yml', 'cachewright.json'] as const;

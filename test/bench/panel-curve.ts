@@ -2,7 +2,7 @@
 // charted disk, both 64-point curves (whole tables and slices) plus the hit ratio at each mark.
 // Prints the time and its ratio to the 20 ms target; asserts nothing (tests never assert on time).
 //   npx tsx test/bench/panel-curve.ts
-import { chartModel, type ChartInput } from '../../webview/curveModel';
+import { chartModel, type ChartInput } from '../../webview/curve-model';
 
 const TARGET_MS = 20;
 const KiB = 1024n;

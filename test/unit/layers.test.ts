@@ -87,6 +87,18 @@ function layerViolations(file: string, text?: string): string[] {
   return out;
 }
 
+/** One file-name convention (docs/architecture.md): lower-case words joined by hyphens, then extensions. */
+const KEBAB_CASE = /^[a-z0-9]+(-[a-z0-9]+)*(\.[a-z0-9]+)*$/;
+
+/** Every file and folder under dir whose name breaks the convention, relative to the root. */
+function misnamed(dir: string): string[] {
+  return fs.readdirSync(dir, { withFileTypes: true }).flatMap((entry) => {
+    const full = path.join(dir, entry.name);
+    const own = KEBAB_CASE.test(entry.name) ? [] : [path.relative(ROOT, full)];
+    return entry.isDirectory() ? [...own, ...misnamed(full)] : own;
+  });
+}
+
 describe('layers (docs/architecture.md)', () => {
   const files = [...sourceFiles(path.join(ROOT, 'src')), ...sourceFiles(path.join(ROOT, 'webview'))];
 
@@ -108,5 +120,15 @@ describe('layers (docs/architecture.md)', () => {
   it('no file in webview/ imports from src/extension/', () => {
     const upward = files.filter((f) => layerOf(f) === 'webview').flatMap((f) => specifiersOf(f).filter(({ spec }) => path.resolve(path.dirname(f), spec).startsWith(path.join(ROOT, 'src', 'extension'))).map(({ spec }) => `${f}: ${spec}`));
     assert.deepEqual(upward, []);
+  });
+
+  it('every file and folder name in src/ and webview/ is kebab-case', () => {
+    const broken = [...misnamed(path.join(ROOT, 'src')), ...misnamed(path.join(ROOT, 'webview'))];
+    assert.deepEqual(broken, [], `names that are not kebab-case (lower-case words joined by hyphens):\n${broken.join('\n')}`);
+  });
+
+  it('the name check accepts kebab-case and refuses other styles', () => {
+    for (const good of ['index.ts', 'l2-counter.ts', 'image-viewer', 'block-trace.ts', 'panel.test.ts']) assert.ok(KEBAB_CASE.test(good), good);
+    for (const bad of ['panelView.ts', 'imageViewer', 'Panel.ts', 'panel_view.ts', 'panel--view.ts', '-panel.ts']) assert.ok(!KEBAB_CASE.test(bad), bad);
   });
 });

@@ -1,11 +1,11 @@
-// The sizing panel's hit-ratio chart as a pure function (webview/curveModel.ts): where the marks sit on
+// The sizing panel's hit-ratio chart as a pure function (webview/curve-model.ts): where the marks sit on
 // the log size axis, the curves' shape and the hit ratio read at each mark.
 // Sources: entry counts and full-coverage sizes from the qcow2 specification's L2 geometry [SPEC]
 // (one 8-byte entry per cluster, an L2 table is one cluster; the check values in docs/sources.md); the hit
 // ratio under uniform access is C/N, cached entries over entries [IRM]; skewed access follows the
 // characteristic-time approximation [CHE]; binary size labels per IEC 80000-13 [IEC].
 import { strict as assert } from 'node:assert';
-import { CHART, chartModel, hitRatioText, xOf, type ChartInput, type ChartModel } from '../../webview/curveModel';
+import { CHART, chartModel, hitRatioText, xOf, type ChartInput, type ChartModel } from '../../webview/curve-model';
 
 const KiB = 1024n;
 const MiB = 1024n * KiB;

@@ -8,7 +8,7 @@ import * as path from 'node:path';
 import Ajv from 'ajv';
 import fc from 'fast-check';
 import { parse as parseYaml, stringify as yamlStringify } from 'yaml';
-import { mappingJsonSchema, mappingSchema } from '../../src/model/mappingSchema';
+import { mappingJsonSchema, mappingSchema } from '../../src/model/mapping-schema';
 
 const ROOT = path.resolve(__dirname, '../..');
 const SCHEMA_FILE = path.join(ROOT, 'schema/cachewright.schema.json');

@@ -1,7 +1,7 @@
 // The starter mapping maps what a value means and says when it only guessed from a key's name
 // (docs/sources.md: one name per concept; `cachewright size --cache` is the L2 cache).
 import { strict as assert } from 'node:assert';
-import { proposeMapping } from '../../src/extension/starterProposal';
+import { proposeMapping } from '../../src/extension/starter-proposal';
 import { loadMapping } from '../../src/model/mapping';
 
 const fleet = (tuning: Record<string, string>) => ({

@@ -9,7 +9,7 @@ const testFiles: Array<() => unknown> = [
   () => require('./diagnostics.test'),
   () => require('./mapping-and-commands.test'),
   () => require('./settings.test'),
-  () => require('./imageViewer.test'),
+  () => require('./image-viewer.test'),
 ];
 
 export function run(): Promise<void> {

@@ -3,7 +3,7 @@ import * as assert from 'node:assert/strict';
 import * as vscode from 'vscode';
 import { formatSize } from '../../../src/core/format';
 import { loadMapping } from '../../../src/lint';
-import { proposeMapping } from '../../../src/extension/starterProposal';
+import { proposeMapping } from '../../../src/extension/starter-proposal';
 import { parse as parseYaml } from 'yaml';
 import { api, codeOf, demoFile, open, ours, perf, rangeOf, revert, waitFor, workspaceRoot } from './helpers';
 

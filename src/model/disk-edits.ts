@@ -7,7 +7,7 @@ import { nodeAt, readDefinition, type DefinitionDocument } from './document';
 import { applyEdits, documentSizeStyle, insertFieldEdit, replaceValueEdit, type NewValue } from './edits';
 import { diffTexts } from './incremental';
 import type { Mapping } from './mapping';
-import type { DiskField } from './mappingSchema';
+import type { DiskField } from './mapping-schema';
 
 export type FieldEdit = Outcome<TextEdit>;
 

@@ -2,7 +2,7 @@
 import * as vscode from 'vscode';
 import { formatSize } from '../core/format';
 import type { LintResult } from './linting';
-import { fileCacheTotal } from './panelView';
+import { fileCacheTotal } from './panel-view';
 
 export class CacheStatus implements vscode.Disposable {
   private readonly item = vscode.window.createStatusBarItem('cachewright.cacheMemory', vscode.StatusBarAlignment.Right, 100);

@@ -2,7 +2,7 @@
 // on it. The webview gets a strict content security policy (the extension's own resources only,
 // its script by nonce) and talks to the host only through ./protocol.
 import * as vscode from 'vscode';
-import { webviewHtml } from '../webviewPage';
+import { webviewHtml } from '../webview-page';
 import { ImageDocument } from './document';
 import {
   decodeViewerWebviewMessage, encodeViewerMessage, type ProfileChoice, type ViewerHostMessage, type ViewerSnapshot,
@@ -128,8 +128,8 @@ export class ImageViewerProvider implements vscode.CustomReadonlyEditorProvider<
 
   private html(webview: vscode.Webview): string {
     return webviewHtml(webview, this.extensionUri, {
-      script: 'imageViewer.js',
-      style: 'imageViewer.css',
+      script: 'image-viewer.js',
+      style: 'image-viewer.css',
       title: 'qcow2 image',
       body: '<main id="root" aria-live="polite"><p class="muted">Reading the image header…</p></main>',
     });
