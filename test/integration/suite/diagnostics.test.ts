@@ -15,7 +15,12 @@ const KiB = 1024;
 /** The l2-cache-undersized message once the trace is measured (the rule's measured wording). */
 const MEASURED = /On the measured trace \(200,000 requests\)/;
 
-interface CliFinding { rule: string; message: string; machine?: string; disk?: string; fix?: { title: string; edits: { text: string }[] } }
+interface CliFinding { rule: string; message: string; line: number; column: number; fix?: { title: string; edits: { text: string }[] } }
+
+/** The command line's finding of `rule` at the start of `range`, from its JSON output (CONTRACTS.md section 3). */
+function cliFindingAt(relative: string, rule: string, range: vscode.Range): CliFinding | undefined {
+  return cliFindings(relative).find((f) => f.rule === rule && f.line === range.start.line + 1 && f.column === range.start.character + 1);
+}
 
 /** The command line's findings for a workspace file, from its JSON output (CONTRACTS.md section 3). */
 function cliFindings(relative: string): CliFinding[] {
@@ -98,10 +103,10 @@ describe('diagnostics on the demo fleet', () => {
   it('judges the traced ledger disk by its measured curve, with the finding and fix the command line gives', async () => {
     const { document } = await open(TICKETING);
     const undersized = await measuredUndersized(document);
-    const cli = cliFindings(TICKETING).find((f) => f.rule === 'l2-cache-undersized' && f.machine === 'tern-db-01' && f.disk === 'ledger');
-    assert.ok(cli, 'the command line reports the ledger disk');
-    assert.equal(undersized.message, cli.message);
     const range = rangeOf(document, 'l2: 8M', '8M');
+    const cli = cliFindingAt(TICKETING, 'l2-cache-undersized', range);
+    assert.ok(cli, 'the command line reports the ledger disk at the same value');
+    assert.equal(undersized.message, cli.message);
     const actions = await vscode.commands.executeCommand<vscode.CodeAction[]>('vscode.executeCodeActionProvider', document.uri, range, vscode.CodeActionKind.QuickFix.value);
     const titles = actions.filter((a) => a.kind?.value === 'quickfix').map((a) => a.title);
     // The measured target first (what --fix applies), full coverage beside it.
@@ -114,14 +119,14 @@ describe('diagnostics on the demo fleet', () => {
     const { document } = await open(TICKETING);
     const range = rangeOf(document, 'l2: 8M', '8M');
     await measuredUndersized(document);
+    // The smallest cache reaching 99 % on the demo's trace, as the command line computes it; the file writes sizes as "8M".
+    const expected = cliFindingAt(TICKETING, 'l2-cache-undersized', range)?.fix?.edits[0]?.text;
+    assert.equal(expected, '80M');
     const actions = await vscode.commands.executeCommand<vscode.CodeAction[]>('vscode.executeCodeActionProvider', document.uri, range, vscode.CodeActionKind.QuickFix.value);
     // Through the command API only the title and preference may survive: the preferred one is the measured target.
     const fix = actions.find((a) => a.kind?.value === 'quickfix' && /L2 cache/.test(a.title) && a.isPreferred);
     assert.ok(fix?.edit, `a preferred quick fix for l2-cache-undersized among: ${actions.map((a) => a.title).join('; ')}`);
     assert.ok(await vscode.workspace.applyEdit(fix.edit));
-    // The smallest cache reaching 99 % on the demo's trace, as the command line computes it; the file writes sizes as "8M".
-    const expected = cliFindings(TICKETING).find((f) => f.rule === 'l2-cache-undersized' && f.disk === 'ledger')?.fix?.edits[0]?.text;
-    assert.equal(expected, '80M');
     assert.ok(document.lineAt(rangeOf(document, 'l2: ', expected).start.line).text.includes(`l2: ${expected}`), document.getText());
     // The comment after the value is kept.
     assert.ok(document.getText().includes(`l2: ${expected}          # too small for a 1 TiB ledger`), 'the trailing comment is kept');
