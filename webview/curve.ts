@@ -21,7 +21,7 @@ function html<K extends keyof HTMLElementTagNameMap>(tag: K, className?: string,
   return node;
 }
 
-const MARK_NAMES = { configured: 'Configured', effective: 'Effective', full: 'Full coverage' } as const;
+const MARK_NAMES = { configured: 'Configured', effective: 'Effective', recommended: 'Measured target', full: 'Full coverage' } as const;
 
 function drawing(chart: ChartModel, titleId: string, tableId: string): SVGSVGElement {
   const left = CHART.left;
@@ -161,7 +161,8 @@ export function curveFigure(diskName: string, input: ChartInput): HTMLElement {
   const titleId = `curve-title-${id}`;
   const tableId = `curve-marks-${id}`;
   figure.append(
-    html('p', 'curve-note', `${chart.accessText[0]?.toUpperCase() ?? ''}${chart.accessText.slice(1)}, ${formatSize(input.requestSize)} requests over the whole disk; the top layer's cache (predicted steady state, for review).`),
+    html('p', 'curve-note', `${chart.accessText[0]?.toUpperCase() ?? ''}${chart.accessText.slice(1)}, ${formatSize(input.requestSize)} requests over the whole disk; the top layer's cache (predicted steady state, for review).`
+      + (input.measured ? ' The measured curve replays the disk\'s own trace through an LRU cache of every size; it shows only the period traced.' : '')),
     drawing(chart, titleId, tableId),
     legend(chart),
     marksTable(chart, tableId),

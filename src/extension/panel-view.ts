@@ -3,7 +3,7 @@
 import * as path from 'node:path';
 import { CAUTIONS } from '../core/cautions';
 import type { DiskReport, FileReport, Finding, Mapping } from '../lint';
-import type { ConfiguredCache, DiskView, FindingView, MachineView, PanelView } from '../protocol/panel';
+import type { ConfiguredCache, DiskView, FindingView, MachineView, MeasuredView, PanelView } from '../protocol/panel';
 
 function findingView(finding: Finding): FindingView {
   return {
@@ -28,25 +28,49 @@ function configuredOf(disk: DiskReport): ConfiguredCache {
   };
 }
 
+function measuredOf(disk: DiskReport, entrySize: bigint): MeasuredView | undefined {
+  const { measured, measuredCurve } = disk;
+  if (!measured || !measuredCurve) return undefined;
+  return {
+    traces: disk.values.trace?.value ?? [],
+    requests: measured.requests,
+    span: measuredCurve.span,
+    sampleRate: measured.sampleRate,
+    hitRatio: measured.hitRatio,
+    workingSet: measured.workingSet,
+    recommendedL2Cache: measured.recommendedL2Cache,
+    targetHitRatio: measured.targetHitRatio,
+    targetReached: measured.targetReached,
+    points: measuredCurve.points,
+    clusterSize: disk.sizing.clusterSize,
+    entrySize,
+  };
+}
+
 export function panelView(uri: string, version: number, report: FileReport, mapping: Mapping): PanelView {
   const findingViews = (indices: readonly number[]): FindingView[] => indices.flatMap((i) => {
     const finding = report.findings[i];
     return finding ? [findingView(finding)] : [];
   });
-  const diskViews: DiskView[] = report.disks.map((disk) => ({
-    pointer: disk.pointer,
-    name: disk.name,
-    machine: disk.machine,
-    range: disk.range,
-    sizing: disk.sizing,
-    entrySize: disk.layers[0]?.entrySize ?? disk.sizing.clusterSize,
-    extendedL2: disk.extendedL2,
-    configured: configuredOf(disk),
-    recommended: disk.recommended,
-    chain: disk.chain,
-    workload: { pattern: disk.pattern, requestSize: disk.requestSize },
-    findings: findingViews(disk.findings),
-  }));
+  const diskViews: DiskView[] = report.disks.map((disk) => {
+    const entrySize = disk.layers[0]?.entrySize ?? disk.sizing.clusterSize;
+    const measured = measuredOf(disk, entrySize);
+    return {
+      pointer: disk.pointer,
+      name: disk.name,
+      machine: disk.machine,
+      range: disk.range,
+      sizing: disk.sizing,
+      entrySize,
+      extendedL2: disk.extendedL2,
+      configured: configuredOf(disk),
+      recommended: disk.recommended,
+      chain: disk.chain,
+      workload: { pattern: disk.pattern, requestSize: disk.requestSize },
+      ...(measured ? { measured } : {}),
+      findings: findingViews(disk.findings),
+    };
+  });
   const machines: MachineView[] = report.machines.map((machine) => ({
     pointer: machine.pointer,
     name: machine.name,

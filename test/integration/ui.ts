@@ -106,7 +106,7 @@ const curveIn = (frame: Frame, card: string) => frame.locator(`${card} figure.cu
 const LEDGER_CARD = 'section.machine[data-machine="tern-db-01"] article.disk[data-disk="ledger"]';
 const WEB_CARD = 'section.machine[data-machine="tern-web-02"] article.disk[data-disk="root"]';
 
-interface MarkReading { bytes: string; x: number; hitRatio: number; table?: string; slice?: string; shown?: string }
+interface MarkReading { bytes: string; x: number; hitRatio: number; table?: string; slice?: string; measured?: string; shown?: string }
 
 /** A mark as drawn (its SVG group's data) and as the marks table prints it. */
 async function markOf(frame: Frame, card: string, mark: string): Promise<MarkReading | undefined> {
@@ -123,6 +123,7 @@ async function markOf(frame: Frame, card: string, mark: string): Promise<MarkRea
     hitRatio: Number(await group.getAttribute('data-hit-ratio')),
     table: await cell('table'),
     slice: await cell('slice'),
+    measured: await cell('measured'),
     shown: ((await row.locator('td.curve-ratio.in-use').first().textContent().catch(() => '')) ?? '').trim(),
   };
 }
@@ -287,7 +288,25 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   // measured recommendation; full coverage stays at 128 MiB and reads 100 % on both modelled curves.
   const ledgerChart = await waitUntil('the ledger\'s chart', async () => ((await curveIn(frame, LEDGER_CARD).count()) === 1 ? true : undefined), 5000).catch(() => false);
   const series = await curveIn(frame, LEDGER_CARD).locator('svg.curve-chart path.curve-series').evaluateAll((paths) => paths.map((p) => `${p.getAttribute('data-series')}:${p.getAttribute('data-entry-size')}`)).catch(() => [] as string[]);
-  checks.check('selecting the ledger draws its chart: whole 64 KiB tables and 4 KiB slices side by side', ledgerChart === true && series.sort().join(' ') === 'slice:4096 table:65536', series.join(' '));
+  checks.check('selecting the ledger draws its chart: whole 64 KiB tables and 4 KiB slices side by side, and the curve measured on its trace',
+    ledgerChart === true && series.sort().join(' ') === 'measured:65536 slice:4096 table:65536', series.join(' '));
+  // The measured curve: the engine's points, the recommended cache marked where the trace reaches 99 %.
+  const measuredPoints = Number(await curveIn(frame, LEDGER_CARD).locator('path.series-measured').getAttribute('data-points').catch(() => '0'));
+  const recommendedMark = await markOf(frame, LEDGER_CARD, 'recommended');
+  const effectiveMark = await markOf(frame, LEDGER_CARD, 'effective');
+  checks.check('the measured curve is drawn from its points, with the recommended cache (80 MiB) marked at 99 % or more on the trace',
+    measuredPoints > 10 && recommendedMark?.bytes === (80n * MiB).toString() && Number(recommendedMark.measured) >= 0.99
+      && effectiveMark?.bytes === (80n * MiB).toString() && effectiveMark.measured === recommendedMark.measured,
+    `${measuredPoints} points; recommended ${JSON.stringify(recommendedMark)}; effective ${JSON.stringify(effectiveMark)}`);
+  // The trace's own figures beside the numbers: the demo's invented workload (scripts/demo-traces.mjs)
+  // writes 200,000 requests, every lookup counted.
+  const traced = {
+    requests: await cellValue(frame, ledger, 'measuredRequests'),
+    span: (await frame.locator(`${LEDGER_CARD} td[data-field="measuredSpan"] .num`).textContent().catch(() => ''))?.trim(),
+    sampling: (await frame.locator(`${LEDGER_CARD} td[data-field="measuredSampling"] .num`).textContent().catch(() => ''))?.trim(),
+  };
+  checks.check('the ledger\'s card shows the trace\'s request count, span and sampling',
+    traced.requests === '200000' && /GiB to .*GiB/.test(traced.span ?? '') && /^exact/.test(traced.sampling ?? ''), JSON.stringify(traced));
   const fullMark = await markOf(frame, LEDGER_CARD, 'full');
   // Full coverage of 1 TiB at 64 KiB clusters: 128 MiB [qcow2 specification, docs/sources.md check values].
   checks.check('the full-coverage mark (128 MiB) reads 100 %',
@@ -441,6 +460,12 @@ export async function runInstalledTest(server: CodeServer, browser: Browser, dir
     return count >= 4 ? count : undefined;
   }, 20_000).catch(() => 0);
   checks.check('its sizing panel draws the four qcow2 disks from the packaged webview bundle', cards === 4, `${cards} cards`);
+  // The packaged trace worker (dist/trace-worker.js inside the .vsix) measured the demo's trace.
+  const requests = await waitUntil('the ledger\'s measured trace', async () => {
+    const value = await cellValue(frame, { machine: 'tern-db-01', name: 'ledger' }, 'measuredRequests');
+    return value === '200000' ? value : undefined;
+  }, 20_000).catch(() => undefined);
+  checks.check('its trace worker measures the demo\'s trace: the ledger\'s card shows 200,000 requests', requests !== undefined);
   checks.check('no request left 127.0.0.1', browser.blocked.length === 0, browser.blocked.length ? `${browser.blocked.length} refused` : 'all local');
   await page.screenshot({ path: path.join(dirs.base, 'installed-package.png') });
   const passed = checks.list.length - checks.failed;
