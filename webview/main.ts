@@ -30,7 +30,7 @@ const post = (message: PanelMessage): void => vscode.postMessage(encodeMessage(m
 
 const actions: PanelActions = {
   reveal(target) {
-    if (current) post({ type: 'reveal', uri: current.view.uri, range: target.range });
+    if (current) post({ type: 'reveal', uri: target.uri ?? current.view.uri, range: target.range });
   },
   apply(disk, values) {
     if (current) post({ type: 'applyWhatIf', uri: current.view.uri, version: current.view.version, pointer: disk.pointer, values });

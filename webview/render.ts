@@ -3,12 +3,13 @@
 import type { SizingReport } from '../src/core/results';
 import { formatSizeExact, parseSize } from '../src/core/units';
 import { formatCount, formatInterval, formatPercent, formatShare, formatSize } from '../src/core/format';
-import type { DiskView, FindingView, MachineView, MeasuredView, PanelView, WhatIfValues } from '../src/protocol/panel';
+import type { DiskView, FindingView, HostView, MachineView, MeasuredView, PanelView, WhatIfValues } from '../src/protocol/panel';
 import { curveFigure } from './curve';
 import { CLUSTER_CHOICES, sliceChoices, whatIf, type WhatIfResult } from './whatif';
 
 export interface PanelActions {
-  reveal(finding: { range: FindingView['range'] }): void;
+  /** Shows a place in the panel's file, or in the definition `uri` names (a machine on a shared host). */
+  reveal(target: { range: FindingView['range']; uri?: string }): void;
   apply(disk: DiskView, values: WhatIfValues): void;
   /** The what-if state changed: redraw. */
   changed(): void;
@@ -360,6 +361,54 @@ function machineSection(view: PanelView, machine: MachineView, state: WhatIfStat
   return section;
 }
 
+/** One line with a bar: `part` against `whole`, flagged when it is over. */
+function loadLine(field: string, text: string, part: bigint, whole: bigint): HTMLElement {
+  const over = part > whole;
+  const line = el('div', over ? 'budget over' : 'budget');
+  line.dataset.field = field;
+  line.dataset.value = part.toString();
+  line.append(el('span', 'budget-text', `${text} (${percent(part, whole)})`), bar(ratio(part, whole), 'budget', over));
+  return line;
+}
+
+/** A host the file's machines sit on: its caches against its cache share and, with guest RAM, against its memory. */
+function hostCard(host: HostView, actions: PanelActions): HTMLElement {
+  const card = el('article', 'host');
+  card.dataset.host = host.name;
+  const head = el('header', 'host-head');
+  head.append(el('h3', undefined, host.name));
+  if (host.memory !== undefined) head.append(el('span', 'memory', `${formatSize(host.memory)} memory${host.listed ? '' : ' (assume.hostMemory)'}`));
+  card.append(head);
+  if (host.memory !== undefined && host.allowed !== undefined) {
+    const shareText = host.cacheShare !== undefined ? ` (${formatShare(host.cacheShare, 2)} of its memory)` : '';
+    card.append(
+      loadLine('hostCaches', `Disk caches ${formatSize(host.caches)} of a ${formatSize(host.allowed)} cache share${shareText}`, host.caches, host.allowed),
+      loadLine('hostNeeded', `Guest RAM ${formatSize(host.guestMemory)} and caches ${formatSize(host.needed)} of ${formatSize(host.memory)}`, host.needed, host.memory),
+    );
+  } else {
+    card.append(el('p', 'none', `Disk caches ${formatSize(host.caches)}; the mapping file gives no memory for this host (hosts or assume.hostMemory).`));
+  }
+  const list = el('ul', 'host-machines');
+  for (const machine of host.machines) {
+    const item = el('li', machine.here ? 'here' : undefined);
+    item.dataset.machine = machine.name;
+    const name = custom('vscode-link', { class: 'machine-name', href: '#', title: `Show ${machine.name} in ${machine.file}` }, machine.name);
+    name.addEventListener('click', (event) => { event.preventDefault(); actions.reveal(machine); });
+    const memory = machine.memory !== undefined ? `${formatSize(machine.memory)} RAM, ` : '';
+    item.append(name, el('span', 'host-machine-numbers', ` ${memory}${formatSize(machine.cacheMemoryTotal)} of caches, ${machine.file}`));
+    list.append(item);
+  }
+  card.append(list);
+  return card;
+}
+
+function hostsSection(hosts: readonly HostView[], actions: PanelActions): HTMLElement {
+  const section = el('section', 'hosts');
+  section.append(el('h2', undefined, hosts.length === 1 ? 'Host' : 'Hosts'));
+  for (const host of hosts) section.append(hostCard(host, actions));
+  return section;
+}
+
 /** The disk whose card carries the curve: the one picked, else the first one being tried, else the first. */
 export function chartedDisk(view: PanelView, state: WhatIfState, selected: string | undefined): string | undefined {
   const disks = view.machines.flatMap((m) => m.disks);
@@ -383,6 +432,7 @@ export function renderPanel(root: HTMLElement, view: PanelView, state: WhatIfSta
     disks += machine.disks.length;
   }
   if (view.machines.length === 0) content.append(el('p', 'none', 'No machine found in this file with the mapping\'s selectors.'));
+  if (view.hosts.length > 0) content.append(hostsSection(view.hosts, actions));
   const notes = el('footer', 'cautions');
   for (const caution of view.cautions) notes.append(el('p', undefined, caution));
   content.append(custom('vscode-divider'), notes);

@@ -1,5 +1,6 @@
 // Findings to the editor's diagnostics: the rule id is the code, linked to the rule's docs page;
-// related locations carry the other places a finding spans (a machine's budget names its disks).
+// related locations carry the other places a finding spans (a machine's budget names its disks, a
+// host's budget the machines on it, in whichever files they are).
 import * as vscode from 'vscode';
 import type { Finding, MappingProblem } from '../lint';
 import { ruleById } from '../rules';
@@ -27,7 +28,7 @@ export function findingDiagnostic(extensionUri: vscode.Uri, uri: vscode.Uri, fin
   diagnostic.code = target ? { value: finding.rule, target } : finding.rule;
   if (finding.related && finding.related.length > 0) {
     diagnostic.relatedInformation = finding.related.map((related) =>
-      new vscode.DiagnosticRelatedInformation(new vscode.Location(uri, toRange(related.range)), related.message));
+      new vscode.DiagnosticRelatedInformation(new vscode.Location(related.file !== undefined ? vscode.Uri.file(related.file) : uri, toRange(related.range)), related.message));
   }
   return diagnostic;
 }

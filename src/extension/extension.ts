@@ -9,7 +9,7 @@ import { CachewrightCodeActions, fixAllInDocument } from './code-actions';
 import { toRange, workspaceEdit } from './edits';
 import { Linting, type LintResult, type Timings } from './linting';
 import { SizingPanel } from './panel';
-import { panelView } from './panel-view';
+import { hostViews, panelView } from './panel-view';
 import { CacheStatus } from './status-bar';
 import { proposeMapping } from './starter-proposal';
 import { setDiskSizesEdit } from '../model/disk-edits';
@@ -24,6 +24,7 @@ export interface CachewrightApi {
   /** Resolves when the panel has drawn the view for the current state of this document. */
   refreshPanel(uri: vscode.Uri): Promise<number>;
   statusText(): string;
+  statusTooltip(): string;
   /** Resolves once mapping files are loaded and the open definitions are linted. */
   ready: Promise<void>;
 }
@@ -39,6 +40,9 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
   let panelUpdateMs: number | undefined;
   let panelUpdates = 0;
   let lastDefinition: vscode.Uri | undefined;
+  const viewOf = (result: LintResult) => panelView(result.uri.toString(), result.version ?? 0, result.report, result.mapping,
+    hostViews(linting.hosts.hostsOf(result.mapping, result.report), result.report, result.mapping, (file) => vscode.Uri.file(file).toString()));
+  const showStatus = (result: LintResult | undefined): void => status.show(result, result ? linting.hosts.hostsOf(result.mapping, result.report) : []);
 
   const reveal = async (uri: vscode.Uri, range: SourceRange): Promise<void> => {
     const document = await vscode.workspace.openTextDocument(uri);
@@ -77,7 +81,7 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
     const document = vscode.workspace.textDocuments.find((d) => d.uri.toString() === target.toString());
     const result = document ? linting.fresh(document) : linting.result(target);
     if (!result) return panel.empty(`${path.basename(target.fsPath)} is not included by a mapping file (cachewright.yaml), so it has no disks to show.`);
-    return panel.show(panelView(result.uri.toString(), result.version ?? 0, result.report, result.mapping));
+    return panel.show(viewOf(result));
   };
 
   const followEditor = (editor: vscode.TextEditor | undefined): void => {
@@ -86,11 +90,11 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
     void vscode.commands.executeCommand('setContext', 'cachewright.activeFileIncluded', included);
     if (!document || !included) {
       // A panel or an output view is focused, or another file: keep showing the last definition.
-      if (document && document.uri.scheme === 'file' && !included) status.show(undefined);
+      if (document && document.uri.scheme === 'file' && !included) showStatus(undefined);
       return;
     }
     lastDefinition = document.uri;
-    status.show(linting.fresh(document));
+    showStatus(linting.fresh(document));
     void updatePanel(document.uri);
   };
 
@@ -109,16 +113,22 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
     }),
     linting.onDidLint((result) => {
       const active = vscode.window.activeTextEditor?.document.uri.toString();
-      if (result.uri.toString() === active) status.show(result);
+      if (result.uri.toString() === active) showStatus(result);
       if (panel.visible && panel.shownUri === result.uri.toString()) {
         const started = Date.now();
-        void panel.show(panelView(result.uri.toString(), result.version ?? 0, result.report, result.mapping)).then(() => {
+        void panel.show(viewOf(result)).then(() => {
           panelUpdateMs = Date.now() - started + (timings.lastLintMs ?? 0);
           panelUpdates++;
         });
       }
     }),
     linting.onDidReloadMappings(() => followEditor(vscode.window.activeTextEditor)),
+    // The hosts were summed again (this file or another changed): the status bar and the panel follow.
+    linting.hosts.onDidUpdate(() => {
+      const active = vscode.window.activeTextEditor?.document;
+      if (active && linting.isDefinition(active)) showStatus(linting.result(active.uri));
+      if (panel.visible && panel.shownUri !== undefined) void updatePanel(vscode.Uri.parse(panel.shownUri));
+    }),
     vscode.window.onDidChangeActiveTextEditor(followEditor),
     vscode.window.onDidChangeTextEditorSelection((event) => {
       if (!panel.visible || panel.shownUri !== event.textEditor.document.uri.toString()) return;
@@ -169,6 +179,7 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
     panelShows: () => panel.shownUri,
     refreshPanel: (uri) => updatePanel(uri),
     statusText: () => status.text,
+    statusTooltip: () => status.tooltip,
     ready,
   };
 }

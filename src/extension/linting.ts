@@ -11,6 +11,7 @@ import { TraceCurveCache, type RunningTraceJob } from './traces';
 import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
 import { isMappingFileName, Mappings, readDefinitionText } from './mappings';
 import { readSettings } from './settings';
+import { WorkspaceHosts } from './workspace-hosts';
 
 export interface LintResult {
   uri: vscode.Uri;
@@ -55,6 +56,9 @@ export class Linting implements vscode.Disposable {
   private images = vscode.workspace.isTrusted ? new ImageFactsCache() : undefined;
   /** Measured curves of the traces disks name; like images, only in a trusted workspace. */
   private traceCurves: TraceCurveCache | undefined;
+
+  /** The cross-file host rule over every definition's latest report, a moment after each lint. */
+  readonly hosts = new WorkspaceHosts({ results: () => this.results.values(), republish: (uri) => this.show(uri) });
 
   constructor(private readonly extensionUri: vscode.Uri, readonly timings: Timings) {
     if (vscode.workspace.isTrusted) this.traceCurves = this.newTraceCache();
@@ -203,7 +207,7 @@ export class Linting implements vscode.Disposable {
     if (traces && traceRequests.length > 0) void traces.load(traceRequests).then(relint, () => undefined);
     const result: LintResult = { uri, version, text, report, mapping };
     this.results.set(uri.toString(), result);
-    this.diagnostics.set(uri, fileDiagnostics(this.extensionUri, uri, report.findings));
+    this.publish(uri);
     if (this.timings.firstDiagnosticsMs === undefined) this.timings.firstDiagnosticsMs = Date.now() - this.timings.activatedAt;
     this.emitter.fire(result);
     return result;
@@ -218,7 +222,7 @@ export class Linting implements vscode.Disposable {
     const report = oversizedFileReport(uri.fsPath, BigInt(bytes), BigInt(limit), 'raise the cachewright.fileSizeLimit setting to lint it');
     const result: LintResult = { uri, version, text: '', report, mapping };
     this.results.set(uri.toString(), result);
-    this.diagnostics.set(uri, fileDiagnostics(this.extensionUri, uri, report.findings));
+    this.publish(uri);
     // Said once per file while it is open in an editor; files only on disk carry the error alone.
     if (version !== undefined && !this.toldTooLarge.has(uri.toString())) {
       this.toldTooLarge.add(uri.toString());
@@ -249,6 +253,18 @@ export class Linting implements vscode.Disposable {
     this.sessions.delete(uri.toString());
   }
 
+  /** A file was linted: its diagnostics now, and a host pass soon. */
+  private publish(uri: vscode.Uri): void {
+    this.show(uri);
+    this.hosts.schedule();
+  }
+
+  /** The file's own findings and the host findings placed in it, as diagnostics. */
+  private show(uri: vscode.Uri): void {
+    const result = this.results.get(uri.toString());
+    if (result) this.diagnostics.set(uri, fileDiagnostics(this.extensionUri, uri, [...result.report.findings, ...this.hosts.findingsFor(uri, result.report)]));
+  }
+
   async reloadMappings(): Promise<void> {
     const states = await this.mappings.reloadAll();
     for (const state of states) this.diagnostics.set(state.uri, mappingDiagnostics(state.problems));
@@ -259,6 +275,7 @@ export class Linting implements vscode.Disposable {
         this.diagnostics.delete(result.uri);
       }
     }
+    this.hosts.schedule();
     this.mappingEmitter.fire();
   }
 
@@ -339,6 +356,7 @@ export class Linting implements vscode.Disposable {
       }
       this.results.delete(uri.toString());
       this.diagnostics.delete(uri);
+      this.hosts.schedule();
     });
     return watcher;
   }
@@ -347,6 +365,7 @@ export class Linting implements vscode.Disposable {
     for (const timer of this.timers.values()) clearTimeout(timer);
     this.traceCurves?.dispose();
     for (const d of this.disposables) d.dispose();
+    this.hosts.dispose();
     this.diagnostics.dispose();
     this.emitter.dispose();
     this.mappingEmitter.dispose();

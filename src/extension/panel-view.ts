@@ -2,8 +2,8 @@
 // number comes from the report (or, in the what-if mode, from the same engine in the webview).
 import * as path from 'node:path';
 import { CAUTIONS } from '../core/cautions';
-import type { DiskReport, FileReport, Finding, Mapping } from '../lint';
-import type { ConfiguredCache, DiskView, FindingView, MachineView, MeasuredView, PanelView } from '../protocol/panel';
+import type { DiskReport, FileReport, Finding, HostReport, Mapping } from '../lint';
+import type { ConfiguredCache, DiskView, FindingView, HostView, MachineView, MeasuredView, PanelView } from '../protocol/panel';
 
 function findingView(finding: Finding): FindingView {
   return {
@@ -47,7 +47,29 @@ function measuredOf(disk: DiskReport, entrySize: bigint): MeasuredView | undefin
   };
 }
 
-export function panelView(uri: string, version: number, report: FileReport, mapping: Mapping): PanelView {
+/** The engine's host reports as the panel's rows: paths made relative, machines of this file marked. */
+export function hostViews(hosts: readonly HostReport[], report: FileReport, mapping: Mapping, uriOf: (file: string) => string): HostView[] {
+  return hosts.map(({ name, budget, load, machines }) => ({
+    name,
+    ...(budget ? { memory: budget.memory, cacheShare: budget.cacheShare } : {}),
+    listed: budget?.listed ?? false,
+    ...(load.allowed !== undefined ? { allowed: load.allowed } : {}),
+    caches: load.caches,
+    guestMemory: load.guestMemory,
+    needed: load.needed,
+    machines: machines.map((m) => ({
+      name: m.name,
+      file: path.relative(mapping.dir, m.file).split(path.sep).join('/'),
+      uri: uriOf(m.file),
+      range: m.range,
+      here: m.file === report.path,
+      ...(m.memory !== undefined ? { memory: m.memory } : {}),
+      cacheMemoryTotal: m.cacheMemoryTotal,
+    })),
+  }));
+}
+
+export function panelView(uri: string, version: number, report: FileReport, mapping: Mapping, hosts: HostView[] = []): PanelView {
   const findingViews = (indices: readonly number[]): FindingView[] => indices.flatMap((i) => {
     const finding = report.findings[i];
     return finding ? [findingView(finding)] : [];
@@ -89,6 +111,7 @@ export function panelView(uri: string, version: number, report: FileReport, mapp
     budgetShare: mapping.cacheShareOfMemory,
     machines,
     fileFindings: findingViews(report.fileFindings),
+    hosts,
     cautions: [CAUTIONS.reopen, CAUTIONS.hostMemory, CAUTIONS.review],
   };
 }

@@ -3,7 +3,8 @@
 // the file of the first machine placed on the host (files in path order), where the mapping
 // file's accept list can accept them like any other.
 import type { SourceRange } from '../core/results';
-import { hostBudget, type Mapping } from '../model/mapping';
+import { hostLoadOf, type HostLoad } from '../core/host-load';
+import { hostBudget, type HostBudget, type Mapping } from '../model/mapping';
 import { pointerWithin } from '../model/jsonpath';
 import { RULES, type RuleId } from '../rules';
 import type { PlacedMachine } from '../rules/types';
@@ -23,7 +24,7 @@ export interface HostLintOptions {
   severities?: Record<string, Severity | 'off'>;
 }
 
-function placedMachines(files: readonly WorkspaceFile[]): Map<string, PlacedMachine[]> {
+function placedMachines(files: readonly Pick<WorkspaceFile, 'path' | 'machines'>[]): Map<string, PlacedMachine[]> {
   const byHost = new Map<string, PlacedMachine[]>();
   const ordered = [...files].sort((a, b) => (a.path < b.path ? -1 : a.path > b.path ? 1 : 0));
   for (const file of ordered) {
@@ -42,6 +43,26 @@ function placedMachines(files: readonly WorkspaceFile[]): Map<string, PlacedMach
     }
   }
   return byHost;
+}
+
+/** One host of the fleet: its budget from the mapping, the machines placed on it and what they ask of it. */
+export interface HostReport {
+  name: string;
+  /** Absent when the mapping knows no memory for the host. */
+  budget?: HostBudget;
+  /** In the order of the files (sorted by path), then of the machines in each. */
+  machines: PlacedMachine[];
+  load: HostLoad;
+}
+
+/** Every host the files place machines on, sorted by name: the numbers the host rule judges. */
+export function hostReports(files: readonly Pick<WorkspaceFile, 'path' | 'machines'>[], mapping: Pick<Mapping, 'hosts'>): HostReport[] {
+  return [...placedMachines(files)]
+    .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0))
+    .map(([name, machines]) => {
+      const budget = hostBudget(mapping.hosts, name);
+      return { name, ...(budget ? { budget } : {}), machines, load: hostLoadOf(machines, budget) };
+    });
 }
 
 /** Runs every host rule over the files linted together; adds their findings to the files. */

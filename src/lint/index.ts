@@ -14,7 +14,8 @@ export { oversizedFileReport, prepareDocument, type PreparedDocument } from './d
 export { loadMapping, type LintOptions, type SourceFile } from './prepare';
 export type { DiskReport, FileReport, LintFinding as Finding, MachineReport } from './report';
 export { LintSession } from './session';
-export { lintHosts, type WorkspaceFile } from './hosts';
+export { hostReports, lintHosts, type HostReport, type WorkspaceFile } from './hosts';
+export type { HostLoad } from '../core/host-load';
 
 /** Lints one definition file. Never throws for any text. */
 export function lintDocument(file: SourceFile, mapping: Mapping, options: LintOptions = {}): FileReport {

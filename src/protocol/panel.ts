@@ -80,6 +80,36 @@ export interface MachineView {
   findings: FindingView[];
 }
 
+/** A machine placed on a host, in whichever definition of the workspace it sits. */
+export interface HostMachineView {
+  name: string;
+  /** Its definition, relative to the mapping file's folder. */
+  file: string;
+  uri: string;
+  range: SourceRange;
+  /** Whether it sits in the file the panel shows. */
+  here: boolean;
+  memory?: bigint;
+  cacheMemoryTotal: bigint;
+}
+
+/** A hypervisor host the file's machines sit on, summed over the whole workspace by the engine. */
+export interface HostView {
+  name: string;
+  /** Absent when the mapping file gives no memory for the host. */
+  memory?: bigint;
+  cacheShare?: number;
+  /** Named in the mapping's hosts list (else its memory is assume.hostMemory). */
+  listed: boolean;
+  /** The host's cache share in bytes. */
+  allowed?: bigint;
+  caches: bigint;
+  guestMemory: bigint;
+  /** Guest RAM plus caches. */
+  needed: bigint;
+  machines: HostMachineView[];
+}
+
 export interface PanelView {
   uri: string;
   fileName: string;
@@ -89,6 +119,8 @@ export interface PanelView {
   machines: MachineView[];
   /** Findings not tied to a machine (syntax errors, mapping problems). */
   fileFindings: FindingView[];
+  /** The hosts this file's machines sit on, with every machine of the workspace on them. */
+  hosts: HostView[];
   cautions: string[];
 }
 

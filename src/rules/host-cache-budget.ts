@@ -1,7 +1,7 @@
 // The caches of every disk and backing layer of every machine on one hypervisor host, summed across
 // all the files linted: over the host's cache share is a warning; guest RAM plus caches above the
 // host's memory is an error. Reported once per host, at the first machine placed there.
-import { cacheBudgetOf } from '../core/sizing';
+import { hostLoadOf } from '../core/host-load';
 import { ratio, size } from './format';
 import { docsPage, type Rule } from './types';
 
@@ -15,11 +15,7 @@ export const hostCacheBudget: Rule<'host-cache-budget'> = {
   docs: docsPage('host-cache-budget'),
   checkHost({ host, budget, machines, report }) {
     if (!budget || machines.length === 0) return;
-    const caches = machines.reduce((sum, m) => sum + m.cacheMemoryTotal, 0n);
-    const withMemory = machines.filter((m) => m.memory !== undefined);
-    const guestMemory = withMemory.reduce((sum, m) => sum + (m.memory ?? 0n), 0n);
-    const allowed = cacheBudgetOf(budget.memory, budget.cacheShare);
-    const needed = guestMemory + caches;
+    const { caches, guestMemory, withMemory, needed, allowed = 0n } = hostLoadOf(machines, budget);
     const related = machines.map((m) => ({
       message: `${m.name}: ${m.memory !== undefined ? `${size(m.memory)} RAM, ` : ''}${size(m.cacheMemoryTotal)} of disk caches`,
       pointer: m.pointer,
@@ -28,7 +24,7 @@ export const hostCacheBudget: Rule<'host-cache-budget'> = {
     }));
     const memoryNote = budget.listed ? '' : ' (assume.hostMemory)';
     if (needed > budget.memory) {
-      const partial = withMemory.length < machines.length ? ` (RAM known for ${withMemory.length} of them)` : '';
+      const partial = withMemory < machines.length ? ` (RAM known for ${withMemory} of them)` : '';
       report({
         severity: 'error',
         message: `host ${host} cannot hold its ${machinesWord(machines.length)}: guest RAM ${size(guestMemory)}${partial} plus disk caches ${size(caches)} make ${size(needed)}, more than its ${size(budget.memory)} of memory${memoryNote}, before the host's own needs. Move a machine or lower its caches.`,

@@ -269,6 +269,19 @@ export async function runUiTest(server: CodeServer, browser: Browser, dirs: RunD
   const bars = await frame.locator('article.disk svg.bar-coverage').count();
   checks.check('each disk\'s coverage is drawn', bars === 4, `${bars} coverage bars`);
 
+  // --- the hosts section: every machine of the workspace on the file's host, and its memory bars ---
+  // The demo's three ticketing machines sit on quill-hv-north with 16 + 4 + 8 GiB of guest RAM, the
+  // whole 28 GiB the mapping file gives the host: any cache at all takes it over its memory.
+  const north = frame.locator('section.hosts article.host[data-host="quill-hv-north"]');
+  await waitUntil('the hosts section', async () => ((await north.count()) === 1 ? true : undefined));
+  const hostMachines = (await north.locator('li[data-machine]').evaluateAll((items) => items.map((i) => (i as HTMLElement).dataset.machine ?? ''))).join(', ');
+  const neededOver = await north.locator('[data-field="hostNeeded"]').getAttribute('class');
+  const hostBars = await north.locator('svg.bar-budget').count();
+  const memoryText = await north.locator('.host-head .memory').textContent();
+  checks.check('the hosts section lists the machines on quill-hv-north with a bar for its cache share and one for its memory, over memory',
+    hostMachines === 'tern-db-01, tern-web-02, tern-cache-03' && hostBars === 2 && /\bover\b/.test(neededOver ?? '') && memoryText?.trim() === '28 GiB memory',
+    `machines ${hostMachines}; ${hostBars} bars; memory line class "${neededOver}"; "${memoryText}"`);
+
   // --- the hit-ratio chart: one, in the selected card, computed in the webview ---
   const figures = await frame.locator('figure.curve').count();
   const inSelected = await frame.locator('article.disk.selected figure.curve').count();

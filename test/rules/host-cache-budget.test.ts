@@ -4,7 +4,7 @@
 // 256 KiB default refcount cache (4 clusters) = 1.25 MiB; a 1 TiB disk with 128 MiB of L2 takes
 // 128.25 MiB.
 import { strict as assert } from 'node:assert';
-import { lintDocument, lintHosts, type FileReport } from '../../src/lint';
+import { hostReports, lintDocument, lintHosts, type FileReport } from '../../src/lint';
 import { CACHE, COMMON, CONTRACT } from '../helpers/sources';
 import { BASE_MAPPING, DEFINITION_DIR, mappingFor, mergeMapping, type MappingObject } from './harness';
 
@@ -129,5 +129,18 @@ describe(`rule ${RULE}`, () => {
       mapping: { accept: [{ rule: RULE, pointer: '/machines/0', file: 'fleet/a.yaml', reason: 'host gets more memory next quarter' }] },
     });
     assert.deepEqual(reports[0]?.findings.find((f) => f.rule === RULE)?.accepted, { reason: 'host gets more memory next quarter', from: 'mapping' });
+  });
+
+  it(`${CACHE} the host reports the editor shows hold the numbers the rule judges`, () => {
+    const { reports } = lintAll({
+      files: { 'a.yaml': file(machine('m1', 'hv-a', BIG, '40G')), 'b.yaml': file(machine('m2', 'hv-b', SMALL), machine('m3', 'hv-a', SMALL, '30G')) },
+      mapping: { hosts: [{ name: 'hv-a', memory: '64G' }] },
+    });
+    const hosts = hostReports(reports.map((r) => ({ path: r.path, machines: r.machines })), mappingFor(mergeMapping(HOSTED, { hosts: [{ name: 'hv-a', memory: '64G' }] })));
+    assert.deepEqual(hosts.map((h) => [h.name, h.machines.map((m) => m.name).join(' '), h.budget?.memory]), [['hv-a', 'm1 m3', 64n << 30n], ['hv-b', 'm2', undefined]]);
+    const [a, b] = hosts;
+    // 128.25 MiB + 1.25 MiB of caches; 40 + 30 GiB of RAM; 2 % of 64 GiB = 1,374,389,534 bytes (rounded down).
+    assert.deepEqual(a?.load, { caches: 129n * 2n ** 20n + 2n ** 19n, guestMemory: 70n << 30n, withMemory: 2, allowed: ((64n << 30n) * 20_000n) / 1_000_000n, needed: (70n << 30n) + 129n * 2n ** 20n + 2n ** 19n });
+    assert.deepEqual(b?.load, { caches: 5n * 2n ** 18n, guestMemory: 0n, withMemory: 0, needed: 5n * 2n ** 18n });
   });
 });

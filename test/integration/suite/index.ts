@@ -7,6 +7,7 @@ import { SUITE_START_MARK } from './marks';
 const testFiles: Array<() => unknown> = [
   () => require('./activation.test'),
   () => require('./diagnostics.test'),
+  () => require('./hosts.test'),
   () => require('./mapping-and-commands.test'),
   () => require('./settings.test'),
   () => require('./image-viewer.test'),
