@@ -2,24 +2,10 @@
 // security policy allows no inline style), coloured by the editor's theme in media/panel.css, with a
 // text summary and a table of the marks for readers who cannot see the drawing.
 import { formatSize } from '../src/core/format';
+import { el, svg } from './dom';
 import { CHART, chartModel, hitRatioText, yOf, type ChartInput, type ChartModel, type SeriesId } from './curve-model';
 
-const SVG = 'http://www.w3.org/2000/svg';
 let figureCount = 0;
-
-function svg<K extends keyof SVGElementTagNameMap>(tag: K, attrs: Record<string, string | number>, text?: string): SVGElementTagNameMap[K] {
-  const node = document.createElementNS(SVG, tag);
-  for (const [key, value] of Object.entries(attrs)) node.setAttribute(key, String(value));
-  if (text !== undefined) node.textContent = text;
-  return node;
-}
-
-function html<K extends keyof HTMLElementTagNameMap>(tag: K, className?: string, text?: string): HTMLElementTagNameMap[K] {
-  const node = document.createElement(tag);
-  if (className) node.className = className;
-  if (text !== undefined) node.textContent = text;
-  return node;
-}
 
 const MARK_NAMES = { configured: 'Configured', effective: 'Effective', recommended: 'Measured target', full: 'Full coverage' } as const;
 
@@ -87,47 +73,47 @@ function swatch(kind: string): SVGSVGElement {
 }
 
 function legend(chart: ChartModel): HTMLElement {
-  const list = html('ul', 'curve-legend');
+  const list = el('ul', 'curve-legend');
   for (const series of chart.series) {
-    const item = html('li');
+    const item = el('li');
     item.dataset.series = series.id;
-    item.append(swatch(`curve-series series-${series.id}${series.inUse ? ' in-use' : ''}`), html('span', undefined, `${series.label}${series.inUse ? ' — in use' : ''}`));
+    item.append(swatch(`curve-series series-${series.id}${series.inUse ? ' in-use' : ''}`), el('span', undefined, `${series.label}${series.inUse ? ' — in use' : ''}`));
     list.append(item);
   }
   for (const mark of chart.marks) {
-    const item = html('li');
+    const item = el('li');
     item.dataset.mark = mark.id;
-    item.append(swatch(`curve-mark mark-${mark.id}`), html('span', undefined, MARK_NAMES[mark.id]));
+    item.append(swatch(`curve-mark mark-${mark.id}`), el('span', undefined, MARK_NAMES[mark.id]));
     list.append(item);
   }
   return list;
 }
 
 function marksTable(chart: ChartModel, tableId: string): HTMLTableElement {
-  const table = html('table', 'curve-marks');
+  const table = el('table', 'curve-marks');
   table.id = tableId;
-  table.append(html('caption', undefined, `Predicted hit ratio at each mark (${chart.accessText})`));
-  const head = html('thead');
-  const headRow = html('tr');
-  headRow.append(html('th', undefined, 'Mark'), html('th', undefined, 'L2 cache'));
+  table.append(el('caption', undefined, `Predicted hit ratio at each mark (${chart.accessText})`));
+  const head = el('thead');
+  const headRow = el('tr');
+  headRow.append(el('th', undefined, 'Mark'), el('th', undefined, 'L2 cache'));
   for (const series of chart.series) {
-    const th = html('th', undefined, series.label);
+    const th = el('th', undefined, series.label);
     th.dataset.series = series.id;
     headRow.append(th);
   }
   head.append(headRow);
-  const body = html('tbody');
+  const body = el('tbody');
   for (const mark of chart.marks) {
-    const row = html('tr');
+    const row = el('tr');
     row.dataset.mark = mark.id;
-    const name = html('th', undefined, MARK_NAMES[mark.id]);
+    const name = el('th', undefined, MARK_NAMES[mark.id]);
     name.scope = 'row';
-    const size = html('td', 'curve-size', formatSize(mark.bytes));
+    const size = el('td', 'curve-size', formatSize(mark.bytes));
     size.title = `${mark.bytes.toString()} bytes`;
     row.append(name, size);
     for (const series of chart.series) {
       const ratio = mark.ratios[series.id as SeriesId];
-      const cell = html('td', `curve-ratio${series.inUse ? ' in-use' : ''}`, ratio === undefined ? '—' : hitRatioText(ratio));
+      const cell = el('td', `curve-ratio${series.inUse ? ' in-use' : ''}`, ratio === undefined ? '—' : hitRatioText(ratio));
       cell.dataset.series = series.id;
       if (ratio !== undefined) cell.dataset.hitRatio = String(ratio);
       row.append(cell);
@@ -143,17 +129,17 @@ function marksTable(chart: ChartModel, tableId: string): HTMLTableElement {
  * so a what-if edit moves curves and marks at once; the time it took rides on data-compute-ms.
  */
 export function curveFigure(diskName: string, input: ChartInput): HTMLElement {
-  const figure = html('figure', 'curve');
+  const figure = el('figure', 'curve');
   figure.dataset.disk = diskName;
   const started = performance.now();
   const outcome = chartModel(input);
   const computeMs = performance.now() - started;
   figure.dataset.computeMs = computeMs.toFixed(2);
-  const title = html('figcaption', 'curve-title', `L2 cache hit ratio against cache size — ${diskName}`);
+  const title = el('figcaption', 'curve-title', `L2 cache hit ratio against cache size — ${diskName}`);
   figure.append(title);
   if (!outcome.ok) {
     figure.classList.add('curve-unavailable');
-    figure.append(html('p', 'curve-note', `No curve: ${outcome.reason}`));
+    figure.append(el('p', 'curve-note', `No curve: ${outcome.reason}`));
     return figure;
   }
   const { chart } = outcome;
@@ -161,7 +147,7 @@ export function curveFigure(diskName: string, input: ChartInput): HTMLElement {
   const titleId = `curve-title-${id}`;
   const tableId = `curve-marks-${id}`;
   figure.append(
-    html('p', 'curve-note', `${chart.accessText[0]?.toUpperCase() ?? ''}${chart.accessText.slice(1)}, ${formatSize(input.requestSize)} requests over the whole disk; the top layer's cache (predicted steady state, for review).`
+    el('p', 'curve-note', `${chart.accessText[0]?.toUpperCase() ?? ''}${chart.accessText.slice(1)}, ${formatSize(input.requestSize)} requests over the whole disk; the top layer's cache (predicted steady state, for review).`
       + (input.measured ? ' The measured curve replays the disk\'s own trace through an LRU cache of every size; it shows only the period traced.' : '')),
     drawing(chart, titleId, tableId),
     legend(chart),

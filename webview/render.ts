@@ -5,6 +5,7 @@ import { formatSizeExact, parseSize } from '../src/core/units';
 import { formatCount, formatInterval, formatPercent, formatShare, formatSize } from '../src/core/format';
 import type { DiskView, FindingView, HostView, MachineView, MeasuredView, PanelView, WhatIfValues } from '../src/protocol/panel';
 import { curveFigure } from './curve';
+import { custom, el, svg } from './dom';
 import { CLUSTER_CHOICES, sliceChoices, whatIf, type WhatIfResult } from './whatif';
 
 export interface PanelActions {
@@ -20,39 +21,14 @@ export interface PanelActions {
 /** Trial values per disk pointer; kept across updates so typing in the editor does not reset them. */
 export type WhatIfState = Map<string, WhatIfValues>;
 
-const SVG = 'http://www.w3.org/2000/svg';
-
-function el<K extends keyof HTMLElementTagNameMap>(tag: K, className?: string, text?: string): HTMLElementTagNameMap[K] {
-  const node = document.createElement(tag);
-  if (className) node.className = className;
-  if (text !== undefined) node.textContent = text;
-  return node;
-}
-
-function custom(tag: string, attrs: Record<string, string> = {}, text?: string): HTMLElement {
-  const node = document.createElement(tag);
-  for (const [key, value] of Object.entries(attrs)) node.setAttribute(key, value);
-  if (text !== undefined) node.textContent = text;
-  return node;
-}
-
 /** A horizontal bar: `share` of the track filled (0..1), drawn in SVG so it needs no style attribute. */
 function bar(share: number, kind: 'coverage' | 'budget', over = false): SVGSVGElement {
-  const svg = document.createElementNS(SVG, 'svg');
-  svg.setAttribute('class', `bar bar-${kind}${over ? ' bar-over' : ''}`);
-  svg.setAttribute('viewBox', '0 0 100 6');
-  svg.setAttribute('preserveAspectRatio', 'none');
-  svg.setAttribute('role', 'img');
-  const track = document.createElementNS(SVG, 'rect');
-  track.setAttribute('class', 'bar-track');
-  track.setAttribute('width', '100');
-  track.setAttribute('height', '6');
-  const fill = document.createElementNS(SVG, 'rect');
-  fill.setAttribute('class', 'bar-fill');
-  fill.setAttribute('width', String(Math.max(0, Math.min(1, share)) * 100));
-  fill.setAttribute('height', '6');
-  svg.append(track, fill);
-  return svg;
+  const drawing = svg('svg', { class: `bar bar-${kind}${over ? ' bar-over' : ''}`, viewBox: '0 0 100 6', preserveAspectRatio: 'none', role: 'img' });
+  drawing.append(
+    svg('rect', { class: 'bar-track', width: 100, height: 6 }),
+    svg('rect', { class: 'bar-fill', width: Math.max(0, Math.min(1, share)) * 100, height: 6 }),
+  );
+  return drawing;
 }
 
 /** Percent with one decimal, rounded down so that a cache short of full coverage never shows 100 %. */

@@ -10,7 +10,7 @@ import { isMainThread, parentPort, Worker, workerData } from 'node:worker_thread
 import type { Mapping } from '../lint';
 import { loadMappingText, resolveMapping } from './lint-discovery';
 import { lintFile, type LintRequest } from './lint-file';
-import { ImageFacts } from './lint-images';
+import { ImageFactsCache } from '../image/facts-cache';
 import { TraceCurves } from './lint-traces';
 import type { Progress } from './lint-progress';
 import type { LintedFile } from './lint-results';
@@ -59,7 +59,7 @@ interface ShareResult {
 }
 
 async function lintShare(files: readonly string[], mapping: Mapping, request: LintRequest, cwd: string, onFile: (file: LintedFile, notes: string[]) => void, yieldEvery = 0): Promise<ShareResult> {
-  const images = new ImageFacts();
+  const images = new ImageFactsCache({ recheck: false });
   const traces = new TraceCurves();
   const notes: string[] = [];
   const out: LintedFile[] = [];

@@ -4,21 +4,21 @@ import * as nodePath from 'node:path';
 import type { FileReport, Finding, Mapping } from '../lint';
 import type { BaselineState, KnownComparison } from '../review/known';
 
-/** What the outputs read of a disk's report. */
-export type DiskView = Pick<FileReport['disks'][number], 'machine' | 'name' | 'named' | 'pointer' | 'sizing' | 'recommended' | 'values' | 'measured'>;
+/** What the outputs read of a disk's report (the panel's DiskView is another shape, in src/protocol/panel.ts). */
+export type OutputDisk = Pick<FileReport['disks'][number], 'machine' | 'name' | 'named' | 'pointer' | 'sizing' | 'recommended' | 'values' | 'measured'>;
 
 /** What the outputs and the review read of a machine's report. */
-export type MachineView = Omit<FileReport['machines'][number], 'disks' | 'budget'>;
+export type OutputMachine = Omit<FileReport['machines'][number], 'disks' | 'budget'>;
 
 /** What the outputs read of a file's report: small enough to pass between threads cheaply. */
-export interface ReportView {
+export interface OutputReport {
   parsed: boolean;
-  disks: DiskView[];
-  machines: MachineView[];
+  disks: OutputDisk[];
+  machines: OutputMachine[];
   findings: Finding[];
 }
 
-export function viewOf(report: FileReport): ReportView {
+export function outputOf(report: FileReport): OutputReport {
   return {
     parsed: report.parsed,
     disks: report.disks.map((d) => ({ machine: d.machine, name: d.name, named: d.named, pointer: d.pointer, sizing: d.sizing, recommended: d.recommended, values: d.values, ...(d.measured ? { measured: d.measured } : {}) })),
@@ -31,7 +31,7 @@ export interface LintedFile {
   /** Absolute path. */
   path: string;
   /** Absent when the file could not be read. */
-  report?: ReportView;
+  report?: OutputReport;
   /** Why the file could not be read (or written back by --fix). */
   error?: string;
   /** Fixes --fix applied to this file. */
@@ -97,7 +97,7 @@ export function summarize(run: LintRun): LintSummary {
 }
 
 /** The findings an output shows: everything, or under --errors-only the errors not accepted. */
-export function shownFindings(run: LintRun, report: ReportView): Finding[] {
+export function shownFindings(run: LintRun, report: OutputReport): Finding[] {
   return run.errorsOnly ? report.findings.filter((f) => f.severity === 'error' && !f.accepted) : report.findings;
 }
 

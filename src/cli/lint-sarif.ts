@@ -6,6 +6,7 @@ import * as nodePath from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { RULES, type Finding, type Fix, type SourceRange } from '../lint';
 import type { Severity } from '../core/results';
+import { pointerWithin } from '../model/jsonpath';
 import { baselineOf, mappingRelative, shownFindings, type LintRun } from './lint-results';
 import { FINGERPRINT_KEY, fingerprintOf, subjectOf } from '../review/identity';
 import type { KnownEntry } from '../review/known';
@@ -64,7 +65,7 @@ function sarifFixes(artifact: ArtifactLocation, fixes: readonly Fix[]) {
 /** The measured figures of the disk a finding is about, when a trace was read for it (byte counts as numbers). */
 function measuredProperties(report: NonNullable<LintRun['files'][number]['report']>, finding: Finding) {
   const disk = report.disks
-    .filter((d) => d.measured && (finding.pointer === d.pointer || finding.pointer.startsWith(`${d.pointer}/`)))
+    .filter((d) => d.measured && pointerWithin(finding.pointer, d.pointer))
     .sort((a, b) => b.pointer.length - a.pointer.length)[0];
   const m = disk?.measured;
   if (!m) return undefined;

@@ -1,6 +1,5 @@
 // The caches a disk really gets: configured values, the combined-size split and the profile's
 // defaults, per layer of a backing chain ([CACHE], docs/sources.md).
-import { fail, ok, type Outcome } from './results';
 import {
   l2CoveredBytes, l2EntryBytes, l2FullCoverage, l2Tables, maxOf, minOf,
   minimumL2Cache, minimumRefcountCache, roundUp,
@@ -43,24 +42,26 @@ export interface LayerCache {
   cleanupSource: 'configured' | 'default';
 }
 
-/** Of L2, refcount and combined cache at most two may be set together. */
-export function checkCacheOptions(settings: CacheSettings): Outcome<CacheSettings> {
+/** Why the driver refuses a set of cache sizes ([CACHE]). */
+export type CacheOptionsProblem =
+  | { kind: 'all-three-set' }
+  | { kind: 'part-above-combined'; part: 'l2Cache' | 'refcountCache' };
+
+/**
+ * Of L2, refcount and combined cache at most two may be set together, and neither the L2 nor the
+ * refcount cache may be larger than the combined size that holds them both. Empty when accepted.
+ */
+export function cacheOptionsProblems(settings: Pick<CacheSettings, 'l2Cache' | 'refcountCache' | 'combinedCache'>): CacheOptionsProblem[] {
   const { l2Cache, refcountCache, combinedCache } = settings;
-  if (l2Cache !== undefined && refcountCache !== undefined && combinedCache !== undefined) {
-    return fail('L2, refcount and combined cache sizes are all set; at most two of the three may be set together');
-  }
-  if (combinedCache !== undefined && l2Cache !== undefined && l2Cache > combinedCache) {
-    return fail('the L2 cache is larger than the combined cache size');
-  }
-  if (combinedCache !== undefined && refcountCache !== undefined && refcountCache > combinedCache) {
-    return fail('the refcount cache is larger than the combined cache size');
-  }
-  return ok(settings);
+  if (combinedCache === undefined) return [];
+  if (l2Cache !== undefined && refcountCache !== undefined) return [{ kind: 'all-three-set' }];
+  const parts = [['l2Cache', l2Cache], ['refcountCache', refcountCache]] as const;
+  return parts.flatMap(([part, value]): CacheOptionsProblem[] => (value !== undefined && value > combinedCache ? [{ kind: 'part-above-combined', part }] : []));
 }
 
 /**
  * The caches of one layer. A conflicting combination is resolved as the driver would refuse it only
- * in checkCacheOptions; here the first two knobs win so that every disk still gets numbers.
+ * in cacheOptionsProblems (reported by the rules); here the first two knobs win so that every disk still gets numbers.
  */
 export function layerCache(geometry: LayerGeometry, settings: CacheSettings, profile: DriverProfile = driverProfile()): LayerCache {
   const { virtualSize, clusterSize: cluster, extendedL2 } = geometry;

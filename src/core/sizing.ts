@@ -131,3 +131,15 @@ export function writeAmplification(requestSize: bigint, cluster: bigint, extende
 export function cacheBudgetOf(memory: bigint, shareOfMemory: number): bigint {
   return (memory * BigInt(Math.round(shareOfMemory * 1_000_000))) / 1_000_000n;
 }
+
+/** A machine's cache memory over all its disks, and its budget when its RAM is known. */
+export interface MachineCacheUse {
+  total: bigint;
+  budget?: bigint;
+}
+
+/** The one place a machine's cache total and budget are computed: the budget rule and the report read it. */
+export function machineCacheUse(diskTotals: readonly bigint[], memory: bigint | undefined, shareOfMemory: number): MachineCacheUse {
+  const total = diskTotals.reduce((sum, t) => sum + t, 0n);
+  return memory === undefined ? { total } : { total, budget: cacheBudgetOf(memory, shareOfMemory) };
+}

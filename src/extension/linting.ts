@@ -6,7 +6,7 @@ import * as vscode from 'vscode';
 // Loaded through require so the bundle takes the package's CommonJS build.
 import tinyglobby = require('tinyglobby');
 import { LintSession, oversizedFileReport, type FileReport, type Mapping } from '../lint';
-import { ImageFactsCache } from './images';
+import { ImageFactsCache } from '../image/facts-cache';
 import { TraceCurveCache, type RunningTraceJob } from './traces';
 import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
 import { isMappingFileName, Mappings, readDefinitionText } from './mappings';
@@ -53,7 +53,7 @@ export class Linting implements vscode.Disposable {
   private readonly toldTooLarge = new Set<string>();
 
   /** Image facts for the image rules; only in a trusted workspace (untrusted: the text alone). */
-  private images = vscode.workspace.isTrusted ? new ImageFactsCache() : undefined;
+  private images = vscode.workspace.isTrusted ? new ImageFactsCache({ recheck: true }) : undefined;
   /** Measured curves of the traces disks name; like images, only in a trusted workspace. */
   private traceCurves: TraceCurveCache | undefined;
 
@@ -120,7 +120,7 @@ export class Linting implements vscode.Disposable {
       }),
       vscode.workspace.onDidChangeWorkspaceFolders(() => void this.reloadMappings().then(() => this.lintWorkspace(false))),
       vscode.workspace.onDidGrantWorkspaceTrust(() => {
-        this.images = new ImageFactsCache();
+        this.images = new ImageFactsCache({ recheck: true });
         this.traceCurves = this.newTraceCache();
         void this.lintWorkspace(false);
       }),

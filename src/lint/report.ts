@@ -2,7 +2,7 @@
 // findings in the order they are shown. Front ends only format it.
 import type { DiskSizing, LayerCache, LayerSpec } from '../core/cache';
 import type { Finding, SourceRange } from '../core/results';
-import { cacheBudgetOf } from '../core/sizing';
+import { machineCacheUse } from '../core/sizing';
 import type { DiskSpec, DiskValues, MachineSpec } from '../model/disks';
 import { RULE_IDS, type RuleId } from '../rules';
 import { applyAcceptances } from './acceptance';
@@ -139,17 +139,18 @@ export function assemble(context: FileContext, units: Units): FileReport {
   for (const unit of units.machines) {
     const indices: number[] = [];
     findings.push(...unit.valueFindings);
-    let total = 0n;
+    const diskTotals: bigint[] = [];
     for (const disk of unit.disks) {
       findings.push(...disk.findings);
       if (!disk.result) continue;
       indices.push(disks.length);
       disks.push({ ...disk.result.report, range: disk.disk.range, values: reportedValues(disk.disk), findings: [] });
-      total += disk.result.sizing.report.cacheMemoryTotal;
+      diskTotals.push(disk.result.sizing.report.cacheMemoryTotal);
     }
     findings.push(...unit.ruleFindings);
     const { machine } = unit;
     const memory = machine.memory?.value;
+    const use = machineCacheUse(diskTotals, memory, mapping.cacheShareOfMemory);
     machineReports.push({
       name: machine.name,
       named: machine.named,
@@ -157,8 +158,8 @@ export function assemble(context: FileContext, units: Units): FileReport {
       range: machine.range,
       memory,
       ...(machine.host ? { host: machine.host.value, hostPointer: machine.host.pointer, hostRange: machine.host.range } : {}),
-      budget: memory === undefined ? undefined : cacheBudgetOf(memory, mapping.cacheShareOfMemory),
-      cacheMemoryTotal: total,
+      budget: use.budget,
+      cacheMemoryTotal: use.total,
       disks: indices,
       findings: [],
     });

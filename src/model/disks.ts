@@ -8,7 +8,7 @@ import { parseInterval, parseSize } from '../core/units';
 import { accessOfPattern, PATTERN_HELP } from '../core/workload';
 import { nodeAt, rangeOfNode, type DefinitionDocument } from './document';
 import { select, toJsonPointer, type PathSegment, type Selector } from './jsonpath';
-import type { AccessPattern, Mapping } from './mapping';
+import type { AccessPatternText, Mapping } from './mapping';
 import type { DiskField } from './mapping-schema';
 
 export interface Located<T> {
@@ -42,7 +42,7 @@ export interface DiskValues {
   extendedL2?: Located<boolean>;
   image?: Located<string>;
   requestSize?: Located<bigint>;
-  pattern?: Located<AccessPattern>;
+  pattern?: Located<AccessPatternText>;
   /** Trace file paths as written (one, or a list read in order), relative to the definition file. */
   trace?: Located<string[]>;
 }

@@ -19,12 +19,12 @@ export const DEFAULT_INCLUDE = ['**/*.yaml', '**/*.yml', '**/*.json'];
 const ALWAYS_EXCLUDED = ['**/node_modules/**', '**/.git/**'];
 
 /** As written: random, sequential, mixed, or a cache-model spec (see core/workload). */
-export type AccessPattern = string;
+export type AccessPatternText = string;
 
 export interface Assumptions {
   clusterSize: bigint;
   format: string;
-  pattern: AccessPattern;
+  pattern: AccessPatternText;
   requestSize: bigint;
   driver: DriverGeneration;
   platform: HostPlatform;

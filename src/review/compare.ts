@@ -2,6 +2,7 @@
 // the cache memory of each machine and host, and which disks it adds, removes, resizes or re-tunes.
 // Both sides come in as lint results; this module only pairs them up.
 import type { Finding, Severity, SizingReport } from '../core/results';
+import { pointerWithin } from '../model/jsonpath';
 import { hostBudget, type HostPlan } from '../model/mapping';
 import { identify, pairUp, type IdentifiedFinding } from './identity';
 import type { ReviewedDisk, ReviewedFile, ReviewedMachine } from './types';
@@ -132,7 +133,7 @@ function disksOf(files: readonly ReviewedFile[]): Map<string, DiskSide[]> {
   const out = new Map<string, DiskSide[]>();
   for (const file of files) {
     for (const disk of file.disks) {
-      const machine = file.machines.find((m) => m.name === disk.machine && (m.pointer === '' || disk.pointer.startsWith(`${m.pointer}/`)));
+      const machine = file.machines.find((m) => m.name === disk.machine && pointerWithin(disk.pointer, m.pointer));
       const machineId = machine ? machineKey(file.path, machine) : `name:${disk.machine}`;
       const diskId = disk.named ? disk.name : disk.pointer;
       const key = `${file.path}\u0000${machineId}\u0000${diskId}`;

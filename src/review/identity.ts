@@ -3,6 +3,7 @@
 // machine or disk has no name of its own, its JSON Pointer stands in (the only handle there is).
 import { createHash } from 'node:crypto';
 import type { Finding } from '../core/results';
+import { pointerWithin } from '../model/jsonpath';
 import type { ReviewedFile } from './types';
 
 export interface FindingSubject {
@@ -32,11 +33,9 @@ const IDENTITY_VERSION = 1;
 /** The partialFingerprints key in SARIF output (SARIF 2.1.0 §3.27.17: a versioned name of our own). */
 export const FINGERPRINT_KEY = `cachewright-subject/v${IDENTITY_VERSION}`;
 
-const within = (pointer: string, scope: string): boolean => scope === '' || pointer === scope || pointer.startsWith(`${scope}/`);
-
 function innermost<T extends { pointer: string }>(items: readonly T[], pointer: string): T | undefined {
   let best: T | undefined;
-  for (const item of items) if (within(pointer, item.pointer) && (!best || item.pointer.length > best.pointer.length)) best = item;
+  for (const item of items) if (pointerWithin(pointer, item.pointer) && (!best || item.pointer.length > best.pointer.length)) best = item;
   return best;
 }
 
@@ -44,7 +43,7 @@ export function subjectOf(file: ReviewedFile, finding: Finding): FindingSubject 
   const base = { rule: finding.rule, file: file.path };
   if (finding.host !== undefined) return { ...base, host: finding.host, field: '' };
   const disk = innermost(file.disks, finding.pointer);
-  const machine = disk ? file.machines.find((m) => m.name === disk.machine && within(disk.pointer, m.pointer)) : innermost(file.machines, finding.pointer);
+  const machine = disk ? file.machines.find((m) => m.name === disk.machine && pointerWithin(disk.pointer, m.pointer)) : innermost(file.machines, finding.pointer);
   const scope = disk?.pointer ?? machine?.pointer ?? '';
   return {
     ...base,

@@ -4,6 +4,7 @@ import { formatShare } from '../core/format';
 import type { MeasuredCurve } from '../model/traces';
 import { TRACE_CAUTION } from './trace-unreadable';
 import type { LayerCache } from '../core/cache';
+import type { Fix } from '../core/results';
 import { modelCache } from '../core/cachemodel';
 import { accessOfPattern } from '../core/workload';
 import { ratio, share, size } from './format';
@@ -45,10 +46,16 @@ export const l2CacheUndersized: Rule<'l2-cache-undersized'> = {
     const { combinedCache, l2Cache, refcountCache } = disk.values;
     const onlyCombined = combinedCache !== undefined && l2Cache === undefined;
     const refcount = refcountCache?.value ?? minimumRefcountCache(clusterSize);
-    const setL2 = (bytes: bigint, why: string) =>
-      onlyCombined
-        ? fix.setSize('combinedCache', bytes + refcount, `Set the combined cache to ${size(bytes + refcount)} (${why})`)
-        : fix.setSize('l2Cache', bytes, `Set the L2 cache to ${size(bytes)} (${why})`);
+    // With L2 and combined both written, the refcount cache is their difference: raising the L2 cache
+    // alone would push it past the combined size, which the driver refuses; the combined size grows too.
+    const withCombined = combinedCache !== undefined && l2Cache !== undefined;
+    const setL2 = (bytes: bigint, why: string): Fix | undefined => {
+      if (onlyCombined) return fix.setSize('combinedCache', bytes + refcount, `Set the combined cache to ${size(bytes + refcount)} (${why})`);
+      const l2 = fix.setSize('l2Cache', bytes, `Set the L2 cache to ${size(bytes)} (${why})`);
+      if (!withCombined || !l2) return l2;
+      const combined = fix.setSize('combinedCache', bytes + top.refcount, '');
+      return combined ? { title: `Set the L2 cache to ${size(bytes)} and the combined cache to ${size(bytes + top.refcount)} (${why})`, edits: [...l2.edits, ...combined.edits] } : undefined;
+    };
     const at = onlyCombined ? 'combinedCache' : l2Cache ? 'l2Cache' : undefined;
     const curve = trace?.facts.curve;
     if (curve) {

@@ -1,4 +1,4 @@
-import { cacheBudgetOf } from '../core/sizing';
+import { machineCacheUse } from '../core/sizing';
 import { ratio, share, size } from './format';
 import { docsPage, type Rule } from './types';
 
@@ -11,9 +11,8 @@ export const machineCacheBudget: Rule<'machine-cache-budget'> = {
   checkMachine({ machine, disks, mapping, report }) {
     const memory = machine.memory?.value;
     if (!memory || disks.length === 0) return;
-    const total = disks.reduce((sum, d) => sum + d.sizing.report.cacheMemoryTotal, 0n);
-    const budget = cacheBudgetOf(memory, mapping.cacheShareOfMemory);
-    if (total <= budget) return;
+    const { total, budget } = machineCacheUse(disks.map((d) => d.sizing.report.cacheMemoryTotal), memory, mapping.cacheShareOfMemory);
+    if (budget === undefined || total <= budget) return;
     report({
       at: machine.memory,
       message: `disk caches of ${machine.name} take ${size(total)} over ${disks.length} disk${disks.length > 1 ? 's' : ''}, ${share(total, memory)} of its ${size(memory)} RAM; the budget is ${ratio(mapping.cacheShareOfMemory)} (${size(budget)}). Check the host's headroom before raising caches.`,

@@ -56,6 +56,10 @@ describe(`rule ${RULE}: fix values`, () => {
     const fixed = roundTrip(RULE, { name: 'json', text: '{"machines":[{"name":"m","disks":[{"name":"d","size":"8G","cache":{"refcount":"100K"}}]}]}' });
     assert.ok(fixed.includes('"refcount":"128K"'), fixed);
   });
+  it(`${CACHE} a part rounded up past the combined size raises the combined size with it (the driver refuses a part above it)`, () => {
+    const fixed = roundTrip(RULE, { name: 'past combined', text: oneDisk('size: 8G\ncluster: 256K\ncache: { refcount: 100K, total: 128K }') });
+    assert.ok(fixed.includes('refcount: 256K, total: 256K }'), fixed);
+  });
   it('the fix title names the rounded size', () => {
     const finding = findingsOf(lintCase({ text: oneDisk('size: 8G\ncache: { l2: 1000K }') }), RULE)[0];
     assert.match(finding?.fix?.title ?? '', /1 MiB/);

@@ -3,7 +3,7 @@
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import * as path from 'node:path';
-import { ImageFacts } from '../../src/cli/lint-images';
+import { ImageFactsCache } from '../../src/image/facts-cache';
 import type { LintOptions } from '../../src/lint';
 import { writeImage, type ImageSpec } from '../image/qcow2-writer';
 
@@ -12,7 +12,7 @@ export const TiB = 1n << 40n;
 
 export class ImageFolder {
   readonly dir = mkdtempSync(path.join(tmpdir(), 'cachewright-rule-images-'));
-  private readonly facts = new ImageFacts();
+  private readonly facts = new ImageFactsCache({ recheck: false });
   private readonly names: string[] = [];
 
   /** A definition file's path in the folder, so image paths in it are relative to the folder. */

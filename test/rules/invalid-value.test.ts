@@ -23,6 +23,7 @@ ruleTable(RULE, {
     },
     { name: 'flags read as YAML booleans or the words on/off, yes/no', text: oneDisk('size: 1G\nextendedL2: "off"') },
     { name: 'a raw disk is still read; its values are valid', text: oneDisk('size: 100G\nformat: raw') },
+    { name: `${CACHE} an L2 cache inside the combined cache, and one equal to it`, text: 'machines:\n  - name: m\n    disks:\n      - { name: a, size: 20G, cache: { l2: 2M, total: 4M } }\n      - { name: b, size: 20G, cache: { l2: 4M, total: 4M } }\n' },
   ],
   invalid: [
     {
@@ -112,6 +113,16 @@ ruleTable(RULE, {
       name: 'a disk with no virtual size at all is reported at the disk, naming the selector',
       text: oneDisk('format: qcow2'),
       findings: [{ rule: RULE, line: 4, column: 9, messageIncludes: ['no virtual size', '$.size'] }],
+    },
+    {
+      name: `${CACHE} an L2 cache larger than the combined cache (l2: 64M, combined: 32M) names both values`,
+      text: oneDisk('size: 20G\ncache: { l2: 64M, total: 32M }'),
+      findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['l2Cache 64M (64 MiB)', 'combinedCache 32M (32 MiB)', 'driver refuses'] }],
+    },
+    {
+      name: `${CACHE} a refcount cache larger than the combined cache`,
+      text: oneDisk('size: 20G\ncache: { refcount: 8M, total: 4M }'),
+      findings: [{ rule: RULE, line: 6, column: 28, messageIncludes: ['refcountCache 8M (8 MiB)', 'combinedCache 4M (4 MiB)'] }],
     },
     {
       name: 'JSON: a bad value inside a one-line object',

@@ -91,6 +91,10 @@ ruleTable(RULE, {
 });
 
 describe(`rule ${RULE}: more fix round trips`, () => {
+  it(`${CACHE} with L2 and combined both written, the combined size grows with the L2 cache and keeps the refcount share`, () => {
+    const fixed = roundTrip(RULE, { name: 'l2 and combined', text: oneDisk('size: 1T\ncache: { l2: 8M, total: 16M }') });
+    assert.ok(fixed.includes('l2: 128M, total: 136M }'), fixed);
+  });
   it(`${CACHE} the replacement is the full-coverage value, written like the original (128M for 8M)`, () => {
     const fixed = roundTrip(RULE, { name: 'replace', text: oneDisk('size: 1T\ncache:\n  l2: 8M   # too small') });
     assert.match(fixed, /l2: 128M   # too small/);

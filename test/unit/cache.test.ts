@@ -2,10 +2,9 @@
 // profiles and a backing chain's memory, against the published cache notes ([CACHE], docs/sources.md).
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
-import { checkCacheOptions, layerCache, sizeChain, type CacheSettings, type LayerGeometry } from '../../src/core/cache';
+import { cacheOptionsProblems, layerCache, sizeChain, type CacheSettings, type LayerGeometry } from '../../src/core/cache';
 import { driverProfile, RECOMMENDED_CLEANUP_INTERVAL } from '../../src/core/profiles';
 import { l2FullCoverage, minimumL2Cache, minimumRefcountCache } from '../../src/core/sizing';
-import { assertErrorMentions, valueOf } from '../helpers/outcome';
 import { CACHE, CONTRACT, SPEC } from '../helpers/sources';
 
 const KiB = 1024n;
@@ -23,21 +22,19 @@ const twentyGiB = disk(20n * GiB);
 
 describe('cache: at most two of the three knobs [CACHE]', () => {
   it(`${CACHE} L2, refcount and combined all set is a conflict, with a message saying so`, () => {
-    assertErrorMentions(
-      checkCacheOptions({ l2Cache: MiB, refcountCache: MiB, combinedCache: 4n * MiB }),
-      'all set', 'at most two',
-    );
+    assert.deepEqual(cacheOptionsProblems({ l2Cache: MiB, refcountCache: MiB, combinedCache: 4n * MiB }), [{ kind: 'all-three-set' }]);
   });
   it(`${CACHE} any two, any one or none are accepted`, () => {
     const accepted: CacheSettings[] = [
       {}, { l2Cache: MiB }, { refcountCache: MiB }, { combinedCache: MiB },
       { l2Cache: MiB, refcountCache: MiB }, { l2Cache: MiB, combinedCache: 4n * MiB }, { refcountCache: MiB, combinedCache: 4n * MiB },
     ];
-    for (const settings of accepted) assert.deepEqual(valueOf(checkCacheOptions(settings)), settings);
+    for (const settings of accepted) assert.deepEqual(cacheOptionsProblems(settings), [], JSON.stringify(settings, (_k, v: unknown) => (typeof v === 'bigint' ? String(v) : v)));
   });
   it(`${CACHE} a part larger than the combined size is refused`, () => {
-    assertErrorMentions(checkCacheOptions({ l2Cache: 8n * MiB, combinedCache: 4n * MiB }), 'L2 cache is larger than the combined');
-    assertErrorMentions(checkCacheOptions({ refcountCache: 8n * MiB, combinedCache: 4n * MiB }), 'refcount cache is larger than the combined');
+    assert.deepEqual(cacheOptionsProblems({ l2Cache: 8n * MiB, combinedCache: 4n * MiB }), [{ kind: 'part-above-combined', part: 'l2Cache' }]);
+    assert.deepEqual(cacheOptionsProblems({ refcountCache: 8n * MiB, combinedCache: 4n * MiB }), [{ kind: 'part-above-combined', part: 'refcountCache' }]);
+    assert.deepEqual(cacheOptionsProblems({ l2Cache: 4n * MiB, combinedCache: 4n * MiB }), [], 'equal to the combined size is allowed');
   });
 });
 
@@ -67,9 +64,9 @@ describe('cache: the combined-cache split [CACHE]', () => {
     const c = layerCache(twentyGiB, { combinedCache: 3n * MiB, refcountCache: MiB }, linux);
     assert.deepEqual([c.l2, c.l2Source, c.refcount, c.refcountSource], [2n * MiB, 'combined', MiB, 'configured']);
   });
-  it(`${CACHE} all three: a conflict for checkCacheOptions; layerCache still gives numbers (L2 and refcount win)`, () => {
+  it(`${CACHE} all three: a conflict for cacheOptionsProblems; layerCache still gives numbers (L2 and refcount win)`, () => {
     const settings = { l2Cache: MiB, refcountCache: 512n * KiB, combinedCache: 8n * MiB };
-    assert.equal(checkCacheOptions(settings).ok, false);
+    assert.deepEqual(cacheOptionsProblems(settings), [{ kind: 'all-three-set' }]);
     const c = layerCache(twentyGiB, settings, linux);
     assert.deepEqual([c.l2, c.refcount], [MiB, 512n * KiB]);
   });

@@ -5,7 +5,7 @@ import { strict as assert } from 'node:assert';
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import * as path from 'node:path';
-import { ImageFacts } from '../../src/cli/lint-images';
+import { ImageFactsCache } from '../../src/image/facts-cache';
 import { TraceCurves } from '../../src/cli/lint-traces';
 import { prepareDocument } from '../../src/lint';
 import { traceRequestsOf } from '../../src/lint/traces';
@@ -71,7 +71,7 @@ describe('rule docs pages', () => {
             assert.ok(size.ok);
             writeImage(target, { version: 3, clusterBits: Number(spec[2]), virtualSize: size.value, clusters: [] });
           }
-          const facts = new ImageFacts();
+          const facts = new ImageFactsCache({ recheck: false });
           await facts.load([...found.text.matchAll(/file: (\S+)/g)].map((m) => path.join(dir as string, m[1] as string)));
           options = { images: facts.lookup };
         }

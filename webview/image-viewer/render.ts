@@ -7,6 +7,7 @@ import {
   ERROR_KIND_WORDS,
   type DrawnSummary, type ProfileChoice, type ImageView, type LayerView, type ThemeSummary, type WalkProgressView,
 } from '../../src/protocol/image-viewer';
+import { el, type Child } from '../dom';
 import { allocationPicture, pictureLegend } from './picture';
 
 export interface ViewerActions {
@@ -38,15 +39,6 @@ function profilePicker(view: ImageView, actions: ViewerActions): HTMLElement {
   const label = el('label', undefined, 'Driver defaults: ');
   label.htmlFor = select.id;
   return el('div', 'profile-row', label, select);
-}
-
-type Child = Node | string | null | undefined | false;
-
-function el<K extends keyof HTMLElementTagNameMap>(tag: K, cls?: string, ...children: Child[]): HTMLElementTagNameMap[K] {
-  const node = document.createElement(tag);
-  if (cls) node.className = cls;
-  for (const child of children) if (child !== null && child !== undefined && child !== false) node.append(child);
-  return node;
 }
 
 const count = formatCount;

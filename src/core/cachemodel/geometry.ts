@@ -2,6 +2,7 @@
 // sizing engine) so the model is self-contained: an L2 table is one cluster of L2 entries, and a cache
 // entry is either that whole table or a slice of it.
 
+import { isPowerOfTwo } from '../sizing';
 import { fail, ok, type ModelResult } from './result';
 
 export const MIN_CLUSTER_SIZE = 512n; // cluster_bits 9
@@ -23,10 +24,6 @@ export interface EntryGeometry {
   guestBytesPerEntry: bigint;
   /** True when the cache entry is a whole L2 table. */
   wholeTable: boolean;
-}
-
-export function isPowerOfTwo(value: bigint): boolean {
-  return value > 0n && (value & (value - 1n)) === 0n;
 }
 
 export function entryGeometry(clusterSize: bigint, extendedL2: boolean, entrySize?: bigint): ModelResult<EntryGeometry> {
