@@ -11,34 +11,39 @@ import type { LintFinding } from './report';
 const KNOWN_RULES: ReadonlySet<string> = new Set(RULE_IDS);
 
 /**
- * Marks the accepted findings in place and adds the findings about the accept comments themselves
- * (which the mapping file's list can accept in turn).
+ * The findings with the accepted ones marked, followed by the findings about the accept comments
+ * themselves (which the mapping file's list can accept in turn). The findings passed in are left as
+ * they are (the editor session keeps them from one edit to the next): an accepted one is a copy.
  */
-export function applyAcceptances(context: FileContext, machines: readonly MachineSpec[], findings: LintFinding[]): void {
+export function applyAcceptances(context: FileContext, machines: readonly MachineSpec[], findings: readonly LintFinding[]): LintFinding[] {
   const { document, mapping } = context;
-  const own = findings;
+  const out = [...findings];
   const rule = ruleOf('invalid-suppression');
   const { comments, problems } = readSuppressions(document, KNOWN_RULES);
-  for (const problem of problems) context.add(own, rule, { message: problem.message, pointer: '', range: problem.range });
+  for (const problem of problems) context.add(out, rule, { message: problem.message, pointer: '', range: problem.range });
+  const accept = (matches: (finding: LintFinding) => boolean, accepted: NonNullable<LintFinding['accepted']>): void => {
+    out.forEach((finding, index) => {
+      if (!finding.accepted && matches(finding)) out[index] = { ...finding, accepted };
+    });
+  };
   const scopes: { pointer: string; line: number }[] = [];
-  for (const machine of machines) {
-    if (machine.path.length > 0) scopes.push({ pointer: machine.pointer, line: machine.range.line });
-    for (const disk of machine.disks) scopes.push({ pointer: disk.pointer, line: disk.range.line });
+  if (comments.length > 0) {
+    for (const machine of machines) {
+      if (machine.path.length > 0) scopes.push({ pointer: machine.pointer, line: machine.range.line });
+      for (const disk of machine.disks) scopes.push({ pointer: disk.pointer, line: disk.range.line });
+    }
   }
   for (const comment of comments) {
     const scope = scopes.filter((s) => s.line === comment.targetLine).sort((a, b) => a.pointer.length - b.pointer.length)[0];
     if (!scope) {
-      context.add(own, rule, { message: 'this accept comment is not above a disk or machine, so it accepts nothing', pointer: '', range: comment.range });
+      context.add(out, rule, { message: 'this accept comment is not above a disk or machine, so it accepts nothing', pointer: '', range: comment.range });
       continue;
     }
-    for (const finding of findings) {
-      if (!finding.accepted && comment.rules.includes(finding.rule) && pointerWithin(finding.pointer, scope.pointer)) finding.accepted = { reason: comment.reason, from: 'comment' };
-    }
+    accept((finding) => comment.rules.includes(finding.rule) && pointerWithin(finding.pointer, scope.pointer), { reason: comment.reason, from: 'comment' });
   }
   for (const entry of mapping.accept) {
     if (entry.file !== undefined && entry.file !== document.path) continue;
-    for (const finding of findings) {
-      if (!finding.accepted && finding.rule === entry.rule && pointerWithin(finding.pointer, entry.pointer)) finding.accepted = { reason: entry.reason, from: 'mapping' };
-    }
+    accept((finding) => finding.rule === entry.rule && pointerWithin(finding.pointer, entry.pointer), { reason: entry.reason, from: 'mapping' });
   }
+  return out;
 }

@@ -10,7 +10,7 @@ import type { Mapping } from '../model/mapping';
 import { ruleOf } from '../rules';
 import { headRange } from './documents';
 import type { FileContext } from './prepare';
-import type { DiskUnit, MachineUnit, Units } from './report';
+import type { DiskResult, DiskUnit, MachineUnit, Units } from './report';
 import { runDiskRules, runMachineRules, valueProblemFindings, type DiskImage, type DiskTrace } from './rules';
 import { traceRequestFor } from './traces';
 import { measuredCurveReport, measuredReport } from './measured';
@@ -105,29 +105,15 @@ function sizeDisk(context: FileContext, disk: DiskSpec, machines: readonly Machi
   runDiskRules(context, disk, sizing, top, image, trace, machines, into);
   const curve = trace?.facts.curve;
   const measured = curve ? measuredReport(curve, top, context.mapping.assume.targetHitRatio) : undefined;
-  const measuredCurve = curve && measured ? measuredCurveReport(curve, top.entrySize, [top.l2, measured.recommendedL2Cache]) : undefined;
-  return {
-    sizing,
-    report: {
-      machine: disk.machine.name,
-      name: disk.name,
-      named: disk.named,
-      pointer: disk.pointer,
-      range: disk.range,
-      sizing: sizing.report,
-      recommended: sizing.recommended,
-      layers: sizing.layers,
-      chain,
-      extendedL2: top.geometry.extendedL2,
-      requestSize: disk.values.requestSize?.value ?? mapping.assume.requestSize,
-      pattern: disk.values.pattern?.value ?? mapping.assume.pattern,
-      ...(measured ? { measured } : {}),
-      ...(measuredCurve ? { measuredCurve } : {}),
-      ...(imagePath
-        ? { image: { path: imagePath, read: facts !== undefined && facts.problem?.layer !== 0, layers: (facts?.layers ?? []).map((l) => ({ path: l.path, format: l.format })), ...(facts?.problem ? { problem: facts.problem.message } : {}) } }
-        : {}),
-    },
-  };
+  const result: DiskResult = { sizing, chain };
+  if (curve && measured) {
+    result.measured = measured;
+    result.measuredCurve = measuredCurveReport(curve, top.entrySize, [top.l2, measured.recommendedL2Cache]);
+  }
+  if (imagePath) {
+    result.image = { path: imagePath, read: facts !== undefined && facts.problem?.layer !== 0, layers: (facts?.layers ?? []).map((l) => ({ path: l.path, format: l.format })), ...(facts?.problem ? { problem: facts.problem.message } : {}) };
+  }
+  return result;
 }
 
 /** One disk's findings (its value problems, then its rules) and sizing. */

@@ -1,9 +1,10 @@
 // The one result of linting a file: per disk its sizing and values, per machine its budget, and the
 // findings in the order they are shown. Front ends only format it.
 import type { DiskSizing, LayerCache, LayerSpec } from '../core/cache';
+import type { Mapping } from '../model/mapping';
 import type { Finding, SourceRange } from '../core/results';
 import { machineCacheUse } from '../core/sizing';
-import type { DiskSpec, DiskValues, MachineSpec } from '../model/disks';
+import type { DiskSpec, DiskValues, Located, MachineSpec } from '../model/disks';
 import { RULE_IDS, type RuleId } from '../rules';
 import { applyAcceptances } from './acceptance';
 import type { FileContext } from './prepare';
@@ -100,12 +101,20 @@ export interface FileReport {
   parsed: boolean;
 }
 
+/** What sizing a disk gave, besides its spec: the rest of its DiskReport is read from the spec when the file is assembled. */
+export interface DiskResult {
+  sizing: DiskSizing;
+  chain: LayerSpec[];
+  measured?: DiskReport['measured'];
+  measuredCurve?: DiskReport['measuredCurve'];
+  image?: DiskReport['image'];
+}
+
 /** The findings of one disk (its values and its rules) and its sizing, kept apart so an edit inside it re-checks it alone. */
 export interface DiskUnit {
   disk: DiskSpec;
   findings: LintFinding[];
-  /** The disk's report but for what the file's assembly adds (its values and findings). */
-  result?: { sizing: DiskSizing; report: Omit<DiskReport, 'values' | 'findings'> };
+  result?: DiskResult;
 }
 
 export interface MachineUnit {
@@ -144,7 +153,7 @@ export function assemble(context: FileContext, units: Units): FileReport {
       findings.push(...disk.findings);
       if (!disk.result) continue;
       indices.push(disks.length);
-      disks.push({ ...disk.result.report, range: disk.disk.range, values: reportedValues(disk.disk), findings: [] });
+      disks.push(diskReport(mapping, disk.disk, disk.result));
       diskTotals.push(disk.result.sizing.report.cacheMemoryTotal);
     }
     findings.push(...unit.ruleFindings);
@@ -164,21 +173,78 @@ export function assemble(context: FileContext, units: Units): FileReport {
       findings: [],
     });
   }
-  // Findings kept from an earlier update are judged again against today's comments.
-  for (const finding of findings) delete finding.accepted;
-  applyAcceptances(context, units.machines.map((u) => u.machine), findings);
-  findings.sort(byPlace);
-  const fileFindings = claimFindings(findings, disks, machineReports);
-  return { path: document.path, disks, machines: machineReports, findings, fileFindings, parsed: true };
+  const judged = applyAcceptances(context, units.machines.map((u) => u.machine), findings);
+  judged.sort(byPlace);
+  const fileFindings = claimFindings(judged, disks, machineReports);
+  return { path: document.path, disks, machines: machineReports, findings: judged, fileFindings, parsed: true };
 }
 
+/**
+ * A disk's part of the report, built field by field: it runs for every disk on every keystroke in
+ * the editor, and an object spread followed by more fields takes a slow path in V8.
+ */
+function diskReport(mapping: Mapping, disk: DiskSpec, result: DiskResult): DiskReport {
+  const { sizing } = result;
+  const report: DiskReport = {
+    machine: disk.machine.name,
+    name: disk.name,
+    named: disk.named,
+    pointer: disk.pointer,
+    range: disk.range,
+    sizing: sizing.report,
+    recommended: sizing.recommended,
+    layers: sizing.layers,
+    chain: result.chain,
+    extendedL2: sizing.layers[0]?.geometry.extendedL2 ?? false,
+    requestSize: disk.values.requestSize?.value ?? mapping.assume.requestSize,
+    pattern: disk.values.pattern?.value ?? mapping.assume.pattern,
+    values: reportedValues(disk),
+    findings: [],
+  };
+  if (result.measured) report.measured = result.measured;
+  if (result.measuredCurve) report.measuredCurve = result.measuredCurve;
+  if (result.image) report.image = result.image;
+  return report;
+}
+
+const reported = <T>(located: Located<T>): ReportedValue<T> => ({ value: located.value, raw: located.raw, pointer: located.pointer, range: located.range });
+
+/**
+ * The values a disk writes, in the order the extraction reads them. Field by field on purpose: this
+ * runs for every disk on every keystroke, and a loop over key names makes every access a slow
+ * lookup by name. DISK_VALUE_KEYS below makes a field added to DiskValues fail to compile until it
+ * is added here and in locatedValues.
+ */
 function reportedValues(disk: DiskSpec): DiskValuesReport {
-  const out: Record<string, ReportedValue<unknown>> = {};
-  for (const [key, located] of Object.entries(disk.values)) {
-    if (located) out[key] = { value: located.value, raw: located.raw, pointer: located.pointer, range: located.range };
-  }
+  const v = disk.values;
+  const out: DiskValuesReport = {};
+  if (v.size) out.size = reported(v.size);
+  if (v.clusterSize) out.clusterSize = reported(v.clusterSize);
+  if (v.format) out.format = reported(v.format);
+  if (v.l2Cache) out.l2Cache = reported(v.l2Cache);
+  if (v.refcountCache) out.refcountCache = reported(v.refcountCache);
+  if (v.combinedCache) out.combinedCache = reported(v.combinedCache);
+  if (v.cacheEntrySize) out.cacheEntrySize = reported(v.cacheEntrySize);
+  if (v.cleanupInterval) out.cleanupInterval = reported(v.cleanupInterval);
+  if (v.extendedL2) out.extendedL2 = reported(v.extendedL2);
+  if (v.image) out.image = reported(v.image);
+  if (v.requestSize) out.requestSize = reported(v.requestSize);
+  if (v.pattern) out.pattern = reported(v.pattern);
+  if (v.trace) out.trace = reported(v.trace);
   return out;
 }
+
+/** Every value a disk carries, for moving their ranges after an edit. */
+export function locatedValues(v: DiskValues): (Located<unknown> | undefined)[] {
+  return [v.size, v.clusterSize, v.format, v.l2Cache, v.refcountCache, v.combinedCache, v.cacheEntrySize, v.cleanupInterval, v.extendedL2, v.image, v.requestSize, v.pattern, v.trace];
+}
+
+const DISK_VALUE_KEYS = [
+  'size', 'clusterSize', 'format', 'l2Cache', 'refcountCache', 'combinedCache', 'cacheEntrySize',
+  'cleanupInterval', 'extendedL2', 'image', 'requestSize', 'pattern', 'trace',
+] as const satisfies readonly (keyof DiskValues)[];
+const everyValueKey: Exclude<keyof DiskValues, (typeof DISK_VALUE_KEYS)[number]> extends never ? true : false = true;
+void everyValueKey;
 
 /**
  * Gives each finding to the disk whose pointer holds it, else its machine, else the file; returns

@@ -1,12 +1,13 @@
 // Re-linting one file as it is edited (the editor's case). An edit inside one disk re-reads and
 // re-checks that disk alone and moves everything after it; any other edit, or one the fast path
 // cannot prove equivalent, lints the whole file through the same path as a cold lint.
-import type { SourceRange } from '../core/results';
+import type { Fix, SourceRange } from '../core/results';
 import type { SizeStyle } from '../core/units';
 import type { DefinitionDocument } from '../model/document';
-import { extractDisk, type DiskSpec, type Located, type MachineSpec } from '../model/disks';
+import { extractDisk, type DiskSpec, type MachineSpec } from '../model/disks';
 import { diffTexts, hasSharedNodes, reparseItem, type TextChange } from '../model/incremental';
 import { valueAtPath } from '../model/jsonpath';
+import type { LineIndex } from '../model/lines';
 import type { Mapping } from '../model/mapping';
 import { lintDisk } from './disks';
 import { imagePathsOf, prepareDocument } from './documents';
@@ -14,38 +15,91 @@ import { traceRequestsOfMachines } from './traces';
 import type { TraceRequest } from '../model/traces';
 import { lintPreparedUnits } from './lint';
 import { FileContext, type LintOptions } from './prepare';
-import { assemble, type DiskUnit, type FileReport, type LintFinding, type MachineUnit, type Units } from './report';
+import { assemble, locatedValues, type DiskUnit, type FileReport, type LintFinding, type MachineUnit, type Units } from './report';
 import { runMachineRules } from './rules';
 
 
-function shiftOffset(offset: number, change: TextChange): number {
-  return offset >= change.oldEnd ? offset + change.delta : offset;
-}
+/**
+ * Moves what lies outside an edit to where it sits after it: offsets after the edit shift by its
+ * length, and lines and columns are read again where they may have changed. Everything after the
+ * line the edit ends on moves by whole lines, so it keeps its columns and needs no lookup; a range
+ * that lies wholly before the edit is returned as it is.
+ */
+class Shift {
+  /** Old offsets at or after this start a line that comes whole after the edit. */
+  private readonly wholeLinesFrom: number;
+  private readonly lineDelta: number;
 
-/** Moves a range that lies outside the edited part: offsets after the edit shift, and their lines and columns are read again. */
-function shiftRange(range: SourceRange, change: TextChange, lines: DefinitionDocument['lines']): SourceRange {
-  const end = range.offset + range.length;
-  if (end < change.oldEnd && range.offset < change.oldEnd) return range;
-  const stop = end >= change.oldEnd ? end + change.delta : end;
-  // Lines move even when the length does not (a line break replaced by a character).
-  if (range.offset >= change.oldEnd) return lines.range(range.offset + change.delta, stop);
-  const to = lines.position(stop);
-  return { ...range, length: stop - range.offset, endLine: to.line, endColumn: to.column };
-}
+  constructor(readonly change: TextChange, oldLines: LineIndex, readonly lines: LineIndex) {
+    const next = oldLines.position(change.oldEnd).line + 1;
+    if (next > oldLines.lineCount) {
+      this.wholeLinesFrom = Infinity;
+      this.lineDelta = 0;
+    } else {
+      this.wholeLinesFrom = oldLines.lineStart(next);
+      this.lineDelta = lines.position(this.wholeLinesFrom + change.delta).line - next;
+    }
+  }
 
-function shiftFinding(finding: LintFinding, change: TextChange, lines: DefinitionDocument['lines']): LintFinding {
-  const shifted: LintFinding = { ...finding, range: shiftRange(finding.range, change, lines) };
-  if (finding.related) shifted.related = finding.related.map((r) => ({ ...r, range: shiftRange(r.range, change, lines) }));
-  if (finding.fix) shifted.fix = { ...finding.fix, edits: finding.fix.edits.map((e) => ({ ...e, offset: shiftOffset(e.offset, change) })) };
-  return shifted;
-}
+  offset(offset: number): number {
+    return offset >= this.change.oldEnd ? offset + this.change.delta : offset;
+  }
 
-function shiftDisk(disk: DiskSpec, change: TextChange, lines: DefinitionDocument['lines']): void {
-  disk.range = shiftRange(disk.range, change, lines);
-  for (const value of Object.values(disk.values) as (Located<unknown> | undefined)[]) if (value) value.range = shiftRange(value.range, change, lines);
-  const backing = disk.backing;
-  if (backing && 'file' in backing) backing.file.range = shiftRange(backing.file.range, change, lines);
-  if (backing && 'disk' in backing) shiftDisk(backing.disk, change, lines);
+  /** Whether a range lies wholly before the edit (then it stays as it is). */
+  keeps(range: SourceRange): boolean {
+    return range.offset + range.length < this.change.oldEnd;
+  }
+
+  range(range: SourceRange): SourceRange {
+    const { oldEnd, delta } = this.change;
+    const end = range.offset + range.length;
+    if (end < oldEnd) return range;
+    if (range.offset >= this.wholeLinesFrom) {
+      const lines = this.lineDelta;
+      return { offset: range.offset + delta, length: range.length, line: range.line + lines, column: range.column, endLine: range.endLine + lines, endColumn: range.endColumn };
+    }
+    const stop = end + delta;
+    // Lines move even when the length does not (a line break replaced by a character).
+    if (range.offset >= oldEnd) return this.lines.range(range.offset + delta, stop);
+    const to = this.lines.position(stop);
+    return { ...range, length: stop - range.offset, endLine: to.line, endColumn: to.column };
+  }
+
+  private fix(fix: Fix): Fix {
+    return fix.edits.some((e) => e.offset >= this.change.oldEnd) ? { ...fix, edits: fix.edits.map((e) => ({ ...e, offset: this.offset(e.offset) })) } : fix;
+  }
+
+  /** The finding moved, or the same object when nothing of it lies after the edit. */
+  finding(finding: LintFinding): LintFinding {
+    const { fix, alternatives, related } = finding;
+    const oldEnd = this.change.oldEnd;
+    const untouched =
+      this.keeps(finding.range) &&
+      !(fix && fix.edits.some((e) => e.offset >= oldEnd)) &&
+      !(alternatives && alternatives.some((a) => a.edits.some((e) => e.offset >= oldEnd))) &&
+      !(related && related.some((r) => r.file === undefined && !this.keeps(r.range)));
+    if (untouched) return finding;
+    // A plain copy first, then its fields replaced: a spread followed by fields takes a slow path in V8.
+    const shifted: LintFinding = { ...finding };
+    shifted.range = this.range(finding.range);
+    if (related) shifted.related = related.map((r) => (r.file === undefined ? { ...r, range: this.range(r.range) } : r));
+    if (fix) shifted.fix = this.fix(fix);
+    if (alternatives) shifted.alternatives = alternatives.map((a) => this.fix(a));
+    return shifted;
+  }
+
+  findings(findings: readonly LintFinding[]): LintFinding[] {
+    return findings.map((f) => this.finding(f));
+  }
+
+  /** Moves a disk's ranges in place (its spec is the session's own). */
+  disk(disk: DiskSpec): void {
+    disk.range = this.range(disk.range);
+    for (const value of locatedValues(disk.values)) if (value) value.range = this.range(value.range);
+    const backing = disk.backing;
+    if (backing && 'file' in backing) backing.file.range = this.range(backing.file.range);
+    if (backing && 'disk' in backing) this.disk(backing.disk);
+  }
 }
 
 interface SessionState {
@@ -138,12 +192,12 @@ export class LintSession {
     const document = reparseItem(state.document, text, change, old.disk.path);
     // From here on the previous tree has changed: any failure must read the whole file.
     if (!document) return this.full(text);
-    const { lines } = document;
+    const shift = new Shift(change, state.document.lines, document.lines);
     for (const machine of state.machines) {
-      machine.range = shiftRange(machine.range, change, lines);
-      if (machine.memory) machine.memory.range = shiftRange(machine.memory.range, change, lines);
-      if (machine.host) machine.host.range = shiftRange(machine.host.range, change, lines);
-      for (const disk of machine.disks) if (disk !== old.disk) shiftDisk(disk, change, lines);
+      machine.range = shift.range(machine.range);
+      if (machine.memory) machine.memory.range = shift.range(machine.memory.range);
+      if (machine.host) machine.host.range = shift.range(machine.host.range);
+      for (const disk of machine.disks) if (disk !== old.disk) shift.disk(disk);
     }
     const value = valueAtPath(document.data, old.disk.path);
     const machineSpec = target.machine.machine;
@@ -159,17 +213,19 @@ export class LintSession {
     const problems = extracted.problems;
     const edited = lintDisk(context, extracted.disk, problems, state.machines);
     const units: Units = {
-      other: state.units.other.map((f) => shiftFinding(f, change, lines)),
+      other: shift.findings(state.units.other),
       machines: state.units.machines.map((unit) => {
         const moved: MachineUnit = {
           machine: unit.machine,
-          valueFindings: unit.valueFindings.map((f) => shiftFinding(f, change, lines)),
-          ruleFindings: unit.ruleFindings.map((f) => shiftFinding(f, change, lines)),
-          disks: unit.disks.map((d): DiskUnit => (d === old ? edited : {
-            disk: d.disk,
-            findings: d.findings.map((f) => shiftFinding(f, change, lines)),
-            ...(d.result ? { result: { sizing: d.result.sizing, report: d.result.report } } : {}),
-          })),
+          valueFindings: shift.findings(unit.valueFindings),
+          ruleFindings: shift.findings(unit.ruleFindings),
+          disks: unit.disks.map((d): DiskUnit => {
+            if (d === old) return edited;
+            if (d.findings.length === 0) return d;
+            const moved: DiskUnit = { disk: d.disk, findings: shift.findings(d.findings) };
+            if (d.result) moved.result = d.result;
+            return moved;
+          }),
         };
         // The edited disk's machine sums its disks again.
         if (unit === target.machine) runMachineRules(context, moved);

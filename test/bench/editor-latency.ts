@@ -1,12 +1,13 @@
-// Benchmark (issue 3): what the editor pays after a keystroke, a re-lint of one definition file with
-// 2,000 disks, in process. Prints the median over many runs and its ratio to the target (under
-// 30 ms); asserts nothing (tests never assert on wall-clock time).
+// Benchmark (issue 3, issue 11 section 8): what the editor pays after a keystroke, a re-lint of one
+// definition file with 2,000 disks, in process. Prints the median over many runs and its ratio to the
+// target (under 10 ms), in wall time and in this process's CPU time (steadier when other work shares
+// the cores); asserts nothing (tests never assert on wall-clock time).
 //   npx tsx test/bench/editor-latency.ts [--disks N] [--runs N]
 import * as path from 'node:path';
 import { LintSession, lintDocument, loadMapping } from '../../src/lint';
 import { option } from './lib/options';
 
-const TARGET_MS = 30;
+const TARGET_MS = 10;
 
 const DISKS = option('disks', 2000);
 const RUNS = option('runs', 41);
@@ -70,20 +71,29 @@ function main(): void {
   session.update(text);
   const marker = text.indexOf('capacity: ', Math.floor(text.length / 2));
   const typed: number[] = [];
+  const typedCpu: number[] = [];
   let current = text;
   let fast = 0;
-  for (let i = 0; i < RUNS; i++) {
+  // more keystrokes than full lints: each is short, and the median wants many
+  const keystrokes = RUNS * 5;
+  for (let i = 0; i < keystrokes; i++) {
     const at = marker + 'capacity: '.length;
     // type a digit, then take it back, as someone editing a size
     current = i % 2 === 0 ? `${current.slice(0, at)}1${current.slice(at)}` : `${current.slice(0, at)}${current.slice(at + 1)}`;
+    const cpu = process.cpuUsage();
     const start = performance.now();
     session.update(current);
     typed.push(performance.now() - start);
+    const used = process.cpuUsage(cpu);
+    typedCpu.push((used.user + used.system) / 1000);
     if (session.lastUpdate === 'incremental') fast++;
   }
   typed.sort((a, b) => a - b);
+  typedCpu.sort((a, b) => a - b);
   const typedMedian = typed[Math.floor(typed.length / 2)] ?? NaN;
-  console.log(`  editor session, a keystroke inside one disk: median ${typedMedian.toFixed(1)} ms, fastest ${typed[0]?.toFixed(1)} ms, slowest ${typed.at(-1)?.toFixed(1)} ms (${fast} of ${RUNS} re-checked one disk)`);
+  const cpuMedian = typedCpu[Math.floor(typedCpu.length / 2)] ?? NaN;
+  console.log(`  editor session, a keystroke inside one disk: median ${typedMedian.toFixed(1)} ms, fastest ${typed[0]?.toFixed(1)} ms, slowest ${typed.at(-1)?.toFixed(1)} ms (${fast} of ${keystrokes} re-checked one disk)`);
+  console.log(`  the same in CPU time of this process: median ${cpuMedian.toFixed(1)} ms`);
   console.log(`  ${(typedMedian / TARGET_MS).toFixed(2)} of the ${TARGET_MS} ms target: ${typedMedian < TARGET_MS ? 'within target' : 'over target'}`);
 }
 
