@@ -1,27 +1,9 @@
 // `cachewright compare` as text for people and as JSON (docs/cli.md) for tools.
 import { stringifyJson } from '../core/json';
 import { formatSize } from '../core/format';
-import type { ComparedFinding, Comparison, DiskRef } from '../review/compare';
+import type { ComparedFinding, DiskRef } from '../review/compare';
+import { headline, plural, signedSize } from '../review/summary';
 import type { CompareOutcome } from './compare';
-
-const plural = (count: number, one: string, many = `${one}s`) => `${count} ${count === 1 ? one : many}`;
-
-/** "+256 MiB", "-1 GiB", "0 B": a change in bytes with its sign. */
-export function signedSize(delta: bigint): string {
-  if (delta === 0n) return '0 B';
-  return `${delta > 0n ? '+' : '-'}${formatSize(delta > 0n ? delta : -delta)}`;
-}
-
-/** One sentence on what head adds and settles. */
-export function headline(comparison: Comparison): string {
-  const { added, findings, memory } = comparison;
-  const adds = [added.errors > 0 ? plural(added.errors, 'error') : '', added.warnings > 0 ? plural(added.warnings, 'warning') : '', added.infos > 0 ? `${added.infos} info` : ''].filter(Boolean);
-  const parts = [adds.length > 0 ? `adds ${adds.join(', ')}` : 'adds no findings'];
-  if (findings.settled.length > 0) parts.push(`settles ${plural(findings.settled.length, 'finding')}`);
-  const total = memory.total;
-  const memoryText = total.delta === 0n ? `leaves disk cache memory at ${formatSize(total.after)}` : `takes disk cache memory from ${formatSize(total.before)} to ${formatSize(total.after)} (${signedSize(total.delta)})`;
-  return `This change ${parts.join(' and ')}, and ${memoryText}.`;
-}
 
 function findingLine(f: ComparedFinding): string {
   const subject = f.host !== undefined ? `host ${f.host}` : [f.machine, f.disk].filter((p) => p !== undefined).join(' / ');

@@ -9,9 +9,9 @@ import { identify } from '../review/identity';
 import { compareWithKnown, entryOf } from '../review/known';
 import { compareRuns, type Comparison } from '../review/compare';
 import { lastOption, parseArgs, type OptionSpec } from './args';
-import { extractRevision } from './compare-git';
+import { extractRevision } from '../git/revision';
 import { renderCompareJson, renderCompareText } from './compare-output';
-import { renderCompareMarkdown } from './compare-markdown';
+import { renderCompareMarkdown } from '../review/markdown';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { displayPath, findMappingFile, loadMappingText, selectFiles, stripBom } from './lint-discovery';
 import type { LintRequest } from './lint-file';
@@ -194,7 +194,7 @@ export async function runCompare(argv: readonly string[], io: CommandIO, version
         io.stdout(renderCompareJson(outcome, version));
         break;
       case 'markdown':
-        io.stdout(renderCompareMarkdown(outcome, { ...(request.linkBase !== undefined ? { linkBase: request.linkBase } : {}), ...(request.allowWarnings !== undefined ? { allowWarnings: request.allowWarnings } : {}) }));
+        io.stdout(renderCompareMarkdown({ comparison, baseLabel: base.label }, { ...(request.linkBase !== undefined ? { linkBase: request.linkBase } : {}), ...(request.allowWarnings !== undefined ? { allowWarnings: request.allowWarnings } : {}) }));
         break;
       case 'sarif':
         head.run.known = compareWithKnown(headFiles, identify(baseFiles).map(entryOf));

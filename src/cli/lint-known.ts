@@ -3,15 +3,15 @@
 import * as fs from 'node:fs';
 import { fail, ok, type Outcome } from '../core/results';
 import { compareWithKnown, readKnownFile, recordKnown, renderKnownFile, type KnownComparison } from '../review/known';
-import type { ReviewedFile } from '../review/types';
+import { reviewedFiles as reviewedFilesOf, type ReviewedFile } from '../review/types';
 import { ioMessage, readRegularText } from '../files/open';
 import { displayPath, stripBom } from './lint-discovery';
 import { writeFileAtomic } from './lint-fix';
-import { mappingRelative, type LintRun } from './lint-results';
+import type { LintRun } from './lint-results';
 
 /** The files of a run as the review reads them; the findings are the run's own objects. */
 export function reviewedFiles(run: Pick<LintRun, 'mapping' | 'files'>): ReviewedFile[] {
-  return run.files.flatMap((file) => (file.report ? [{ path: mappingRelative(run.mapping, file.path), disks: file.report.disks, machines: file.report.machines, findings: file.report.findings }] : []));
+  return reviewedFilesOf(run.mapping.dir, run.files);
 }
 
 export function compareRunWithKnown(run: Pick<LintRun, 'mapping' | 'files'>, knownPath: string, cwd: string): Outcome<KnownComparison> {

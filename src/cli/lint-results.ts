@@ -1,8 +1,8 @@
 // What one `cachewright lint` run produced, in the shape every output format reads: the files with
 // their reports, and the counts the summary line and the exit code are computed from.
-import * as nodePath from 'node:path';
 import type { FileReport, Finding, Mapping } from '../lint';
 import type { BaselineState, KnownComparison } from '../review/known';
+import { relativeToMapping } from '../review/types';
 
 /** What the outputs read of a disk's report (the panel's DiskView is another shape, in src/protocol/panel.ts). */
 export type OutputDisk = Pick<FileReport['disks'][number], 'machine' | 'name' | 'named' | 'pointer' | 'sizing' | 'recommended' | 'values' | 'measured'>;
@@ -103,5 +103,5 @@ export function shownFindings(run: LintRun, report: OutputReport): Finding[] {
 
 /** A definition file's path relative to the mapping file's folder, with forward slashes. */
 export function mappingRelative(mapping: Mapping, absolutePath: string): string {
-  return nodePath.relative(mapping.dir, absolutePath).split(nodePath.sep).join('/');
+  return relativeToMapping(mapping.dir, absolutePath);
 }

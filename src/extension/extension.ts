@@ -14,6 +14,7 @@ import { CacheStatus } from './status-bar';
 import { proposeMapping } from './starter-proposal';
 import { setDiskSizesEdit } from '../model/disk-edits';
 import { registerImageViewer } from './image-viewer';
+import { compareWithRevision, ReviewDocuments, type CompareRequest } from './compare-revision';
 import type { WhatIfValues } from '../protocol/panel';
 
 /** What the extension exports: read by the integration tests, useful to other extensions. */
@@ -37,6 +38,7 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
   const timings: Timings = { activatedAt: Date.now() };
   const linting = new Linting(context.extensionUri, timings);
   const status = new CacheStatus();
+  const reviews = new ReviewDocuments();
   let panelUpdateMs: number | undefined;
   let panelUpdates = 0;
   let lastDefinition: vscode.Uri | undefined;
@@ -165,6 +167,8 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
       void vscode.window.setStatusBarMessage(`cachewright: applied ${applied} fix${applied === 1 ? '' : 'es'} (not saved)`, 5000);
       return applied;
     }),
+    reviews,
+    vscode.commands.registerCommand('cachewright.compareWithRevision', (request?: CompareRequest) => compareWithRevision(linting.mappings.all(), reviews, request)),
     vscode.commands.registerCommand('cachewright.createStarterMapping', (options?: { confirm?: boolean }) =>
       createStarterMapping(linting, activeDocument(), options?.confirm !== false)),
   );

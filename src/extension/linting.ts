@@ -1,10 +1,7 @@
 // Keeps every included definition's lint result current: open documents as the user types
 // (debounced), the rest of the workspace in the background and through a file watcher, and the
 // mapping files themselves, whose own problems show at their positions.
-import * as path from 'node:path';
 import * as vscode from 'vscode';
-// Loaded through require so the bundle takes the package's CommonJS build.
-import tinyglobby = require('tinyglobby');
 import { LintSession, oversizedFileReport, type FileReport, type Mapping } from '../lint';
 import { ImageFactsCache } from '../image/facts-cache';
 import { TraceCurveCache, type RunningTraceJob } from './traces';
@@ -12,6 +9,7 @@ import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
 import { isMappingFileName, Mappings, readDefinitionText } from './mappings';
 import { readSettings } from './settings';
 import { WorkspaceHosts } from './workspace-hosts';
+import { includedFiles } from './included-files';
 
 export interface LintResult {
   uri: vscode.Uri;
@@ -320,15 +318,8 @@ export class Linting implements vscode.Disposable {
   private async includedFiles(): Promise<vscode.Uri[]> {
     const found = new Map<string, vscode.Uri>();
     for (const state of this.mappings.all()) {
-      const mapping = state.mapping;
-      if (!mapping) continue;
-      const globs = mapping.file.include && mapping.file.include.length > 0 ? mapping.file.include : ['**/*.{yaml,yml,json}'];
-      // The mapping decides what is included; the walk only proposes candidates below its folder.
-      const paths = await tinyglobby.glob(globs, { cwd: mapping.dir, absolute: true, ignore: ['**/node_modules/**', '**/.git/**'] });
-      for (const file of paths) {
-        const uri = vscode.Uri.file(path.normalize(file));
-        if (mapping.includes(uri.fsPath) && uri.fsPath !== state.uri.fsPath) found.set(uri.toString(), uri);
-      }
+      if (!state.mapping) continue;
+      for (const uri of await includedFiles(state.mapping)) found.set(uri.toString(), uri);
     }
     return [...found.values()].sort((a, b) => a.fsPath.localeCompare(b.fsPath));
   }

@@ -15,7 +15,7 @@ import type { LintFinding, MachineReport } from './report';
 export interface WorkspaceFile {
   /** Absolute path. */
   path: string;
-  machines: readonly Pick<MachineReport, 'name' | 'pointer' | 'range' | 'memory' | 'host' | 'hostPointer' | 'hostRange' | 'cacheMemoryTotal'>[];
+  machines: readonly Pick<MachineReport, 'name' | 'pointer' | 'range' | 'memory' | 'host' | 'hostPointer' | 'hostRange' | 'cacheMemoryTotal' | 'hostAcceptances'>[];
   /** The file's findings: the step appends to this list in place. */
   findings: LintFinding[];
 }
@@ -91,8 +91,11 @@ export function lintHosts(files: readonly WorkspaceFile[], mapping: Mapping, opt
             host,
             written: host,
           };
+          // An accept comment on the first machine or its host line, else the mapping file's list.
+          const comment = file.machines.find((m) => m.hostPointer === first.host.pointer)?.hostAcceptances?.find((a) => a.rules.includes(rule.id));
+          if (comment) finding.accepted = { reason: comment.reason, from: 'comment' };
           const accepted = mapping.accept.find((entry) => entry.rule === rule.id && (entry.file === undefined || entry.file === first.file) && pointerWithin(finding.pointer, entry.pointer));
-          if (accepted) finding.accepted = { reason: accepted.reason, from: 'mapping' };
+          if (accepted && !finding.accepted) finding.accepted = { reason: accepted.reason, from: 'mapping' };
           file.findings.push(finding);
           file.findings.sort((a, b) => a.range.offset - b.range.offset);
         },

@@ -6,7 +6,7 @@ import type { Finding, SourceRange } from '../core/results';
 import { machineCacheUse } from '../core/sizing';
 import type { DiskSpec, DiskValues, Located, MachineSpec } from '../model/disks';
 import { RULE_IDS, type RuleId } from '../rules';
-import { applyAcceptances } from './acceptance';
+import { applyAcceptances, type HostAcceptance } from './acceptance';
 import type { FileContext } from './prepare';
 
 /** A finding of one of the registry's rules. */
@@ -84,6 +84,8 @@ export interface MachineReport {
   hostRange?: SourceRange;
   budget?: bigint;
   cacheMemoryTotal: bigint;
+  /** Accept comments on the machine or its host line: what they accept of its host's findings. */
+  hostAcceptances?: HostAcceptance[];
   /** Indices into FileReport.disks. */
   disks: number[];
   /** Indices into FileReport.findings: the machine's own, not those of its disks. */
@@ -173,7 +175,11 @@ export function assemble(context: FileContext, units: Units): FileReport {
       findings: [],
     });
   }
-  const judged = applyAcceptances(context, units.machines.map((u) => u.machine), findings);
+  const { findings: judged, hostAcceptances } = applyAcceptances(context, units.machines.map((u) => u.machine), findings);
+  for (const machine of machineReports) {
+    const accepts = hostAcceptances.get(machine.pointer);
+    if (accepts && machine.host !== undefined) machine.hostAcceptances = accepts;
+  }
   judged.sort(byPlace);
   const fileFindings = claimFindings(judged, disks, machineReports);
   return { path: document.path, disks, machines: machineReports, findings: judged, fileFindings, parsed: true };

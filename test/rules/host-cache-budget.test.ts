@@ -131,6 +131,20 @@ describe(`rule ${RULE}`, () => {
     assert.deepEqual(reports[0]?.findings.find((f) => f.rule === RULE)?.accepted, { reason: 'host gets more memory next quarter', from: 'mapping' });
   });
 
+  it(`${CONTRACT} an accept comment on the first machine's host line accepts it (at the end of the line or above it)`, () => {
+    const trailing = 'machines:\n  - name: m1\n    host: hv-a  # cachewright-accept host-cache-budget: moves to a larger host in May\n    memory: 64G\n    disks:\n      - ' + BIG + '\n';
+    const above = 'machines:\n  - name: m1\n    # cachewright-accept host-cache-budget: moves to a larger host in May\n    host: hv-a\n    memory: 64G\n    disks:\n      - ' + BIG + '\n';
+    for (const text of [trailing, above]) {
+      const { reports } = lintAll({ files: { 'a.yaml': text } });
+      const findings = reports[0]?.findings ?? [];
+      assert.deepEqual(findings.find((f) => f.rule === RULE)?.accepted, { reason: 'moves to a larger host in May', from: 'comment' }, text);
+      assert.equal(findings.filter((f) => f.rule === 'invalid-suppression').length, 0, 'the comment is in a place that accepts something');
+    }
+    // On a machine that is not the first on the host, it accepts nothing: the finding is not there.
+    const { reports } = lintAll({ files: { 'a.yaml': file(machine('m1', 'hv-a', BIG, '40G')), 'b.yaml': trailing.replace('name: m1', 'name: m2').replace('64G', '30G') } });
+    assert.equal(reports[0]?.findings.find((f) => f.rule === RULE)?.accepted, undefined);
+  });
+
   it(`${CACHE} the host reports the editor shows hold the numbers the rule judges`, () => {
     const { reports } = lintAll({
       files: { 'a.yaml': file(machine('m1', 'hv-a', BIG, '40G')), 'b.yaml': file(machine('m2', 'hv-b', SMALL), machine('m3', 'hv-a', SMALL, '30G')) },

@@ -14,23 +14,24 @@ const MAY_IMPORT: Record<string, readonly string[]> = {
   model: ['core'],
   rules: ['core', 'model'],
   files: [],
+  git: ['core'],
   image: ['core', 'model', 'files'],
   trace: ['core', 'model', 'files'],
   lint: ['core', 'model', 'rules', 'image', 'trace'],
   review: ['core', 'model', 'rules', 'lint'],
   protocol: ['core', 'image'],
-  cli: ['core', 'model', 'rules', 'files', 'image', 'trace', 'lint', 'review', 'protocol'],
-  extension: ['core', 'model', 'rules', 'files', 'image', 'trace', 'lint', 'review', 'protocol'],
+  cli: ['core', 'model', 'rules', 'files', 'git', 'image', 'trace', 'lint', 'review', 'protocol'],
+  extension: ['core', 'model', 'rules', 'files', 'git', 'image', 'trace', 'lint', 'review', 'protocol'],
   webview: ['core', 'protocol'],
 };
 
 /** Outside modules only some layers may use, and why. */
 const RESTRICTED: { test: (spec: string) => boolean; what: string; allowed: readonly string[] }[] = [
   { test: (s) => s === 'vscode', what: 'the editor API', allowed: ['extension'] },
-  { test: (s) => /^(node:)?fs(\/promises)?$/.test(s), what: 'the file system', allowed: ['files', 'image', 'trace', 'cli', 'extension'] },
-  { test: (s) => /^(node:)?child_process$/.test(s), what: 'running programs (git)', allowed: ['cli'] },
+  { test: (s) => /^(node:)?fs(\/promises)?$/.test(s), what: 'the file system', allowed: ['files', 'git', 'image', 'trace', 'cli', 'extension'] },
+  { test: (s) => /^(node:)?child_process$/.test(s), what: 'running programs (git)', allowed: ['git'] },
   // Pure layers run anywhere, the webview in a browser: no Node built-in at all.
-  { test: (s) => s.startsWith('node:'), what: 'a Node built-in', allowed: ['model', 'rules', 'files', 'image', 'trace', 'lint', 'review', 'cli', 'extension'] },
+  { test: (s) => s.startsWith('node:'), what: 'a Node built-in', allowed: ['model', 'rules', 'files', 'git', 'image', 'trace', 'lint', 'review', 'cli', 'extension'] },
 ];
 
 function layerOf(file: string): string | undefined {
@@ -113,7 +114,7 @@ describe('layers (docs/architecture.md)', () => {
     const file = path.join(ROOT, 'src', 'core', 'probe', 'probe.ts');
     const broken = layerViolations(file, "import * as fs from 'node:fs';\nimport { lintDocument } from '../../lint';\nexport const probe = [fs, lintDocument];\n");
     assert.equal(broken.length, 3, broken.join('\n'));
-    assert.match(broken[0] ?? '', /probe\.ts:1 imports "node:fs": the file system is for files, image, trace, cli, extension only, not core/);
+    assert.match(broken[0] ?? '', /probe\.ts:1 imports "node:fs": the file system is for files, git, image, trace, cli, extension only, not core/);
     assert.match(broken[2] ?? '', /probe\.ts:2 imports "\.\.\/\.\.\/lint": core may import only core, not lint/);
   });
 

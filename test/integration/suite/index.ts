@@ -8,6 +8,7 @@ const testFiles: Array<() => unknown> = [
   () => require('./activation.test'),
   () => require('./diagnostics.test'),
   () => require('./hosts.test'),
+  () => require('./compare.test'),
   () => require('./mapping-and-commands.test'),
   () => require('./settings.test'),
   () => require('./image-viewer.test'),

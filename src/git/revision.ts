@@ -1,5 +1,6 @@
-// `cachewright compare --git REF`: the base side read from a git revision into a temporary folder
-// with `git archive`, so the work tree, the index and HEAD are never touched. Only the CLI runs git.
+// The base side of a review read from a git revision (`cachewright compare --git REF`, the editor's
+// "Compare with a git revision..."): extracted into a temporary folder with `git archive`, so the
+// work tree, the index and HEAD are never touched. This layer alone runs git.
 import { spawn, spawnSync } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as os from 'node:os';
@@ -64,4 +65,25 @@ export async function extractRevision(ref: string, headDir: string): Promise<Out
   const baseDir = nodePath.join(folder, ...prefix.value.split('/').filter((p) => p !== ''));
   fs.mkdirSync(baseDir, { recursive: true });
   return ok({ baseDir, commit: commit.value, remove });
+}
+
+export interface Revisions {
+  branches: string[];
+  tags: string[];
+}
+
+/** The branches (local, then remote) and tags of the repository `dir` is in, for a revision picker. */
+export function listRevisions(dir: string): Outcome<Revisions> {
+  const top = git(dir, ['rev-parse', '--show-toplevel']);
+  if (!top.ok) return fail(`${dir} is not inside a git repository (${top.error})`);
+  const refs = git(dir, ['for-each-ref', '--format=%(refname)', 'refs/heads', 'refs/remotes', 'refs/tags']);
+  if (!refs.ok) return fail(refs.error);
+  const branches: string[] = [];
+  const tags: string[] = [];
+  for (const ref of refs.value.split('\n')) {
+    if (ref.startsWith('refs/heads/')) branches.push(ref.slice('refs/heads/'.length));
+    else if (ref.startsWith('refs/remotes/') && !ref.endsWith('/HEAD')) branches.push(ref.slice('refs/remotes/'.length));
+    else if (ref.startsWith('refs/tags/')) tags.push(ref.slice('refs/tags/'.length));
+  }
+  return ok({ branches, tags });
 }

@@ -1,10 +1,9 @@
-// `cachewright compare --format markdown`: a summary a CI job posts on a pull request or writes to
-// its job summary. Plain CommonMark with tables and <details>, which the common code-hosting
+// The review as markdown (`cachewright compare --format markdown`, the editor's "Compare with a
+// git revision..."): a summary a CI job posts on a pull request or writes to its job summary. Plain CommonMark with tables and <details>, which the common code-hosting
 // services all render; no colours, badges or emoji that only one of them draws.
 import { formatSize } from '../core/format';
-import type { ComparedFinding, DiskChange, DiskRef } from '../review/compare';
-import type { CompareOutcome } from './compare';
-import { headline, signedSize } from './compare-output';
+import type { ComparedFinding, Comparison, DiskChange, DiskRef } from './compare';
+import { headline, plural, signedSize } from './summary';
 
 export interface MarkdownOptions {
   /** Prefix for file links (a URL ending in "/"); without it links are relative. */
@@ -15,8 +14,6 @@ export interface MarkdownOptions {
 /** Text safe inside a table cell or a list item: no HTML, no cell breaks, no line breaks. */
 const escape = (text: string) => text.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/\|/g, '\\|').replace(/\r?\n/g, ' ');
 const code = (text: string) => `\`${text.replace(/`/g, "'")}\``;
-const plural = (count: number, one: string, many = `${one}s`) => `${count} ${count === 1 ? one : many}`;
-
 function link(file: string, line: number, options: MarkdownOptions): string {
   const target = `${options.linkBase ?? ''}${file.split('/').map(encodeURIComponent).join('/')}#L${line}`;
   return `[${escape(file)}:${line}](${target})`;
@@ -45,14 +42,20 @@ function details(summary: string, lines: string[]): string[] {
   return ['<details>', `<summary>${summary}</summary>`, '', ...lines, '', '</details>', ''];
 }
 
-export function renderCompareMarkdown(outcome: CompareOutcome, options: MarkdownOptions = {}): string {
-  const { comparison, base } = outcome;
+/** What the summary reads: the comparison, and what the base is called (a revision, a folder). */
+export interface ReviewSummary {
+  comparison: Comparison;
+  baseLabel: string;
+}
+
+export function renderCompareMarkdown(summary: ReviewSummary, options: MarkdownOptions = {}): string {
+  const { comparison, baseLabel } = summary;
   const { findings, memory, disks, added } = comparison;
   const fails = added.errors > 0 || (options.allowWarnings !== undefined && added.warnings > options.allowWarnings);
   const out: string[] = [
     '### cachewright review',
     '',
-    `${headline(comparison)} Compared with ${code(base.label)}; **${fails ? 'this check fails' : 'this check passes'}**.`,
+    `${headline(comparison)} Compared with ${code(baseLabel)}; **${fails ? 'this check fails' : 'this check passes'}**.`,
     '',
   ];
 
