@@ -1,6 +1,7 @@
 // Keeps every included definition's lint result current: open documents as the user types
 // (debounced), the rest of the workspace in the background and through a file watcher, and the
 // mapping files themselves, whose own problems show at their positions.
+import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { LintSession, oversizedFileReport, type FileReport, type Mapping } from '../lint';
 import { ImageFactsCache } from '../image/facts-cache';
