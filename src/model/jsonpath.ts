@@ -199,7 +199,13 @@ export function pointerWithin(pointer: string, scope: string): boolean {
 
 /** RFC 6901: "~" is written "~0" and "/" is written "~1". */
 export function toJsonPointer(path: readonly PathSegment[]): string {
-  return path.map((segment) => `/${String(segment).replace(/~/g, '~0').replace(/\//g, '~1')}`).join('');
+  let pointer = '';
+  for (const segment of path) {
+    const text = String(segment);
+    // Most keys hold neither character: skip the two replacements (this runs for every value of every disk).
+    pointer += `/${text.includes('~') || text.includes('/') ? text.replace(/~/g, '~0').replace(/\//g, '~1') : text}`;
+  }
+  return pointer;
 }
 
 export function parseJsonPointer(pointer: string): Outcome<PathSegment[]> {

@@ -10,8 +10,27 @@ import { accessOfPattern } from '../core/workload';
 import { ratio, share, size } from './format';
 import { docsPage, type Rule } from './types';
 
+/**
+ * Sentences already computed, by their inputs: a fleet repeats a few geometries, caches and patterns
+ * over thousands of disks, and the model's evaluation costs more than the rest of the rule. The text
+ * is a pure function of the key; the map is emptied when it grows past a bound.
+ */
+const PREDICTIONS = new Map<string, string>();
+const PREDICTIONS_BOUND = 4096;
+
 /** What the miss rate costs, from the cache model (docs/sources.md [IRM], [CHE]). */
 function prediction(top: LayerCache, pattern: string, requestSize: bigint): string {
+  const { virtualSize, clusterSize, extendedL2 } = top.geometry;
+  const key = `${pattern}\0${requestSize}\0${virtualSize}\0${clusterSize}\0${extendedL2}\0${top.entrySize}\0${top.l2}`;
+  const known = PREDICTIONS.get(key);
+  if (known !== undefined) return known;
+  const text = predictionText(top, pattern, requestSize);
+  if (PREDICTIONS.size >= PREDICTIONS_BOUND) PREDICTIONS.clear();
+  PREDICTIONS.set(key, text);
+  return text;
+}
+
+function predictionText(top: LayerCache, pattern: string, requestSize: bigint): string {
   const access = accessOfPattern(pattern);
   if (!access.ok) return '';
   const { virtualSize, clusterSize, extendedL2 } = top.geometry;
