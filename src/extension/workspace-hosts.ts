@@ -31,7 +31,7 @@ export class WorkspaceHosts implements vscode.Disposable {
   /** Host reports by mapping file path. */
   private reports = new Map<string, HostReport[]>();
   private readonly emitter = new vscode.EventEmitter<void>();
-  /** Fires after each pass: host findings and reports are current. */
+  /** Fires after a pass that changed the host reports. */
   readonly onDidUpdate = this.emitter.event;
   /** Passes run so far (the tests wait for one after an edit). */
   passes = 0;
@@ -67,13 +67,15 @@ export class WorkspaceHosts implements vscode.Disposable {
       reports.set(mappingPath, hostReports(workspace, mapping));
     }
     const before = this.findings;
+    const reportsBefore = this.reports;
     this.findings = findings;
     this.reports = reports;
     this.passes++;
     for (const key of new Set([...before.keys(), ...findings.keys()])) {
       if (JSON.stringify(before.get(key) ?? [], jsonBigint) !== JSON.stringify(findings.get(key) ?? [], jsonBigint)) this.source.republish(vscode.Uri.parse(key));
     }
-    this.emitter.fire();
+    // The status bar and the panel redraw only when a host's figures or machines changed.
+    if (JSON.stringify([...reportsBefore], jsonBigint) !== JSON.stringify([...reports], jsonBigint)) this.emitter.fire();
   }
 
   /**

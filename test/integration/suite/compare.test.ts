@@ -60,6 +60,17 @@ describe('compare with a git revision', () => {
       const preview = await waitFor('the markdown preview', () => vscode.window.tabGroups.all.flatMap((g) => g.tabs)
         .find((t) => t.input instanceof vscode.TabInputWebview && /markdown\.preview/.test(t.input.viewType) && t.label.includes('timetable-v1')));
       assert.ok(preview.label.includes('timetable-v1'), preview.label);
+      // Without a revision the command offers the branches, then the tags: accepting the first item takes the branch.
+      let settled = false;
+      const picked = vscode.commands.executeCommand<CompareResult>('cachewright.compareWithRevision').then((r) => { settled = true; return r; });
+      await waitFor('the revision picker to be answered', async () => {
+        if (!settled) await vscode.commands.executeCommand('workbench.action.acceptSelectedQuickOpenItem');
+        return settled;
+      });
+      const viaPicker = await picked;
+      assert.ok(viaPicker.ok, viaPicker.ok ? '' : viaPicker.error);
+      assert.equal(viaPicker.revision, 'main');
+      assert.match(viaPicker.markdown, /Compared with `main`/);
       // The base came from the revision alone: the work tree and the index are as they were.
       assert.equal(git('status', '--porcelain', '--untracked-files=no'), '');
     } finally {
