@@ -137,6 +137,8 @@ function main(): void {
     console.log(`  floor (read + yaml parse)     ${wall(floor).toFixed(0).padStart(8)} ms ${cpu(floor).toFixed(0).padStart(6)} ms`);
     console.log(`  cachewright lint --format json   ${wall(lint).toFixed(0).padStart(8)} ms ${cpu(lint).toFixed(0).padStart(6)} ms   (${os.availableParallelism()} cores)`);
     console.log(`  the same, CACHEWRIGHT_JOBS=1     ${wall(single).toFixed(0).padStart(8)} ms ${cpu(single).toFixed(0).padStart(6)} ms`);
+    const range = (s: Sample[]) => `${Math.min(...s.map((x) => x.wallMs)).toFixed(0)}-${Math.max(...s.map((x) => x.wallMs)).toFixed(0)}`;
+    console.log(`  wall spread over the runs: floor ${range(floor)} ms, lint ${range(lint)} ms, one thread ${range(single)} ms`);
     console.log(`  ratio ${ratio.toFixed(2)}x wall (target <= ${TARGET_RATIO}x): ${ratio <= TARGET_RATIO ? 'within target' : 'over target'}`);
     console.log(`  one thread: ${(wall(single) / wall(floor)).toFixed(2)}x wall, ${(cpu(single) / cpu(floor)).toFixed(2)}x cpu`);
   } finally {
