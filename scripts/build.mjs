@@ -15,6 +15,11 @@ if (existsSync('src/extension/extension.ts')) {
   targets.push({ ...common, entryPoints: ['src/extension/extension.ts'], outfile: 'dist/extension.js',
     platform: 'node', format: 'cjs', external: ['vscode'] });
 }
+// The worker thread that measures I/O traces for the editor: its own file, loaded by path at run time.
+if (existsSync('src/extension/trace-worker.ts')) {
+  targets.push({ ...common, entryPoints: ['src/extension/trace-worker.ts'], outfile: 'dist/trace-worker.js',
+    platform: 'node', format: 'cjs' });
+}
 if (existsSync('webview/main.ts')) {
   targets.push({ ...common, entryPoints: ['webview/main.ts'], outfile: 'dist/webview.js',
     platform: 'browser', format: 'iife' });

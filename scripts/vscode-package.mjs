@@ -11,7 +11,7 @@ try {
   console.error('package: the build failed (its message is above)');
   process.exit(1);
 }
-for (const needed of ['dist/extension.js', 'dist/webview.js', 'schema/cachewright.schema.json']) {
+for (const needed of ['dist/extension.js', 'dist/trace-worker.js', 'dist/webview.js', 'schema/cachewright.schema.json']) {
   if (!existsSync(needed)) {
     console.error(`package: ${needed} is missing`);
     process.exit(1);

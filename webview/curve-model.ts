@@ -21,13 +21,15 @@ export interface ChartInput {
   /** The L2 cache that covers the whole disk with the entry size in use. */
   fullCoverage: bigint;
   points?: number;
+  /** The curve measured on the disk's trace (the engine's points) and the cache it recommends. */
+  measured?: { points: readonly { cacheBytes: bigint; hitRatio: number }[]; recommended: bigint };
 }
 
 /** The drawing area, in SVG user units. */
 export const CHART = { width: 480, height: 210, left: 40, right: 14, top: 40, bottom: 26 } as const;
 
-export type SeriesId = 'table' | 'slice';
-export type MarkId = 'configured' | 'effective' | 'full';
+export type SeriesId = 'table' | 'slice' | 'measured';
+export type MarkId = 'configured' | 'effective' | 'recommended' | 'full';
 
 export interface ChartPoint {
   cacheBytes: bigint;
@@ -137,7 +139,14 @@ function sizeTicks(minBytes: bigint, maxBytes: bigint): Tick[] {
 
 const RATIO_TICKS = [0, 0.25, 0.5, 0.75, 1];
 
-function seriesOf(id: SeriesId, curve: CacheCurve, inUse: boolean, minBytes: bigint, maxBytes: bigint): ChartSeries {
+/** The measured hit ratio at a size: the point at or below it (exact at the engine's points and marks; a cache never hits less with more room). */
+export function measuredAt(points: readonly { cacheBytes: bigint; hitRatio: number }[], bytes: bigint): number {
+  let ratio = 0;
+  for (const p of points) if (p.cacheBytes <= bytes) ratio = Math.max(ratio, p.hitRatio);
+  return ratio;
+}
+
+function seriesOf(id: SeriesId, curve: { points: readonly { cacheBytes: bigint; hitRatio: number }[]; entrySize: bigint; fullCoverageBytes: bigint }, inUse: boolean, minBytes: bigint, maxBytes: bigint): ChartSeries {
   const points = curve.points.map((p) => ({
     cacheBytes: p.cacheBytes,
     hitRatio: p.hitRatio,
@@ -147,7 +156,8 @@ function seriesOf(id: SeriesId, curve: CacheCurve, inUse: boolean, minBytes: big
   const steps = points.map((p, i) => `${i === 0 ? 'M' : 'L'}${p.x},${p.y}`);
   const last = points[points.length - 1];
   if (last && last.cacheBytes < maxBytes) steps.push(`L${round2(xOf(maxBytes, minBytes, maxBytes))},${last.y}`);
-  const label = id === 'table' ? `whole L2 tables (${formatSize(curve.entrySize)})` : `${formatSize(curve.entrySize)} cache entries`;
+  const label = id === 'measured' ? `measured on the trace (${formatSize(curve.entrySize)} cache entries)`
+    : id === 'table' ? `whole L2 tables (${formatSize(curve.entrySize)})` : `${formatSize(curve.entrySize)} cache entries`;
   return { id, label, entrySize: curve.entrySize, inUse, fullCoverageBytes: curve.fullCoverageBytes, points, path: steps.join(' ') };
 }
 
@@ -203,6 +213,8 @@ export function chartModel(input: ChartInput): ChartOutcome {
   const wanted: Array<{ id: MarkId; name: string; bytes: bigint }> = [];
   if (input.configured !== undefined && input.configured > 0n) wanted.push({ id: 'configured', name: 'configured', bytes: input.configured });
   if (input.effective > 0n) wanted.push({ id: 'effective', name: 'effective', bytes: input.effective });
+  const measured = input.measured && input.measured.points.length > 0 ? input.measured : undefined;
+  if (measured && measured.recommended > 0n) wanted.push({ id: 'recommended', name: 'measured target', bytes: measured.recommended });
   if (input.fullCoverage > 0n) wanted.push({ id: 'full', name: 'full coverage', bytes: input.fullCoverage });
 
   let lowest: bigint | undefined;
@@ -213,15 +225,21 @@ export function chartModel(input: ChartInput): ChartOutcome {
     if (bytes > highest) highest = bytes;
   };
   for (const { curve } of drawn) for (const p of curve.points) take(p.cacheBytes);
+  for (const p of measured?.points ?? []) take(p.cacheBytes);
   for (const mark of wanted) take(mark.bytes);
   const minBytes = floorPow2(lowest ?? input.clusterSize);
   let maxBytes = ceilPow2(highest > 0n ? highest : input.clusterSize);
   if (maxBytes <= minBytes) maxBytes = minBytes * 2n;
 
   const series = drawn.map(({ id, curve }) => seriesOf(id, curve, id === inUseId, minBytes, maxBytes));
+  if (measured) {
+    const last = measured.points[measured.points.length - 1];
+    series.push(seriesOf('measured', { points: measured.points, entrySize: input.entrySize, fullCoverageBytes: last?.cacheBytes ?? 0n }, false, minBytes, maxBytes));
+  }
   const marks = placeLabels(wanted.map((mark) => {
     const ratios: Partial<Record<SeriesId, number>> = {};
     for (const { id, at } of prepared) ratios[id] = at(mark.bytes);
+    if (measured) ratios.measured = measuredAt(measured.points, mark.bytes);
     return {
       id: mark.id,
       label: `${mark.name} ${formatSize(mark.bytes)}`,
@@ -236,7 +254,8 @@ export function chartModel(input: ChartInput): ChartOutcome {
   const inUse = series.find((s) => s.inUse);
   const summary = `Predicted L2 cache hit ratio against cache size (log scale) for ${accessText}, `
     + `${series.map((s) => s.label).join(' and ')}. `
-    + (marks.length > 0 ? `On the ${inUse?.label ?? 'curve in use'}: ${marks.map((m) => `${m.label}: ${hitRatioText(m.hitRatio)}`).join('; ')}.` : '');
+    + (marks.length > 0 ? `On the ${inUse?.label ?? 'curve in use'}: ${marks.map((m) => `${m.label}: ${hitRatioText(m.hitRatio)}`).join('; ')}.` : '')
+    + (measured ? ` Measured on the trace: ${marks.map((m) => `${m.label}: ${hitRatioText(m.ratios.measured ?? 0)}`).join('; ')}.` : '');
   return {
     ok: true,
     chart: {

@@ -7,7 +7,7 @@ import { CHART, chartModel, hitRatioText, yOf, type ChartInput, type ChartModel,
 
 let figureCount = 0;
 
-const MARK_NAMES = { configured: 'Configured', effective: 'Effective', full: 'Full coverage' } as const;
+const MARK_NAMES = { configured: 'Configured', effective: 'Effective', recommended: 'Measured target', full: 'Full coverage' } as const;
 
 function drawing(chart: ChartModel, titleId: string, tableId: string): SVGSVGElement {
   const left = CHART.left;
@@ -147,7 +147,8 @@ export function curveFigure(diskName: string, input: ChartInput): HTMLElement {
   const titleId = `curve-title-${id}`;
   const tableId = `curve-marks-${id}`;
   figure.append(
-    el('p', 'curve-note', `${chart.accessText[0]?.toUpperCase() ?? ''}${chart.accessText.slice(1)}, ${formatSize(input.requestSize)} requests over the whole disk; the top layer's cache (predicted steady state, for review).`),
+    el('p', 'curve-note', `${chart.accessText[0]?.toUpperCase() ?? ''}${chart.accessText.slice(1)}, ${formatSize(input.requestSize)} requests over the whole disk; the top layer's cache (predicted steady state, for review).`
+      + (input.measured ? ' The measured curve replays the disk\'s own trace through an LRU cache of every size; it shows only the period traced.' : '')),
     drawing(chart, titleId, tableId),
     legend(chart),
     marksTable(chart, tableId),

@@ -2,8 +2,8 @@
 // SVG attributes (no inline styles: the content security policy allows none).
 import type { SizingReport } from '../src/core/results';
 import { formatSizeExact, parseSize } from '../src/core/units';
-import { formatInterval, formatPercent, formatShare, formatSize } from '../src/core/format';
-import type { DiskView, FindingView, HostView, MachineView, PanelView, WhatIfValues } from '../src/protocol/panel';
+import { formatCount, formatInterval, formatPercent, formatShare, formatSize } from '../src/core/format';
+import type { DiskView, FindingView, HostView, MachineView, MeasuredView, PanelView, WhatIfValues } from '../src/protocol/panel';
 import { curveFigure } from './curve';
 import { custom, el, svg } from './dom';
 import { CLUSTER_CHOICES, sliceChoices, whatIf, type WhatIfResult } from './whatif';
@@ -50,6 +50,7 @@ interface Row {
 
 function valueText(row: Pick<Row, 'kind'>, value: bigint | number | string): string {
   if (row.kind === 'size' && typeof value === 'bigint') return formatSize(value);
+  if (row.kind === 'count' && typeof value !== 'string') return formatCount(value);
   return String(value);
 }
 
@@ -120,6 +121,29 @@ function diskRows(disk: DiskView, sizing: SizingReport, entrySize: bigint, was?:
     { field: 'layers', label: 'Layers (with backing files)', value: sizing.layers, kind: 'count' },
     { field: 'cacheMemoryTotal', label: 'Cache memory, all layers', value: sizing.cacheMemoryTotal, was: was?.sizing.cacheMemoryTotal, kind: 'size' },
   ];
+}
+
+/** What the disk's trace says, as the linter measured it for the definition's values. */
+function measuredSection(measured: MeasuredView): HTMLElement {
+  const section = el('section', 'measured');
+  section.append(el('h3', 'measured-title', `Measured on ${measured.traces.join(', ')}`));
+  const sampling = measured.sampleRate < 1 ? `sampled: ${formatShare(measured.sampleRate, 2)} of the cache entries, figures estimated` : 'exact: every lookup counted';
+  const target = formatShare(measured.targetHitRatio);
+  const rows: Row[] = [
+    { field: 'measuredRequests', label: 'Requests traced', value: measured.requests, kind: 'count' },
+    { field: 'measuredSpan', label: 'Span of the disk traced', value: `${formatSize(measured.span.start)} to ${formatSize(measured.span.end)}`, kind: 'text', hint: 'From the lowest offset to the highest end of the requests looked up' },
+    { field: 'measuredSampling', label: 'Sampling', value: sampling, kind: 'text' },
+    { field: 'measuredHitRatio', label: 'Hit ratio of the effective cache', value: formatShare(measured.hitRatio), kind: 'text' },
+    { field: 'measuredWorkingSet', label: 'Working set (cache entries touched)', value: measured.workingSet, kind: 'size' },
+    {
+      field: 'measuredRecommended',
+      label: measured.targetReached ? `Smallest cache reaching ${target}` : `No cache reaches ${target}; the working set`,
+      value: measured.recommendedL2Cache,
+      kind: 'size',
+    },
+  ];
+  section.append(numbersTable(rows));
+  return section;
 }
 
 function option(value: string, label: string, selected: boolean): HTMLElement {
@@ -252,7 +276,12 @@ function diskCard(view: PanelView, disk: DiskView, state: WhatIfState, actions: 
   card.append(numbersTable(diskRows(disk, sizing, entrySize, was, configuredL2, disk.configured.l2Cache)));
   const cleanup = disk.configured.cleanupInterval;
   card.append(el('p', 'cleanup', `Cleanup interval: ${cleanup === undefined ? `driver default` : formatInterval(cleanup)}; recommended L2 cache ${formatSize(disk.recommended.l2Cache)}`));
+  const measured = disk.measured;
+  if (measured) card.append(measuredSection(measured));
   if (charted) {
+    // The measured curve holds for the geometry it was measured with; a trial with another cluster
+    // or cache entry size is drawn from the model alone.
+    const sameGeometry = measured !== undefined && measured.clusterSize === sizing.clusterSize && measured.entrySize === entrySize;
     // The trial's numbers when it is valid, so the marks move with every what-if edit.
     card.append(curveFigure(disk.name, {
       virtualSize: sizing.virtualSize,
@@ -264,7 +293,9 @@ function diskCard(view: PanelView, disk: DiskView, state: WhatIfState, actions: 
       configured: configuredL2,
       effective: sizing.l2Effective,
       fullCoverage: sizing.l2FullCoverage,
+      ...(measured && sameGeometry ? { measured: { points: measured.points, recommended: measured.recommendedL2Cache } } : {}),
     }));
+    if (measured && !sameGeometry) card.append(el('p', 'curve-note', 'The measured curve is not drawn for this trial: it was measured with the definition\'s cluster and cache entry size.'));
   }
   if (open && values && result) card.append(whatIfControls(disk, values, result, state, actions));
   if (disk.findings.length > 0) card.append(findingList(disk.findings, actions));

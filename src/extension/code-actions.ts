@@ -35,11 +35,15 @@ export class CachewrightCodeActions implements vscode.CodeActionProvider {
         const at = toRange(finding.range);
         const diagnostic = ours.find((d) => ruleOf(d) === finding.rule && sameRange(d.range, at));
         if (!diagnostic && !at.intersection(range)) continue;
-        const action = new vscode.CodeAction(finding.fix.title, vscode.CodeActionKind.QuickFix);
-        action.edit = workspaceEdit(document, finding.fix.edits);
-        if (diagnostic) action.diagnostics = [diagnostic];
-        action.isPreferred = true;
-        actions.push(action);
+        // The fix first (preferred: what --fix applies), then the others offered beside it, such as
+        // full coverage beside the smallest cache that reaches the target on a measured trace.
+        for (const [index, fix] of [finding.fix, ...(finding.alternatives ?? [])].entries()) {
+          const action = new vscode.CodeAction(fix.title, vscode.CodeActionKind.QuickFix);
+          action.edit = workspaceEdit(document, fix.edits);
+          if (diagnostic) action.diagnostics = [diagnostic];
+          action.isPreferred = index === 0;
+          actions.push(action);
+        }
       }
     }
     if (!context.only || wantsFixAll || context.only.contains(vscode.CodeActionKind.Source)) {

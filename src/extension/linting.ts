@@ -1,9 +1,11 @@
 // Keeps every included definition's lint result current: open documents as the user types
 // (debounced), the rest of the workspace in the background and through a file watcher, and the
 // mapping files themselves, whose own problems show at their positions.
+import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { LintSession, oversizedFileReport, type FileReport, type Mapping } from '../lint';
 import { ImageFactsCache } from '../image/facts-cache';
+import { TraceCurveCache, type RunningTraceJob } from './traces';
 import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
 import { isMappingFileName, Mappings, readDefinitionText } from './mappings';
 import { readSettings } from './settings';
@@ -30,12 +32,14 @@ export interface Timings {
 }
 
 const DEFINITION_LANGUAGES = new Set(['yaml', 'json', 'jsonc']);
+/** A trace measured for longer than this shows a progress notification (with a cancel button). */
+const TRACE_PROGRESS_AFTER_MS = 700;
 
 export class Linting implements vscode.Disposable {
   readonly diagnostics = vscode.languages.createDiagnosticCollection('cachewright');
   readonly mappings = new Mappings();
   private readonly results = new Map<string, LintResult>();
-  private readonly sessions = new Map<string, { session: LintSession; severities: string; images: ImageFactsCache | undefined }>();
+  private readonly sessions = new Map<string, { session: LintSession; severities: string; images: ImageFactsCache | undefined; traces: TraceCurveCache | undefined }>();
   private readonly timers = new Map<string, NodeJS.Timeout>();
   private readonly emitter = new vscode.EventEmitter<LintResult>();
   /** Fires after a definition was linted (from an editor or from disk). */
@@ -49,11 +53,47 @@ export class Linting implements vscode.Disposable {
 
   /** Image facts for the image rules; only in a trusted workspace (untrusted: the text alone). */
   private images = vscode.workspace.isTrusted ? new ImageFactsCache({ recheck: true }) : undefined;
+  /** Measured curves of the traces disks name; like images, only in a trusted workspace. */
+  private traceCurves: TraceCurveCache | undefined;
 
   /** The cross-file host rule over every definition's latest report, a moment after each lint. */
   readonly hosts = new WorkspaceHosts({ results: () => this.results.values(), republish: (uri) => this.show(uri) });
 
-  constructor(private readonly extensionUri: vscode.Uri, readonly timings: Timings) {}
+  constructor(private readonly extensionUri: vscode.Uri, readonly timings: Timings) {
+    if (vscode.workspace.isTrusted) this.traceCurves = this.newTraceCache();
+  }
+
+  private newTraceCache(): TraceCurveCache {
+    return new TraceCurveCache(vscode.Uri.joinPath(this.extensionUri, 'dist', 'trace-worker.js').fsPath, (job) => this.showTraceJob(job));
+  }
+
+  /** A long measurement shows its progress and can be cancelled; a short one passes unseen. */
+  private showTraceJob(job: RunningTraceJob): void {
+    let done = 0;
+    job.onProgress((share) => (done = share));
+    const timer = setTimeout(() => {
+      const names = job.paths.map((p) => path.basename(p)).join(', ');
+      void vscode.window.withProgress({ location: vscode.ProgressLocation.Notification, title: `cachewright: measuring the trace ${names}`, cancellable: true }, (progress, token) => {
+        token.onCancellationRequested(() => job.cancel());
+        let shown = 0;
+        const report = (share: number): void => {
+          const percent = Math.floor(share * 100);
+          if (percent <= shown) return;
+          progress.report({ increment: percent - shown, message: `${percent} % read` });
+          shown = percent;
+        };
+        report(done);
+        job.onProgress(report);
+        return job.finished;
+      });
+    }, TRACE_PROGRESS_AFTER_MS);
+    void job.finished.then(() => clearTimeout(timer));
+  }
+
+  /** Traces whose measuring the user cancelled are measured again on the next lint. */
+  forgetCancelledTraces(): void {
+    this.traceCurves?.forgetCancelled();
+  }
 
   private get enabled(): boolean {
     return readSettings().enable;
@@ -80,6 +120,7 @@ export class Linting implements vscode.Disposable {
       vscode.workspace.onDidChangeWorkspaceFolders(() => void this.reloadMappings().then(() => this.lintWorkspace(false))),
       vscode.workspace.onDidGrantWorkspaceTrust(() => {
         this.images = new ImageFactsCache({ recheck: true });
+        this.traceCurves = this.newTraceCache();
         void this.lintWorkspace(false);
       }),
       this.watch(),
@@ -132,31 +173,37 @@ export class Linting implements vscode.Disposable {
     const key = uri.toString();
     const severities = readSettings(uri).rules;
     const existing = this.sessions.get(key);
-    if (existing && existing.session.mapping === mapping && existing.severities === JSON.stringify(severities) && existing.images === this.images) return existing.session;
-    const session = new LintSession(uri.fsPath, mapping, { severities, images: this.images?.lookup });
-    this.sessions.set(key, { session, severities: JSON.stringify(severities), images: this.images });
+    if (existing && existing.session.mapping === mapping && existing.severities === JSON.stringify(severities) && existing.images === this.images && existing.traces === this.traceCurves) return existing.session;
+    const session = new LintSession(uri.fsPath, mapping, { severities, images: this.images?.lookup, traces: this.traceCurves?.lookup });
+    this.sessions.set(key, { session, severities: JSON.stringify(severities), images: this.images, traces: this.traceCurves });
     return session;
   }
 
-  private lint(uri: vscode.Uri, text: string, version: number | undefined, mapping: Mapping, imagesChanged = false): LintResult {
+  private lint(uri: vscode.Uri, text: string, version: number | undefined, mapping: Mapping, factsChanged = false): LintResult {
     const limit = readSettings(uri).fileSizeLimit;
     // UTF-16 length <= UTF-8 bytes <= 3 x length: count the bytes only near the limit.
     if (text.length > limit || (text.length * 3 > limit && Buffer.byteLength(text, 'utf8') > limit)) return this.tooLarge(uri, Buffer.byteLength(text, 'utf8'), limit, version, mapping);
     const started = Date.now();
     const session = this.sessionFor(uri, mapping);
-    if (imagesChanged) session.reset();
+    if (factsChanged) session.reset();
     const images = this.images;
+    const traces = this.traceCurves;
     const report = session.update(text);
     this.timings.lastLintMs = Date.now() - started;
-    // Images named for the first time, or whose files changed, are read in the background; then the
-    // text is linted again with their facts, if it is still the text the editor holds.
+    // Images named for the first time, or whose files changed, are read in the background, and traces
+    // are measured in a worker thread; then the text is linted again with their facts, if it is still
+    // the text the editor holds.
+    const relint = (changed: boolean): void => {
+      const current = this.results.get(uri.toString());
+      if (!changed || !current || current.version !== version || current.text !== text) return;
+      this.lint(uri, text, version, mapping, true);
+      // Files on disk keep no session (see lintFromDisk).
+      if (version === undefined) this.sessions.delete(uri.toString());
+    };
     const imagePaths = images ? session.imagePaths() : [];
-    if (images && imagePaths.length > 0) {
-      void images.load(imagePaths).then((changed) => {
-        const current = this.results.get(uri.toString());
-        if (changed && current && current.version === version && current.text === text) this.lint(uri, text, version, mapping, true);
-      }, () => undefined);
-    }
+    if (images && imagePaths.length > 0) void images.load(imagePaths).then(relint, () => undefined);
+    const traceRequests = traces ? session.traceRequests() : [];
+    if (traces && traceRequests.length > 0) void traces.load(traceRequests).then(relint, () => undefined);
     const result: LintResult = { uri, version, text, report, mapping };
     this.results.set(uri.toString(), result);
     this.publish(uri);
@@ -308,6 +355,7 @@ export class Linting implements vscode.Disposable {
 
   dispose(): void {
     for (const timer of this.timers.values()) clearTimeout(timer);
+    this.traceCurves?.dispose();
     for (const d of this.disposables) d.dispose();
     this.hosts.dispose();
     this.diagnostics.dispose();

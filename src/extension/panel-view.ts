@@ -3,7 +3,7 @@
 import * as path from 'node:path';
 import { CAUTIONS } from '../core/cautions';
 import type { DiskReport, FileReport, Finding, HostReport, Mapping } from '../lint';
-import type { ConfiguredCache, DiskView, FindingView, HostView, MachineView, PanelView } from '../protocol/panel';
+import type { ConfiguredCache, DiskView, FindingView, HostView, MachineView, MeasuredView, PanelView } from '../protocol/panel';
 
 function findingView(finding: Finding): FindingView {
   return {
@@ -25,6 +25,25 @@ function configuredOf(disk: DiskReport): ConfiguredCache {
     ...(combinedCache ? { combinedCache: combinedCache.value } : {}),
     ...(cacheEntrySize ? { cacheEntrySize: cacheEntrySize.value } : {}),
     ...(cleanupInterval ? { cleanupInterval: cleanupInterval.value } : {}),
+  };
+}
+
+function measuredOf(disk: DiskReport, entrySize: bigint): MeasuredView | undefined {
+  const { measured, measuredCurve } = disk;
+  if (!measured || !measuredCurve) return undefined;
+  return {
+    traces: disk.values.trace?.value ?? [],
+    requests: measured.requests,
+    span: measuredCurve.span,
+    sampleRate: measured.sampleRate,
+    hitRatio: measured.hitRatio,
+    workingSet: measured.workingSet,
+    recommendedL2Cache: measured.recommendedL2Cache,
+    targetHitRatio: measured.targetHitRatio,
+    targetReached: measured.targetReached,
+    points: measuredCurve.points,
+    clusterSize: disk.sizing.clusterSize,
+    entrySize,
   };
 }
 
@@ -55,20 +74,25 @@ export function panelView(uri: string, version: number, report: FileReport, mapp
     const finding = report.findings[i];
     return finding ? [findingView(finding)] : [];
   });
-  const diskViews: DiskView[] = report.disks.map((disk) => ({
-    pointer: disk.pointer,
-    name: disk.name,
-    machine: disk.machine,
-    range: disk.range,
-    sizing: disk.sizing,
-    entrySize: disk.layers[0]?.entrySize ?? disk.sizing.clusterSize,
-    extendedL2: disk.extendedL2,
-    configured: configuredOf(disk),
-    recommended: disk.recommended,
-    chain: disk.chain,
-    workload: { pattern: disk.pattern, requestSize: disk.requestSize },
-    findings: findingViews(disk.findings),
-  }));
+  const diskViews: DiskView[] = report.disks.map((disk) => {
+    const entrySize = disk.layers[0]?.entrySize ?? disk.sizing.clusterSize;
+    const measured = measuredOf(disk, entrySize);
+    return {
+      pointer: disk.pointer,
+      name: disk.name,
+      machine: disk.machine,
+      range: disk.range,
+      sizing: disk.sizing,
+      entrySize,
+      extendedL2: disk.extendedL2,
+      configured: configuredOf(disk),
+      recommended: disk.recommended,
+      chain: disk.chain,
+      workload: { pattern: disk.pattern, requestSize: disk.requestSize },
+      ...(measured ? { measured } : {}),
+      findings: findingViews(disk.findings),
+    };
+  });
   const machines: MachineView[] = report.machines.map((machine) => ({
     pointer: machine.pointer,
     name: machine.name,

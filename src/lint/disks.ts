@@ -1,7 +1,7 @@
 // Each disk on its own: the layers of its backing chain (from the definition, or from the image
 // files when the caller read them), their sizing, the disk's rules and its part of the report.
 import * as nodePath from 'node:path';
-import { sizeChain, type CacheSettings, type DiskSizing, type LayerCache, type LayerSpec } from '../core/cache';
+import { sizeChain, type CacheSettings, type DiskSizing, type LayerSpec } from '../core/cache';
 import { DEFAULT_REFCOUNT_BITS } from '../core/sizing';
 import { nodeAt } from '../model/document';
 import type { DiskSpec, Extraction, MachineSpec, ValueProblem } from '../model/disks';
@@ -10,26 +10,10 @@ import type { Mapping } from '../model/mapping';
 import { ruleOf } from '../rules';
 import { headRange } from './documents';
 import type { FileContext } from './prepare';
-import type { DiskReport, DiskResult, DiskUnit, MachineUnit, Units } from './report';
+import type { DiskResult, DiskUnit, MachineUnit, Units } from './report';
 import { runDiskRules, runMachineRules, valueProblemFindings, type DiskImage, type DiskTrace } from './rules';
 import { traceRequestFor } from './traces';
-import type { MeasuredCurve } from '../model/traces';
-import { measuredTarget } from '../rules/measured';
-
-/** The measured figures of a disk with a trace (docs/cli.md `measured`), at its effective L2 cache. */
-function measuredReport(curve: MeasuredCurve, top: LayerCache, target: number): NonNullable<DiskReport['measured']> {
-  const recommendation = measuredTarget(curve, target, top.entrySize);
-  return {
-    hitRatio: curve.hitRatioAt(top.l2),
-    workingSet: curve.workingSet,
-    recommendedL2Cache: recommendation.cacheBytes,
-    sampleRate: curve.sampleRate,
-    targetHitRatio: target,
-    targetReached: recommendation.reached,
-    requests: curve.requests,
-    lookups: curve.lookups,
-  };
-}
+import { measuredCurveReport, measuredReport } from './measured';
 
 function settingsOf(disk: DiskSpec): CacheSettings {
   const v = disk.values;
@@ -119,9 +103,13 @@ function sizeDisk(context: FileContext, disk: DiskSpec, machines: readonly Machi
   const traceFacts = traceRequest ? context.traces?.(traceRequest) : undefined;
   const trace: DiskTrace | undefined = traceFacts && disk.values.trace ? { written: disk.values.trace, paths: traceRequest?.paths ?? [], facts: traceFacts } : undefined;
   runDiskRules(context, disk, sizing, top, image, trace, machines, into);
-  const measured = trace?.facts.curve ? measuredReport(trace.facts.curve, top, context.mapping.assume.targetHitRatio) : undefined;
+  const curve = trace?.facts.curve;
+  const measured = curve ? measuredReport(curve, top, context.mapping.assume.targetHitRatio) : undefined;
   const result: DiskResult = { sizing, chain };
-  if (measured) result.measured = measured;
+  if (curve && measured) {
+    result.measured = measured;
+    result.measuredCurve = measuredCurveReport(curve, top.entrySize, [top.l2, measured.recommendedL2Cache]);
+  }
   if (imagePath) {
     result.image = { path: imagePath, read: facts !== undefined && facts.problem?.layer !== 0, layers: (facts?.layers ?? []).map((l) => ({ path: l.path, format: l.format })), ...(facts?.problem ? { problem: facts.problem.message } : {}) };
   }

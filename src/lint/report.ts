@@ -58,6 +58,15 @@ export interface DiskReport {
     requests: number;
     lookups: number;
   };
+  /**
+   * With a trace, for drawing (not in JSON or SARIF): the measured hit ratio at quarter-octave cache
+   * sizes up to the working set and at the effective and recommended caches, and the guest bytes
+   * the traced requests fall in.
+   */
+  measuredCurve?: {
+    points: { cacheBytes: bigint; hitRatio: number }[];
+    span: { start: bigint; end: bigint };
+  };
   /** The image file the definition names, and whether its layers came from the real files. */
   image?: { path: string; read: boolean; layers: { path: string; format: string }[]; problem?: string };
 }
@@ -99,6 +108,7 @@ export interface DiskResult {
   sizing: DiskSizing;
   chain: LayerSpec[];
   measured?: DiskReport['measured'];
+  measuredCurve?: DiskReport['measuredCurve'];
   image?: DiskReport['image'];
 }
 
@@ -198,6 +208,7 @@ function diskReport(mapping: Mapping, disk: DiskSpec, result: DiskResult): DiskR
     findings: [],
   };
   if (result.measured) report.measured = result.measured;
+  if (result.measuredCurve) report.measuredCurve = result.measuredCurve;
   if (result.image) report.image = result.image;
   return report;
 }

@@ -31,6 +31,8 @@ export interface MeasuredCurve {
   sampleRate: number;
   /** Distinct cache entries touched times the entry size. */
   workingSet: bigint;
+  /** The guest bytes the traced requests fall in, from the lowest offset to the highest end. */
+  span: { start: bigint; end: bigint };
   /** The hit ratio of an L2 cache of this many bytes on the traced lookups. */
   hitRatioAt(cacheBytes: bigint): number;
   /** The smallest cache reaching `target`; `reached` false (and the working set) when none does. */

@@ -40,7 +40,32 @@ export interface DiskView {
   chain: LayerSpec[];
   /** The workload the definition declares (or the mapping assumes): the hit-ratio curve models it. */
   workload: { pattern: string; requestSize: bigint };
+  /** With a trace the linter measured: its figures and curve, drawn beside the modelled one. */
+  measured?: MeasuredView;
   findings: FindingView[];
+}
+
+/** A disk's measured trace, as the engine's report gives it (every number from the report). */
+export interface MeasuredView {
+  /** The trace files as the definition writes them. */
+  traces: string[];
+  requests: number;
+  /** The guest bytes the traced requests fall in, from the lowest offset to the highest end. */
+  span: { start: bigint; end: bigint };
+  /** 1: every lookup counted; below 1, the share of cache entries sampled. */
+  sampleRate: number;
+  /** The hit ratio of the definition's effective L2 cache on the trace. */
+  hitRatio: number;
+  workingSet: bigint;
+  /** The smallest cache reaching the target on the trace (the working set when none does). */
+  recommendedL2Cache: bigint;
+  targetHitRatio: number;
+  targetReached: boolean;
+  /** The hit ratio at quarter-octave cache sizes up to the working set, and at the marks. */
+  points: { cacheBytes: bigint; hitRatio: number }[];
+  /** The geometry it was measured with: a what-if trial with another one cannot use the curve. */
+  clusterSize: bigint;
+  entrySize: bigint;
 }
 
 export interface MachineView {

@@ -12,6 +12,7 @@ export function measuredCurveOf(measured: MeasuredTrace): MeasuredCurve {
     lookups: measured.profile.lookups,
     sampleRate: measured.sampleRate,
     workingSet: workingSetOf(measured),
+    span: measured.span,
     hitRatioAt: (cacheBytes) => measured.profile.hitRatio(entriesIn(cacheBytes, entryBytes)),
     smallestCacheFor: (target) => measuredRecommendation(measured, target),
   };

@@ -35,11 +35,15 @@ export class RequestMapper implements RequestSink {
   /** Requests that run past the virtual size: counted, not looked up (the trace is of another disk). */
   pastEnd = 0;
   lookups = 0;
-  private readonly span: number;
+  /** The guest bytes the looked-up requests fall in: lowest offset, highest end (0, 0 before any). */
+  lowest = Number.POSITIVE_INFINITY;
+  highestEnd = 0;
+  /** Guest bytes one cache entry maps. */
+  private readonly entryReach: number;
   private readonly size: number;
 
   constructor(geometry: TraceGeometry, private readonly sink: LookupSink) {
-    this.span = Number(guestBytesPerEntry(geometry));
+    this.entryReach = Number(guestBytesPerEntry(geometry));
     this.size = Number(geometry.virtualSize);
   }
 
@@ -51,8 +55,10 @@ export class RequestMapper implements RequestSink {
       return;
     }
     this.requests++;
-    const first = Math.floor(offset / this.span);
-    const last = Math.floor((end - 1) / this.span);
+    if (offset < this.lowest) this.lowest = offset;
+    if (end > this.highestEnd) this.highestEnd = end;
+    const first = Math.floor(offset / this.entryReach);
+    const last = Math.floor((end - 1) / this.entryReach);
     for (let entry = first; entry <= last; entry++) this.sink.lookup(entry);
     this.lookups += last - first + 1;
   }

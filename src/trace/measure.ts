@@ -44,6 +44,8 @@ export interface MeasuredTrace {
   requests: number;
   /** Requests running past the virtual size: counted, not looked up. */
   pastEnd: number;
+  /** The guest bytes the looked-up requests fall in, from the lowest offset to the highest end. */
+  span: { start: bigint; end: bigint };
   ignoredEvents: number;
   skippedLines: number;
   /** The first line not understood, over all files. */
@@ -93,11 +95,12 @@ export async function measureTraces(files: readonly TraceFileName[], options: Me
     format: formats.size === 1 ? (reports[0]?.format ?? 'csv') : 'mixed',
     requests: mapper.requests,
     pastEnd: mapper.pastEnd,
+    span: { start: BigInt(mapper.requests > 0 ? mapper.lowest : 0), end: BigInt(mapper.highestEnd) },
     ignoredEvents: reports.reduce((sum, r) => sum + r.ignoredEvents, 0),
     skippedLines: reports.reduce((sum, r) => sum + r.skippedLines, 0),
     ...(firstSkippedFile !== undefined ? { firstSkipped: { path: firstSkippedFile.path, line: firstSkippedFile.firstSkippedLine } } : {}),
     geometry: options.geometry,
     sampleRate: rate.value,
-    profile: new HitProfile(distances, sampler?.lookups ?? distances.lookups, effectiveRate),
+    profile: HitProfile.of(distances, sampler?.lookups ?? distances.lookups, effectiveRate),
   });
 }

@@ -19,6 +19,13 @@ export interface ProfileCounts {
   sampleRate: number;
 }
 
+/** A profile as plain data: what a worker thread hands back (structured clone keeps the typed array). */
+export interface HitProfileData extends ProfileCounts {
+  cumulative: Float64Array;
+  expected: number;
+  adjustment: number;
+}
+
 export class HitProfile implements ProfileCounts {
   readonly lookups: number;
   readonly firstTouches: number;
@@ -35,20 +42,41 @@ export class HitProfile implements ProfileCounts {
    */
   private readonly adjustment: number;
 
-  constructor(distances: StackDistances, allLookups: number, sampleRate: number) {
+  constructor(data: HitProfileData) {
+    this.cumulative = data.cumulative;
+    this.expected = data.expected;
+    this.adjustment = data.adjustment;
+    this.lookups = data.lookups;
+    this.sampleRate = data.sampleRate;
+    this.firstTouches = data.firstTouches;
+    this.entriesTouched = data.entriesTouched;
+  }
+
+  /** The profile of the distances counted, standing for `allLookups` lookups at `sampleRate`. */
+  static of(distances: StackDistances, allLookups: number, sampleRate: number): HitProfile {
     const histogram = distances.distanceHistogram();
-    this.cumulative = new Float64Array(histogram.length);
+    const cumulative = new Float64Array(histogram.length);
     let sum = 0;
     for (let d = 0; d < histogram.length; d++) {
       sum += histogram[d] as number;
-      this.cumulative[d] = sum;
+      cumulative[d] = sum;
     }
-    this.expected = sampleRate === 1 ? distances.lookups : allLookups * sampleRate;
-    this.adjustment = this.expected - distances.lookups;
-    this.lookups = allLookups;
-    this.sampleRate = sampleRate;
-    this.firstTouches = sampleRate === 1 ? distances.firstTouches : Math.round(distances.firstTouches / sampleRate);
-    this.entriesTouched = sampleRate === 1 ? distances.entries : Math.round(distances.entries / sampleRate);
+    const expected = sampleRate === 1 ? distances.lookups : allLookups * sampleRate;
+    return new HitProfile({
+      cumulative,
+      expected,
+      adjustment: expected - distances.lookups,
+      lookups: allLookups,
+      sampleRate,
+      firstTouches: sampleRate === 1 ? distances.firstTouches : Math.round(distances.firstTouches / sampleRate),
+      entriesTouched: sampleRate === 1 ? distances.entries : Math.round(distances.entries / sampleRate),
+    });
+  }
+
+  /** The profile as plain data, for another thread (new HitProfile(data) rebuilds it). */
+  data(): HitProfileData {
+    const { cumulative, expected, adjustment, lookups, sampleRate, firstTouches, entriesTouched } = this;
+    return { cumulative, expected, adjustment, lookups, sampleRate, firstTouches, entriesTouched };
   }
 
   /** Lookups that hit in a cache of `entries` entries, as a share of all lookups. */

@@ -5,11 +5,13 @@ import * as path from 'node:path';
 import { cpSync, existsSync, mkdtempSync } from 'node:fs';
 import * as os from 'node:os';
 import { runTests } from '@vscode/test-electron';
+import { ensureDemoTraces } from './host';
 
 async function main(): Promise<void> {
   const root = path.resolve(__dirname, '..', '..');
   const workspace = mkdtempSync(path.join(os.tmpdir(), 'cachewright-desktop-'));
   const demo = path.join(root, 'examples');
+  ensureDemoTraces();
   if (existsSync(demo)) cpSync(demo, workspace, { recursive: true });
   await runTests({
     version: '1.100.3',

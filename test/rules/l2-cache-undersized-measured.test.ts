@@ -55,3 +55,24 @@ describe(`rule ${RULE} with a trace: the fixes and figures`, () => {
     });
   });
 });
+
+describe(`${RULE} with a trace: the curve the sizing panel draws`, () => {
+  before(() => traces.load(Object.values(cases)));
+  it(`${MATTSON} points from one 64 KiB entry to the 64-entry working set, with the effective and recommended caches: 0 below 64 entries, 1 - 64/20000 from there`, () => {
+    const curve = lintCase(cases.short).disks[0]?.measuredCurve;
+    assert.ok(curve);
+    const sizes = curve.points.map((p) => p.cacheBytes);
+    assert.deepEqual(sizes, [...sizes].sort((a, b) => (a < b ? -1 : 1)), 'ascending');
+    assert.equal(new Set(sizes).size, sizes.length, 'each size once');
+    assert.equal(sizes[0], 64n << 10n, 'the smallest cache: one entry (a whole L2 table)');
+    assert.equal(sizes[sizes.length - 1], 4n << 20n, 'the largest: the working set');
+    assert.ok(sizes.includes(1n << 20n) && sizes.includes(4n << 20n), 'the effective (1 MiB) and recommended (4 MiB) caches are points');
+    // Quarter octaves: 1, 2, 3, 4, 5, 6, 7, 8, 10, 11, 13, 16, ... entries; each doubling has four points or fewer.
+    assert.ok(sizes.length >= 20 && sizes.length <= 4 * 6 + 3, `${sizes.length} points`);
+    for (const p of curve.points) assert.equal(p.hitRatio, p.cacheBytes < 4n << 20n ? 0 : 1 - 64 / 20_000, `at ${p.cacheBytes}`);
+  });
+  it('the span runs from the first request\'s offset to the end of the last entry\'s 4 KiB request', () => {
+    const curve = lintCase(cases.short).disks[0]?.measuredCurve;
+    assert.deepEqual(curve?.span, { start: 0n, end: 63n * (512n << 20n) + 4096n });
+  });
+});

@@ -169,3 +169,40 @@ describe('panel curve: the chart model', () => {
     assert.equal(hitRatioText(0), '0 %');
   });
 });
+
+describe('panel curve: the measured curve beside the modelled ones', () => {
+  // A measured curve as the engine reports it: points with exact hit ratios (here a made-up step: 0
+  // below 16 MiB, 0.995 from there; the chart only draws what it is given).
+  const points = [1n, 2n, 4n, 8n, 16n, 32n].map((m) => ({ cacheBytes: m * MiB, hitRatio: m >= 16n ? 0.995 : 0 }));
+  const traced: ChartInput = { ...ledger, measured: { points, recommended: 16n * MiB } };
+
+  it('draws it as a third series, not in use, ending at the working set and flat to the axis end', () => {
+    const model = chart(traced);
+    const measured = model.series.find((s) => s.id === 'measured');
+    assert.ok(measured);
+    assert.equal(measured.inUse, false);
+    assert.deepEqual(measured.points.map((p) => p.cacheBytes), points.map((p) => p.cacheBytes));
+    assert.equal(measured.fullCoverageBytes, 32n * MiB);
+    assert.match(measured.path, new RegExp(`L${RIGHT},[0-9.]+$`), 'flat to the right edge');
+    assert.deepEqual(model.series.map((s) => s.id), ['table', 'slice', 'measured']);
+  });
+
+  it('marks the recommended cache and reads the measured ratio at every mark (the point at or below it)', () => {
+    const model = chart(traced);
+    const byId = new Map(model.marks.map((m) => [m.id, m]));
+    assert.deepEqual([...byId.keys()], ['configured', 'effective', 'recommended', 'full']);
+    assert.equal(byId.get('recommended')?.bytes, 16n * MiB);
+    assert.equal(byId.get('recommended')?.ratios.measured, 0.995);
+    assert.equal(byId.get('effective')?.ratios.measured, 0, '8 MiB, below the step');
+    assert.equal(byId.get('full')?.ratios.measured, 0.995, 'beyond the working set the ratio stays at its last value');
+    // The modelled ratios stay as they were: C/N for the effective 8 MiB of 4 KiB slices [IRM].
+    assert.equal(byId.get('effective')?.ratios.slice, 2048 / 32768);
+    assert.match(model.summary, /Measured on the trace: .*measured target 16 MiB: 99\.5 %/);
+  });
+
+  it('without a measured curve nothing changes: two series, three marks', () => {
+    const model = chart(ledger);
+    assert.deepEqual(model.series.map((s) => s.id), ['table', 'slice']);
+    assert.ok(!model.marks.some((m) => m.id === 'recommended'));
+  });
+});

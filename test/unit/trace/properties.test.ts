@@ -36,7 +36,7 @@ describe('trace engine: generated request sequences', function () {
           const distances = new StackDistances();
           const mapper = new RequestMapper(g, distances);
           for (const { offset, length } of raw) mapper.request(offset, length);
-          const profile = new HitProfile(distances, distances.lookups, 1);
+          const profile = HitProfile.of(distances, distances.lookups, 1);
           const requests: Request[] = raw.map((r) => ({ ...r, op: 'read' }));
           const keys = lookupsOf(requests, Number(guestBytesPerEntry(g)));
           assert.equal(mapper.lookups, keys.length);

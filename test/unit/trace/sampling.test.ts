@@ -25,8 +25,8 @@ function curves(next: () => number, rate: number): { exact: HitProfile; sampled:
     counts.set(key, (counts.get(key) ?? 0) + 1);
   }
   return {
-    exact: new HitProfile(exact, exact.lookups, 1),
-    sampled: new HitProfile(sampledDistances, sampler.lookups, threshold / SAMPLING_MODULUS),
+    exact: HitProfile.of(exact, exact.lookups, 1),
+    sampled: HitProfile.of(sampledDistances, sampler.lookups, threshold / SAMPLING_MODULUS),
     counts,
   };
 }

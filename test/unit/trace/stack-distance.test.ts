@@ -22,7 +22,7 @@ function libraryHits(keys: ArrayLike<number>, capacity: number): number {
 function profileOf(keys: ArrayLike<number>): HitProfile {
   const distances = new StackDistances();
   for (let i = 0; i < keys.length; i++) distances.lookup(keys[i] as number);
-  return new HitProfile(distances, distances.lookups, 1);
+  return HitProfile.of(distances, distances.lookups, 1);
 }
 
 const hitsAt = (profile: HitProfile, entries: number): number => Math.round(profile.hitRatio(entries) * profile.lookups);
@@ -63,7 +63,7 @@ describe('trace engine: exact LRU stack distances', function () {
     const distances = new StackDistances();
     const lookups = 4_000_000;
     for (let i = 0; i < lookups; i++) distances.lookup(Math.floor(random() * n));
-    const profile = new HitProfile(distances, distances.lookups, 1);
+    const profile = HitProfile.of(distances, distances.lookups, 1);
     for (const c of [n / 10, n / 4, n / 2, (3 * n) / 4]) {
       const measured = profile.hitRatio(c);
       assert.ok(Math.abs(measured - c / n) <= 0.01, `C=${c}: ${measured} vs ${c / n}`);
