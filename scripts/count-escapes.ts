@@ -7,7 +7,7 @@ import * as path from 'node:path';
 import ts from 'typescript';
 
 /** The most casts and non-null assertions src/ and webview/ may hold (issue 11 asked for at most 66 and 28). */
-export const ESCAPE_CEILING = { casts: 13, nonNull: 0 };
+export const ESCAPE_CEILING = { casts: 11, nonNull: 0 };
 
 export interface EscapeCount {
   casts: number;

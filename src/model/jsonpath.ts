@@ -100,11 +100,33 @@ interface TypedNode {
   expression?: TypedNode;
 }
 
+/**
+ * A node of the parser's syntax tree as the type check reads it, taken apart field by field: the
+ * selector is the user's text, so nothing about the tree it parses to is assumed.
+ */
+function typedNode(value: unknown): TypedNode | undefined {
+  if (!isObject(value)) return undefined;
+  const text = (field: unknown): string | undefined => (typeof field === 'string' ? field : undefined);
+  const list = (field: unknown): TypedNode[] | undefined => (Array.isArray(field) ? field.flatMap((item) => typedNode(item) ?? []) : undefined);
+  return {
+    type: text(value.type),
+    name: text(value.name),
+    value: value.value,
+    arguments: list(value.arguments),
+    segments: list(value.segments),
+    selectors: list(value.selectors),
+    node: typedNode(value.node),
+    left: typedNode(value.left),
+    right: typedNode(value.right),
+    expression: typedNode(value.expression),
+  };
+}
+
 /** A query of name and index selectors in child segments selects at most one node [RFC 9535 §2.3.5.1]. */
 function isSingular(query: TypedNode | undefined): boolean {
   if (!query) return false;
   if (query.type === 'RelSingularQuery' || query.type === 'AbsSingularQuery') return true;
-  if (query.type === 'FilterQuery') return isSingular(query.value as TypedNode);
+  if (query.type === 'FilterQuery') return isSingular(typedNode(query.value));
   return (query.segments ?? []).every((segment) => {
     if (segment.type === 'SingularQuerySegment') return true;
     if (segment.type !== 'ChildSegment' || !segment.node) return false;
@@ -134,7 +156,8 @@ function wellTypedness(root: unknown): string | undefined {
       stack.push(...current);
       continue;
     }
-    const node = current as TypedNode;
+    const node = typedNode(current);
+    if (!node) continue;
     if (node.type === 'FunctionExpr') {
       const signature = FUNCTIONS[node.name ?? ''];
       if (!signature) return `unknown function ${node.name}() (RFC 9535 defines length, count, match, search and value)`;
@@ -149,7 +172,7 @@ function wellTypedness(root: unknown): string | undefined {
     } else if (node.type === 'TestExpr' && node.expression && resultOf(node.expression) === 'ValueType') {
       return `${node.expression.name}() gives a value, which cannot be tested on its own; compare it instead`;
     }
-    for (const value of Object.values(node)) if (typeof value === 'object' && value !== null) stack.push(value);
+    for (const value of Object.values(current)) if (typeof value === 'object' && value !== null) stack.push(value);
   }
   return undefined;
 }
