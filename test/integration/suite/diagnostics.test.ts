@@ -44,7 +44,13 @@ function cliFindings(relative: string): CliFinding[] {
 
 /** The ledger's undersized-cache diagnostic once its trace has been measured in the worker. */
 async function measuredUndersized(document: vscode.TextDocument): Promise<vscode.Diagnostic> {
-  return waitFor('the measured l2-cache-undersized diagnostic', () => ours(document.uri).find((d) => codeOf(d) === 'l2-cache-undersized' && MEASURED.test(d.message)), 20_000);
+  try {
+    return await waitFor('the measured l2-cache-undersized diagnostic', () => ours(document.uri).find((d) => codeOf(d) === 'l2-cache-undersized' && MEASURED.test(d.message)), 20_000);
+  } catch (error) {
+    // What the editor shows instead tells a slow measurement from a failed or skipped one.
+    const shown = ours(document.uri).map((d) => `${String(codeOf(d))} at ${d.range.start.line + 1}: ${d.message}`).join('\n  ');
+    throw new Error(`${error instanceof Error ? error.message : String(error)}; the file shows:\n  ${shown}`);
+  }
 }
 
 describe('diagnostics on the demo fleet', () => {
