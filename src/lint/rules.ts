@@ -8,7 +8,7 @@ import type { TraceFacts } from '../model/traces';
 import { RULES, ruleOf } from '../rules';
 import type { DiskCheck, FindingInput, SizedDisk } from '../rules/types';
 import { headRange } from './documents';
-import type { FileContext } from './prepare';
+import type { FileContext, FindingOwner } from './prepare';
 import type { LintFinding, MachineUnit } from './report';
 
 /** The image a disk names, as the caller read it. */
@@ -27,9 +27,10 @@ export interface DiskTrace {
   facts: TraceFacts;
 }
 
-export function valueProblemFindings(context: FileContext, problems: readonly ValueProblem[], into: LintFinding[]): void {
+/** The value problems as invalid-value findings of their owner (absent: they belong to the file). */
+export function valueProblemFindings(context: FileContext, problems: readonly ValueProblem[], into: LintFinding[], owner?: FindingOwner): void {
   const rule = ruleOf('invalid-value');
-  for (const problem of problems) context.add(into, rule, { message: `${problem.field}: ${problem.message}`, pointer: problem.pointer, range: problem.range });
+  for (const problem of problems) context.add(into, rule, { message: `${problem.field}: ${problem.message}`, pointer: problem.pointer, range: problem.range }, owner);
 }
 
 export function runDiskRules(
@@ -44,6 +45,7 @@ export function runDiskRules(
 ): void {
   const { mapping, document } = context;
   const fix = context.fixHelpers(disk, machines);
+  const owner: FindingOwner = { kind: 'disk', disk };
   for (const rule of RULES) {
     if (!rule.checkDisk || context.severityOf(rule) === 'off') continue;
     const report = (input: FindingInput) => {
@@ -55,7 +57,7 @@ export function runDiskRules(
         ...(input.fix ? { fix: input.fix } : {}),
         ...(input.alternatives && input.alternatives.length > 0 ? { alternatives: input.alternatives } : {}),
         ...(input.related ? { related: input.related } : {}),
-      });
+      }, owner);
     };
     const check: DiskCheck = {
       disk, sizing, top, mapping, fix, report,
@@ -75,6 +77,7 @@ export function runMachineRules(context: FileContext, unit: MachineUnit): void {
   const sized: SizedDisk[] = unit.disks.flatMap((d) => (d.result ? [{ disk: d.disk, sizing: d.result.sizing }] : []));
   const into: LintFinding[] = [];
   unit.ruleFindings = into;
+  const owner: FindingOwner = { kind: 'machine', machine };
   for (const rule of RULES) {
     if (!rule.checkMachine || context.severityOf(rule) === 'off') continue;
     rule.checkMachine({
@@ -86,7 +89,7 @@ export function runMachineRules(context: FileContext, unit: MachineUnit): void {
           pointer: at?.pointer ?? machine.pointer,
           range: at?.range ?? headRange(context.document, machine.range),
           ...(input.related ? { related: input.related } : {}),
-        });
+        }, owner);
       },
     });
   }
