@@ -9,7 +9,7 @@ import { RULES, ruleOf, say, wordingOf } from '../rules';
 import type { DiskCheck, FindingInput, SizedDisk } from '../rules/types';
 import { sayFinding } from '../rules/wording';
 import { headRange } from './documents';
-import type { FileContext } from './prepare';
+import type { FileContext, FindingOwner } from './prepare';
 import type { LintFinding, MachineUnit } from './report';
 
 /** The image a disk names, as the caller read it. */
@@ -28,10 +28,11 @@ export interface DiskTrace {
   facts: TraceFacts;
 }
 
-export function valueProblemFindings(context: FileContext, problems: readonly ValueProblem[], into: LintFinding[]): void {
+/** The value problems as invalid-value findings of their owner (absent: they belong to the file). */
+export function valueProblemFindings(context: FileContext, problems: readonly ValueProblem[], into: LintFinding[], owner?: FindingOwner): void {
   const rule = ruleOf('invalid-value');
   const wording = wordingOf('invalid-value');
-  for (const problem of problems) context.add(into, rule, { message: say(wording, 'unreadable', { field: problem.field, problem: problem.message }), pointer: problem.pointer, range: problem.range });
+  for (const problem of problems) context.add(into, rule, { message: say(wording, 'unreadable', { field: problem.field, problem: problem.message }), pointer: problem.pointer, range: problem.range }, owner);
 }
 
 export function runDiskRules(
@@ -46,6 +47,7 @@ export function runDiskRules(
 ): void {
   const { mapping, document } = context;
   const fix = context.fixHelpers(disk, machines);
+  const owner: FindingOwner = { kind: 'disk', disk };
   for (const rule of RULES) {
     if (!rule.checkDisk || context.severityOf(rule) === 'off') continue;
     const report = (input: FindingInput) => {
@@ -57,7 +59,7 @@ export function runDiskRules(
         ...(input.fix ? { fix: input.fix } : {}),
         ...(input.alternatives && input.alternatives.length > 0 ? { alternatives: input.alternatives } : {}),
         ...(input.related ? { related: input.related } : {}),
-      });
+      }, owner);
     };
     const check: DiskCheck = {
       disk, sizing, top, mapping, fix, report,
@@ -77,6 +79,7 @@ export function runMachineRules(context: FileContext, unit: MachineUnit): void {
   const sized: SizedDisk[] = unit.disks.flatMap((d) => (d.result ? [{ disk: d.disk, sizing: d.result.sizing }] : []));
   const into: LintFinding[] = [];
   unit.ruleFindings = into;
+  const owner: FindingOwner = { kind: 'machine', machine };
   for (const rule of RULES) {
     if (!rule.checkMachine || context.severityOf(rule) === 'off') continue;
     rule.checkMachine({
@@ -88,7 +91,7 @@ export function runMachineRules(context: FileContext, unit: MachineUnit): void {
           pointer: at?.pointer ?? machine.pointer,
           range: at?.range ?? headRange(context.document, machine.range),
           ...(input.related ? { related: input.related } : {}),
-        });
+        }, owner);
       },
     });
   }
