@@ -2,13 +2,15 @@
 // A cyclic scan over 64 cache entries (64 KiB clusters, whole tables: one entry maps 512 MiB [SPEC])
 // touches 64 x 64 KiB = 4 MiB of cache [MATTSON].
 import { strict as assert } from 'node:assert';
-import { MATTSON } from '../helpers/sources';
+import { MATTSON, SHARDS } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, ruleTable, type RuleCase } from './harness';
 import { TraceFolder } from './traces';
 
 const RULE = 'l2-cache-above-working-set';
 const MiB512 = 512n * 1024n * 1024n;
 const traces = new TraceFolder().cycle('traces/cycle64.csv', 64, MiB512, 20_000);
+// The same scan measured on a hashed sample of a quarter of the entries [SHARDS], as the editor measures large traces.
+const sampledTraces = new TraceFolder(0.25).cycle('traces/cycle64.csv', 64, MiB512, 20_000);
 const at = (disk: string, findings?: RuleCase['findings']): Omit<RuleCase, 'name'> => ({ text: oneDisk(disk), file: traces.definition, options: traces.options, ...(findings ? { findings } : {}) });
 const TRACE = 'io: { trace: traces/cycle64.csv }';
 
@@ -33,6 +35,21 @@ ruleTable(RULE, {
     { name: 'a combined cache alone, at the combined value', ...cases.combined },
   ],
   fix: { name: 'lowers the L2 cache to the working set, 4 MiB', ...cases.sixteen },
+});
+
+ruleTable(RULE, {
+  before: () => sampledTraces.load([{ text: oneDisk(`size: 1T\ncache: { l2: 64M }\n${TRACE}`) }]),
+  after: () => sampledTraces.remove(),
+  valid: [],
+  invalid: [
+    {
+      name: `${SHARDS} a working set estimated from a sample says so`,
+      text: oneDisk(`size: 1T\ncache: { l2: 64M }\n${TRACE}`),
+      file: sampledTraces.definition,
+      options: sampledTraces.options,
+      findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['of cache entries the trace touched (estimated from a 25 % sample)'] }],
+    },
+  ],
 });
 
 describe(`rule ${RULE}: the lowered cache`, () => {
