@@ -4,13 +4,11 @@
 import { strict as assert } from 'node:assert';
 import { MATTSON, SHARDS } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, ruleTable, type RuleCase } from './harness';
-import { TraceFolder } from './traces';
+import { sampledTraceTable, TraceFolder } from './traces';
 
 const RULE = 'l2-cache-above-working-set';
 const MiB512 = 512n * 1024n * 1024n;
 const traces = new TraceFolder().cycle('traces/cycle64.csv', 64, MiB512, 20_000);
-// The same scan measured on a hashed sample of a quarter of the entries [SHARDS], as the editor measures large traces.
-const sampledTraces = new TraceFolder(0.25).cycle('traces/cycle64.csv', 64, MiB512, 20_000);
 const at = (disk: string, findings?: RuleCase['findings']): Omit<RuleCase, 'name'> => ({ text: oneDisk(disk), file: traces.definition, options: traces.options, ...(findings ? { findings } : {}) });
 const TRACE = 'io: { trace: traces/cycle64.csv }';
 
@@ -37,19 +35,8 @@ ruleTable(RULE, {
   fix: { name: 'lowers the L2 cache to the working set, 4 MiB', ...cases.sixteen },
 });
 
-ruleTable(RULE, {
-  before: () => sampledTraces.load([{ text: oneDisk(`size: 1T\ncache: { l2: 64M }\n${TRACE}`) }]),
-  after: () => sampledTraces.remove(),
-  valid: [],
-  invalid: [
-    {
-      name: `${SHARDS} a working set estimated from a sample says so`,
-      text: oneDisk(`size: 1T\ncache: { l2: 64M }\n${TRACE}`),
-      file: sampledTraces.definition,
-      options: sampledTraces.options,
-      findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['of cache entries the trace touched (estimated from a 25 % sample)'] }],
-    },
-  ],
+sampledTraceTable(RULE, `${SHARDS} a working set estimated from a sample says so`, 'size: 1T\ncache: { l2: 64M }', {
+  rule: RULE, line: 6, column: 22, messageIncludes: ['of cache entries the trace touched (estimated from a 25 % sample)'],
 });
 
 describe(`rule ${RULE}: the lowered cache`, () => {

@@ -4,12 +4,10 @@
 import { strict as assert } from 'node:assert';
 import { MATTSON, SHARDS } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, ruleTable, type RuleCase } from './harness';
-import { TraceFolder } from './traces';
+import { sampledTraceTable, TraceFolder } from './traces';
 
 const RULE = 'l2-cache-undersized';
 const traces = new TraceFolder().cycle('traces/cycle64.csv', 64, 512n * 1024n * 1024n, 20_000);
-// The same scan measured on a hashed sample of a quarter of the entries [SHARDS], as the editor measures large traces.
-const sampledTraces = new TraceFolder(0.25).cycle('traces/cycle64.csv', 64, 512n * 1024n * 1024n, 20_000);
 const TRACE = 'io: { trace: traces/cycle64.csv }';
 const at = (disk: string, extra: Partial<RuleCase> = {}): Omit<RuleCase, 'name'> => ({ text: oneDisk(disk), file: traces.definition, options: traces.options, ...extra });
 
@@ -28,19 +26,8 @@ const cases = {
   }),
 };
 
-ruleTable(`${RULE}`, {
-  before: () => sampledTraces.load([{ text: oneDisk(`size: 1T\ncache: { l2: 1M }\n${TRACE}`) }]),
-  after: () => sampledTraces.remove(),
-  valid: [],
-  invalid: [
-    {
-      name: `${SHARDS} a sampled measurement says so beside the request count`,
-      text: oneDisk(`size: 1T\ncache: { l2: 1M }\n${TRACE}`),
-      file: sampledTraces.definition,
-      options: sampledTraces.options,
-      findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['(20,000 requests, estimated from a 25 % sample)'] }],
-    },
-  ],
+sampledTraceTable(RULE, `${SHARDS} a sampled measurement says so beside the request count`, 'size: 1T\ncache: { l2: 1M }', {
+  rule: RULE, line: 6, column: 22, messageIncludes: ['(20,000 requests, estimated from a 25 % sample)'],
 });
 
 ruleTable(RULE, {

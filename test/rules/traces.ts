@@ -9,7 +9,7 @@ import { traceRequestsOf } from '../../src/lint/traces';
 import { traceRequestKey, type TraceFacts } from '../../src/model/traces';
 import { measuredCurveOf } from '../../src/trace/facts';
 import { measureTraces } from '../../src/trace/measure';
-import { mappingFor, type MappingObject } from './harness';
+import { mappingFor, oneDisk, ruleTable, type ExpectedFinding, type MappingObject } from './harness';
 
 export class TraceFolder {
   readonly dir = mkdtempSync(path.join(tmpdir(), 'cachewright-rule-traces-'));
@@ -53,4 +53,20 @@ export class TraceFolder {
   remove(): void {
     rmSync(this.dir, { recursive: true, force: true });
   }
+}
+
+/**
+ * A one-case table for `rule`: the disk (one key per line, as oneDisk takes it) names a cyclic scan
+ * over 64 entries 512 MiB apart, measured on a hashed sample of a quarter of them [SHARDS], as the
+ * editor measures large traces; the finding must say the figures are estimated.
+ */
+export function sampledTraceTable(rule: string, name: string, disk: string, finding: ExpectedFinding): void {
+  const folder = new TraceFolder(0.25).cycle('traces/cycle64.csv', 64, 512n * 1024n * 1024n, 20_000);
+  const text = oneDisk(`${disk}\nio: { trace: traces/cycle64.csv }`);
+  ruleTable(rule, {
+    before: () => folder.load([{ text }]),
+    after: () => folder.remove(),
+    valid: [],
+    invalid: [{ name, text, file: folder.definition, options: folder.options, findings: [finding] }],
+  });
 }
