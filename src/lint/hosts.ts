@@ -30,16 +30,16 @@ function placedMachines(files: readonly Pick<WorkspaceFile, 'path' | 'machines'>
   for (const file of ordered) {
     for (const machine of file.machines) {
       if (machine.host === undefined || machine.hostPointer === undefined || machine.hostRange === undefined) continue;
-      const placed: PlacedMachine = {
-        file: file.path,
-        name: machine.name,
-        pointer: machine.pointer,
-        range: machine.range,
-        host: { name: machine.host, pointer: machine.hostPointer, range: machine.hostRange },
-        ...(machine.memory !== undefined ? { memory: machine.memory } : {}),
-        cacheMemoryTotal: machine.cacheMemoryTotal,
-      };
-      byHost.set(machine.host, [...(byHost.get(machine.host) ?? []), placed]);
+      // Built field by field and appended in place: this runs for every machine of the workspace
+      // after each lint in the editor (test/bench/host-pass.ts).
+      const host = { name: machine.host, pointer: machine.hostPointer, range: machine.hostRange };
+      const { name, pointer, range, memory, cacheMemoryTotal } = machine;
+      const placed: PlacedMachine = memory !== undefined
+        ? { file: file.path, name, pointer, range, host, memory, cacheMemoryTotal }
+        : { file: file.path, name, pointer, range, host, cacheMemoryTotal };
+      const onHost = byHost.get(machine.host);
+      if (onHost) onHost.push(placed);
+      else byHost.set(machine.host, [placed]);
     }
   }
   return byHost;
