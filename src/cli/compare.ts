@@ -13,7 +13,7 @@ import { extractRevision } from '../git/revision';
 import { renderCompareJson, renderCompareText } from './compare-output';
 import { renderCompareMarkdown } from '../review/markdown';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
-import { displayPath, findMappingFile, loadMappingText, selectFiles, stripBom } from './lint-discovery';
+import { displayPath, findNearestMappingFile, loadMappingText, selectFiles, stripBom } from './lint-discovery';
 import type { LintRequest } from './lint-file';
 import { reviewedFiles } from './lint-known';
 import { lintFiles } from './lint-parallel';
@@ -138,7 +138,7 @@ export async function runCompare(argv: readonly string[], io: CommandIO, version
   if (!isDirectory(headDir)) return usageError(io, `${request.head} is not a folder`);
   if (request.base !== undefined && !isDirectory(nodePath.resolve(io.cwd, request.base))) return usageError(io, `${request.base} is not a folder`);
 
-  const mappingPath = request.mapping !== undefined ? nodePath.resolve(io.cwd, request.mapping) : findMappingFile(headDir);
+  const mappingPath = request.mapping !== undefined ? nodePath.resolve(io.cwd, request.mapping) : findNearestMappingFile(headDir);
   if (mappingPath === undefined) {
     io.stderr(`cachewright compare: no mapping file in ${displayPath(headDir, io.cwd)} or any folder above it; name one with --mapping FILE\n`);
     return EXIT_USAGE;

@@ -53,7 +53,7 @@ export async function runInspect(args: string[], io: InspectIO): Promise<number>
     reports.push(where === image || !io.cwd ? report : relabel(report, io.cwd));
   }
 
-  io.stdout(format.value === 'json' ? `${stringifyJson({ images: reports.map((r) => toJson(r)) })}\n` : reports.map((r) => renderText(r)).join('\n'));
+  io.stdout(format.value === 'json' ? `${stringifyJson({ images: reports.map((r) => toJson(r)) })}\n` : reports.map((r) => renderImageText(r)).join('\n'));
   return reports.some(reportFailed) ? EXIT_USAGE : EXIT_OK;
 }
 
@@ -172,7 +172,7 @@ function layerLines(r: ImageReport, indent: string, profile: DriverProfile): str
   return lines;
 }
 
-export function renderText(r: ImageReport, profile: DriverProfile = driverProfile()): string {
+export function renderImageText(r: ImageReport, profile: DriverProfile = driverProfile()): string {
   const lines = [r.path, ...layerLines(r, '  ', profile)];
   const layers = [r, ...r.chain];
   if (r.chain.length > 0 || r.backing !== null) {

@@ -12,7 +12,7 @@ import { lintFiles } from './lint-parallel';
 import { startProgress } from './lint-progress';
 import { summarize, type LintedFile, type LintRun } from './lint-results';
 import { renderSarif } from './lint-sarif';
-import { renderText } from './lint-text';
+import { renderLintText } from './lint-text';
 import { compareRunWithKnown, writeKnown } from './lint-known';
 import { completeRun } from './lint-workspace';
 import * as nodePath from 'node:path';
@@ -147,7 +147,7 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   completeRun(run);
   const known = applyKnown(run, request, io);
   if (known !== undefined) return known;
-  const render = request.format === 'json' ? renderJson : request.format === 'sarif' ? renderSarif : renderText;
+  const render = request.format === 'json' ? renderJson : request.format === 'sarif' ? renderSarif : renderLintText;
   io.stdout(render(run));
 
   const problems: string[] = [];

@@ -2,7 +2,7 @@
 import * as vscode from 'vscode';
 import type { Finding, Fix } from '../lint';
 import { FIX_PASSES, nonOverlapping } from '../model/edits';
-import { SOURCE, ruleOf } from './diagnostics';
+import { SOURCE, ruleIdOf } from './diagnostics';
 import { toRange, workspaceEdit } from './edits';
 import type { Linting } from './linting';
 
@@ -33,7 +33,7 @@ export class CachewrightCodeActions implements vscode.CodeActionProvider {
       for (const finding of result.report.findings) {
         if (!finding.fix || finding.accepted) continue;
         const at = toRange(finding.range);
-        const diagnostic = ours.find((d) => ruleOf(d) === finding.rule && sameRange(d.range, at));
+        const diagnostic = ours.find((d) => ruleIdOf(d) === finding.rule && sameRange(d.range, at));
         if (!diagnostic && !at.intersection(range)) continue;
         // The fix first (preferred: what --fix applies), then the others offered beside it, such as
         // full coverage beside the smallest cache that reaches the target on a measured trace.
