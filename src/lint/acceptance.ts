@@ -3,12 +3,21 @@
 // decided here, once, and carried in the report.
 import type { MachineSpec } from '../model/disks';
 import { pointerWithin } from '../model/jsonpath';
-import { readSuppressions } from '../model/suppressions';
+import { readSuppressions, type SuppressionProblem } from '../model/suppressions';
 import { RULE_IDS, ruleOf, say, wordingOf } from '../rules';
 import type { FileContext } from './prepare';
 import type { LintFinding } from './report';
 
 const KNOWN_RULES: ReadonlySet<string> = new Set(RULE_IDS);
+const WORDING = wordingOf('invalid-suppression');
+
+/** What is wrong with an accept comment, in the invalid-suppression rule's wording. */
+function suppressionProblemText(problem: SuppressionProblem): string {
+  const rules = problem.rules.join(', ');
+  if (problem.kind === 'no-rule') return say(WORDING, 'noRule');
+  if (problem.kind === 'no-reason') return say(WORDING, 'noReason', { rules });
+  return problem.rules.length > 1 ? say(WORDING, 'unknownRules', { rules }) : say(WORDING, 'unknownRule', { rules });
+}
 
 /** An accept comment on a machine or on its host line, kept for the host rules that run later. */
 export interface HostAcceptance {
@@ -28,7 +37,7 @@ export function applyAcceptances(context: FileContext, machines: readonly Machin
   const out = [...findings];
   const rule = ruleOf('invalid-suppression');
   const { comments, problems } = readSuppressions(document, KNOWN_RULES);
-  for (const problem of problems) context.add(out, rule, { message: problem.message, pointer: '', range: problem.range });
+  for (const problem of problems) context.add(out, rule, { message: suppressionProblemText(problem), pointer: '', range: problem.range });
   const accept = (matches: (finding: LintFinding) => boolean, accepted: NonNullable<LintFinding['accepted']>): void => {
     out.forEach((finding, index) => {
       if (!finding.accepted && matches(finding)) out[index] = { ...finding, accepted };
@@ -46,7 +55,7 @@ export function applyAcceptances(context: FileContext, machines: readonly Machin
   for (const comment of comments) {
     const scope = scopes.filter((s) => s.line === comment.targetLine).sort((a, b) => a.pointer.length - b.pointer.length)[0];
     if (!scope) {
-      context.add(out, rule, { message: say(wordingOf('invalid-suppression'), 'notAbove'), pointer: '', range: comment.range });
+      context.add(out, rule, { message: say(WORDING, 'notAbove'), pointer: '', range: comment.range });
       continue;
     }
     if (scope.machine !== undefined) hostAcceptances.set(scope.machine, [...(hostAcceptances.get(scope.machine) ?? []), { rules: comment.rules, reason: comment.reason }]);

@@ -28,6 +28,11 @@ ruleTable(RULE, {
       findings: [{ rule: RULE, line: 4, column: 7, messageIncludes: 'l2-cache-tiny' }],
     },
     {
+      name: 'two unknown rule ids',
+      text: disks('# cachewright-accept l2-cache-tiny, l2-cache-huge: reviewed', '- { name: a, size: 1T }'),
+      findings: [{ rule: RULE, line: 4, column: 7, messageIncludes: 'names unknown rules l2-cache-tiny, l2-cache-huge' }],
+    },
+    {
       name: 'no reason',
       text: disks('# cachewright-accept l2-cache-undersized', '- { name: a, size: 1T }'),
       findings: [{ rule: RULE, line: 4, column: 7, messageIncludes: ['gives no reason', '# cachewright-accept l2-cache-undersized: REASON'] }],
