@@ -64,7 +64,7 @@ export class Linting implements vscode.Disposable {
   }
 
   private newTraceCache(): TraceCurveCache {
-    return new TraceCurveCache(vscode.Uri.joinPath(this.extensionUri, 'dist', 'trace-worker.js').fsPath, (job) => this.showTraceJob(job));
+    return new TraceCurveCache(vscode.Uri.joinPath(this.extensionUri, 'dist', 'trace-worker.js').fsPath, (job) => this.showTraceJob(job), readSettings().traceSampleRate);
   }
 
   /** A long measurement shows its progress and can be cancelled; a short one passes unseen. */
@@ -124,6 +124,11 @@ export class Linting implements vscode.Disposable {
         if (isMappingFileName(document.uri) || this.mappings.stateOfMappingFile(document.uri)) void this.mappingChanged(document.uri);
       }),
       vscode.workspace.onDidChangeConfiguration((event) => {
+        // Curves measured at another rate are not what the setting asks for: measure again.
+        if (event.affectsConfiguration('cachewright.traceSampleRate') && this.traceCurves) {
+          this.traceCurves.dispose();
+          this.traceCurves = this.newTraceCache();
+        }
         if (event.affectsConfiguration('cachewright')) void this.reloadMappings().then(() => this.lintWorkspace(false));
       }),
       vscode.workspace.onDidChangeWorkspaceFolders(() => void this.reloadMappings().then(() => this.lintWorkspace(false))),

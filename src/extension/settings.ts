@@ -1,7 +1,8 @@
 // The extension's settings, read in one place. Per-rule severities here override the mapping file's.
 import * as vscode from 'vscode';
 import type { Severity } from '../core/results';
-import { parseSize } from '../core/units';
+import { parseShare, parseSize } from '../core/units';
+import { checkSampleRate } from '../trace/measure';
 import { DEFINITION_SIZE_LIMIT, MAX_FILE_SIZE_LIMIT } from '../files/open';
 import { isOneOf } from '../core/guards';
 
@@ -16,6 +17,15 @@ export interface Settings {
   debounceMs: number;
   /** Definition files above this many bytes are not linted (the setting, else the default). */
   fileSizeLimit: number;
+  /** The share of cache entries counted when a trace is measured (1: every lookup). */
+  traceSampleRate: number;
+}
+
+/** The traceSampleRate setting: a share the trace reader accepts as a sample rate; anything else counts every lookup. */
+function sampleRate(raw: unknown): number {
+  const share = parseShare(raw);
+  const rate = share.ok ? checkSampleRate(share.value) : share;
+  return rate.ok ? rate.value : 1;
 }
 
 /** The fileSizeLimit setting in bytes: a size as the mapping file writes them; anything unreadable keeps the default. */
@@ -44,5 +54,6 @@ export function readSettings(scope?: vscode.Uri): Settings {
     rules,
     debounceMs: Number.isFinite(debounce) && debounce >= 0 ? Math.min(debounce, 5000) : 200,
     fileSizeLimit: sizeLimit(config.get<unknown>('fileSizeLimit', '32M')),
+    traceSampleRate: sampleRate(config.get<unknown>('traceSampleRate', 1)),
   };
 }

@@ -15,6 +15,26 @@ describe('settings', () => {
     await set('enable', undefined);
     await set('mappingFile', undefined);
     await set('fileSizeLimit', undefined);
+    await set('traceSampleRate', undefined);
+  });
+
+  it('measures the ledger\'s trace on a sample when traceSampleRate asks for one, and exactly again without it', async () => {
+    const { document } = await open(TICKETING);
+    const ledger = (): vscode.Diagnostic | undefined => ours(document.uri).find((d) => codeOf(d) === 'l2-cache-undersized' && /On the measured trace/.test(d.message));
+    assert.ok(!/estimated/.test((await waitFor('the exact measured finding', ledger, 20_000)).message));
+    await set('traceSampleRate', 0.5);
+    // Spatially hashed sampling at rate R counts the lookups of a share R of the entries and scales
+    // by 1/R; the finding says it is an estimate and at which rate (docs/traces.md).
+    const sampled = await waitFor('the finding from a 50 % sample', () => {
+      const found = ledger();
+      return found && /estimated from a 50 % sample/.test(found.message) ? found : undefined;
+    }, 20_000);
+    assert.match(sampled.message, /On the measured trace \(200,000 requests, estimated from a 50 % sample\)/);
+    await set('traceSampleRate', undefined);
+    await waitFor('the exact finding again', () => {
+      const found = ledger();
+      return found && !/estimated/.test(found.message) ? found : undefined;
+    }, 20_000);
   });
 
   it('leaves a definition above fileSizeLimit unlinted, with one error naming its size and the limit, also while typing', async () => {
