@@ -1,9 +1,7 @@
 // A definition file read with every node's place in the text. YAML and JSON both go through the
 // `yaml` package (JSON is read with its JSON schema), which keeps comments and exact offsets.
-import {
-  isAlias, isMap, isNode, isScalar, isSeq, parseDocument, type Document, type Node, type Pair,
-  type YAMLMap,
-} from 'yaml';
+import { isAlias, isMap, isNode, isScalar, isSeq, parseDocument } from './yaml-functions';
+import type { Document, Node, Pair, YAMLMap } from 'yaml';
 import type { SourceRange } from '../core/results';
 import { LineIndex } from './lines';
 import { findJsonSyntaxError } from './json-syntax';
