@@ -148,7 +148,7 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
     }),
     vscode.commands.registerCommand('cachewright.lintWorkspace', async () => {
       await linting.reloadMappings();
-      linting.forgetCancelledTraces();
+      linting.forgetUnfinishedTraces();
       const summary = await linting.lintWorkspace(true);
       if (linting.mappings.all().length === 0) {
         void vscode.window.showWarningMessage('cachewright: no mapping file (cachewright.yaml or cachewright.json) at the root of a workspace folder. Create one with "cachewright: Create a starter mapping file from this definition".');

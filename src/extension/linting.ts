@@ -90,9 +90,9 @@ export class Linting implements vscode.Disposable {
     void job.finished.then(() => clearTimeout(timer));
   }
 
-  /** Traces whose measuring the user cancelled are measured again on the next lint. */
-  forgetCancelledTraces(): void {
-    this.traceCurves?.forgetCancelled();
+  /** Traces whose measuring was cancelled or stopped are measured again on the next lint. */
+  forgetUnfinishedTraces(): void {
+    this.traceCurves?.forgetUnfinished();
   }
 
   private get enabled(): boolean {

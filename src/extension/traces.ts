@@ -23,25 +23,14 @@ interface Entry {
   facts: TraceFacts;
   /** Each trace file's size and modification time when it was read. */
   stamps: string;
-  cancelled: boolean;
-}
-
-async function stampsOf(paths: readonly string[]): Promise<string> {
-  const stamps = await Promise.all(paths.map(async (path) => {
-    try {
-      const stat = await fs.stat(path);
-      return `${stat.size}:${stat.mtimeMs}`;
-    } catch {
-      return 'missing';
-    }
-  }));
-  return stamps.join('|');
+  /** Cancelled, or the thread stopped before it answered: measured again on the next workspace lint. */
+  unfinished: boolean;
 }
 
 export class TraceCurveCache {
   private readonly entries = new Map<string, Entry>();
   /** Jobs queued or running, by key and stamps: a second lint of the same text waits for the first's job. */
-  private readonly pending = new Map<string, Promise<boolean>>();
+  private readonly pending = new Map<string, Promise<void>>();
   private readonly workers = new Set<Worker>();
   private queue: Promise<unknown> = Promise.resolve();
   private disposed = false;
@@ -60,12 +49,18 @@ export class TraceCurveCache {
     return `${traceRequestKey(request)}@${this.sampleRate}`;
   }
 
-  /** Measures the requests that are new or whose files changed; resolves true when any facts changed. */
+  /**
+   * Measures the requests that are new or whose files changed. Resolves true when the facts of any of
+   * them differ from those known when it was called: the caller lints with `lookup` and calls this
+   * right after, in the same turn, so true means its report is out of date. Compared with the facts
+   * at the call rather than with what this call measured, a job another lint started that ends while
+   * this call reads the files' stamps still tells this caller to lint again.
+   */
   async load(requests: readonly TraceRequest[]): Promise<boolean> {
     const unique = new Map(requests.map((r) => [this.keyOf(r), r]));
-    let changed = false;
+    const seen = new Map([...unique.keys()].map((key) => [key, this.entries.get(key)]));
     for (const [key, request] of unique) {
-      const stamps = await stampsOf(request.paths);
+      const stamps = await this.stampsOf(request.paths);
       if (this.entries.get(key)?.stamps === stamps) continue;
       const pendingKey = `${key}#${stamps}`;
       let job = this.pending.get(pendingKey);
@@ -73,16 +68,16 @@ export class TraceCurveCache {
         job = this.enqueue(key, request, stamps).finally(() => this.pending.delete(pendingKey));
         this.pending.set(pendingKey, job);
       }
-      if (await job) changed = true;
+      await job;
     }
-    return changed;
+    return [...seen].some(([key, entry]) => this.entries.get(key) !== entry);
   }
 
   readonly lookup: TraceLookup = (request) => this.entries.get(this.keyOf(request))?.facts;
 
-  /** Forgets the jobs the user cancelled, so the next lint measures them again. */
-  forgetCancelled(): void {
-    for (const [key, entry] of [...this.entries]) if (entry.cancelled) this.entries.delete(key);
+  /** Forgets the jobs that did not finish (cancelled, or their thread stopped), so the next lint measures them again. */
+  forgetUnfinished(): void {
+    for (const [key, entry] of [...this.entries]) if (entry.unfinished) this.entries.delete(key);
   }
 
   dispose(): void {
@@ -91,44 +86,64 @@ export class TraceCurveCache {
     this.workers.clear();
   }
 
-  private enqueue(key: string, request: TraceRequest, stamps: string): Promise<boolean> {
+  private enqueue(key: string, request: TraceRequest, stamps: string): Promise<void> {
     const run = this.queue.then(async () => {
-      if (this.disposed) return false;
-      const { facts, cancelled } = await this.measure(request);
-      if (this.disposed) return false;
-      this.entries.set(key, { facts, stamps, cancelled });
-      return true;
+      if (this.disposed) return;
+      const { facts, unfinished } = await this.measure(request);
+      if (this.disposed) return;
+      this.entries.set(key, { facts, stamps, unfinished });
     });
     this.queue = run.catch(() => undefined);
     return run;
   }
 
-  private measure(request: TraceRequest): Promise<{ facts: TraceFacts; cancelled: boolean }> {
+  /** Each trace file's size and modification time, to tell a changed file from a measured one. */
+  protected async stampsOf(paths: readonly string[]): Promise<string> {
+    const stamps = await Promise.all(paths.map(async (path) => {
+      try {
+        const stat = await fs.stat(path);
+        return `${stat.size}:${stat.mtimeMs}`;
+      } catch {
+        return 'missing';
+      }
+    }));
+    return stamps.join('|');
+  }
+
+  private measure(request: TraceRequest): Promise<{ facts: TraceFacts; unfinished: boolean }> {
     const input: TraceJobInput = { request, sampleRate: this.sampleRate };
     const worker = new Worker(this.workerScript, { workerData: input });
     this.workers.add(worker);
     const listeners: Array<(done: number) => void> = [];
+    let cancelled = false;
     const problem = (message: string): TraceFacts => ({ problem: { message, path: request.paths[0] ?? '' } });
-    const result = new Promise<{ facts: TraceFacts; cancelled: boolean }>((resolve) => {
+    // A stopped thread may have met a passing shortage (memory, a busy machine): no automatic retry,
+    // which could loop on a trace that always stops it, but the user's next workspace lint or an
+    // edit of the file measures it again.
+    const again = 'it is measured again with "Lint every definition in the workspace" or when the file changes';
+    const result = new Promise<{ facts: TraceFacts; unfinished: boolean }>((resolve) => {
       let settled = false;
-      const settle = (facts: TraceFacts, cancelled = false): void => {
+      const settle = (facts: TraceFacts, unfinished = false): void => {
         if (settled) return;
         settled = true;
         this.workers.delete(worker);
         void worker.terminate();
-        resolve({ facts, cancelled });
+        resolve({ facts, unfinished });
       };
       worker.on('message', (message: TraceJobMessage) => {
         if (message.type === 'progress') for (const listener of listeners) listener(message.done);
         else settle(message.outcome.ok ? { curve: measuredCurveOf(fromData(message.outcome.value)) } : problem(message.outcome.error));
       });
-      worker.on('error', (error) => settle(problem(`measuring it failed: ${error.message}`)));
-      worker.on('exit', () => settle(problem('measuring it was cancelled; it is measured again with "Lint every definition in the workspace" or when the file changes'), true));
+      worker.on('error', (error) => settle(problem(`measuring it failed: ${error.message}; ${again}`), true));
+      worker.on('exit', (code) => settle(problem(cancelled ? `measuring it was cancelled; ${again}` : `the thread measuring it stopped (exit code ${code}) before it answered; ${again}`), true));
     });
     this.onJob({
       paths: request.paths,
       onProgress: (listener) => listeners.push(listener),
-      cancel: () => void worker.terminate(),
+      cancel: () => {
+        cancelled = true;
+        void worker.terminate();
+      },
       finished: result.then(() => undefined),
     });
     return result;

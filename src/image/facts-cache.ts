@@ -28,17 +28,21 @@ export class ImageFactsCache {
   /** `recheck`: whether a chain read before is read again when one of its files changed. */
   constructor(private readonly options: { recheck: boolean }) {}
 
-  /** Reads the chains in `paths` that are new (or changed, with recheck); resolves true when any facts changed. */
+  /**
+   * Reads the chains in `paths` that are new (or changed, with recheck). Resolves true when the facts
+   * of any of them differ from those known when it was called (the caller lints, then calls this in
+   * the same turn), so a chain another call read meanwhile still tells this caller to lint again.
+   */
   async load(paths: readonly string[]): Promise<boolean> {
-    let changed = false;
-    for (const path of new Set(paths)) {
+    const unique = new Set(paths);
+    const seen = new Map([...unique].map((path) => [path, this.entries.get(path)]));
+    for (const path of unique) {
       const known = this.entries.get(path);
       if (known && !(await this.stale(known))) continue;
       const facts = chainFacts(await readChain(path));
       this.entries.set(path, { facts, stamps: this.options.recheck ? await stampsOf(path, facts) : [] });
-      changed = true;
     }
-    return changed;
+    return [...seen].some(([path, entry]) => this.entries.get(path) !== entry);
   }
 
   clear(): void {

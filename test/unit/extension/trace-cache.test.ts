@@ -103,8 +103,30 @@ describe('editor trace cache (worker thread)', () => {
     const cache = new TraceCurveCache(WORKER, (job) => job.cancel());
     assert.equal(await cache.load([request]), true);
     assert.match(cache.lookup(request)?.problem?.message ?? '', /cancelled/);
-    cache.forgetCancelled();
+    cache.forgetUnfinished();
     assert.equal(cache.lookup(request), undefined);
+    cache.dispose();
+  });
+  it('tells a lint to run again when a job another lint started ends while it reads the stamps', async () => {
+    // The lint that opened the file found no curve; the job a lint of the file on disk had started
+    // ends before this call has read the trace's stamps: the curve is new to this caller all the same.
+    let gate: Promise<void> | undefined;
+    let open = (): void => undefined;
+    class SlowStamps extends TraceCurveCache {
+      protected override async stampsOf(paths: readonly string[]): Promise<string> {
+        await gate;
+        return super.stampsOf(paths);
+      }
+    }
+    const cache = new SlowStamps(WORKER);
+    const first = cache.load([request]);
+    gate = new Promise((resolve) => (open = resolve));
+    const second = cache.load([request]);
+    assert.equal(await first, true);
+    assert.ok(cache.lookup(request)?.curve, 'the first job measured the curve');
+    open();
+    assert.equal(await second, true, 'the second caller linted without the curve and must lint again');
+    assert.equal(await cache.load([request]), false, 'a lint that saw the curve has nothing new');
     cache.dispose();
   });
 });
