@@ -31,6 +31,8 @@ function findingJson(run: LintRun, finding: Finding) {
     severity: finding.severity,
     message: finding.message,
     pointer: finding.pointer,
+    machine: finding.machine,
+    disk: finding.disk,
     ...position(finding.range),
     fix: finding.fix ? fixJson(finding.fix) : undefined,
     alternatives: finding.alternatives?.map(fixJson),

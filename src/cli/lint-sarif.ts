@@ -62,14 +62,21 @@ function sarifFixes(artifact: ArtifactLocation, fixes: readonly Fix[]) {
   }));
 }
 
-/** The measured figures of the disk a finding is about, when a trace was read for it (byte counts as numbers). */
-function measuredProperties(report: NonNullable<LintRun['files'][number]['report']>, finding: Finding) {
+/**
+ * The result's property bag: the machine and disk the finding belongs to (the names the JSON output
+ * uses), and the measured figures of its disk when a trace was read for it (byte counts as numbers).
+ */
+function resultProperties(report: NonNullable<LintRun['files'][number]['report']>, finding: Finding) {
   const disk = report.disks
     .filter((d) => d.measured && pointerWithin(finding.pointer, d.pointer))
     .sort((a, b) => b.pointer.length - a.pointer.length)[0];
   const m = disk?.measured;
-  if (!m) return undefined;
-  return { measured: { ...m, workingSet: Number(m.workingSet), recommendedL2Cache: Number(m.recommendedL2Cache) } };
+  const properties = {
+    ...(finding.machine !== undefined ? { machine: finding.machine } : {}),
+    ...(finding.disk !== undefined ? { disk: finding.disk } : {}),
+    ...(m ? { measured: { ...m, workingSet: Number(m.workingSet), recommendedL2Cache: Number(m.recommendedL2Cache) } } : {}),
+  };
+  return Object.keys(properties).length > 0 ? properties : undefined;
 }
 
 function result(run: LintRun, path: string, finding: Finding, report: NonNullable<LintRun['files'][number]['report']>) {
@@ -86,7 +93,7 @@ function result(run: LintRun, path: string, finding: Finding, report: NonNullabl
     baselineState: baselineOf(run, finding),
     relatedLocations: finding.related?.map((r, i) => location(r.file !== undefined ? artifactLocation(run, r.file) : artifact, r.range, r.pointer, r.message, i + 1)),
     fixes: sarifFixes(artifact, [...(finding.fix ? [finding.fix] : []), ...(finding.alternatives ?? [])]),
-    properties: measuredProperties(report, finding),
+    properties: resultProperties(report, finding),
     suppressions: finding.accepted
       ? [{ kind: finding.accepted.from === 'mapping' ? 'external' : 'inSource', status: 'accepted', justification: finding.accepted.reason }]
       : undefined,

@@ -61,6 +61,13 @@ export interface Finding<Rule extends string = string> {
   alternatives?: Fix[];
   related?: RelatedLocation[];
   accepted?: Acceptance;
+  /**
+   * The machine and the disk the finding belongs to, as the report names them (a disk's finding
+   * carries both, a machine's own only `machine`). Absent for a finding of the file (syntax, accept
+   * comments, values outside any machine) and for one about a whole host.
+   */
+  machine?: string;
+  disk?: string;
   /** A finding about a whole hypervisor host (it spans files): the host's name. */
   host?: string;
   /** The scalar value the finding points at, as data (absent when it points at a disk or machine). */

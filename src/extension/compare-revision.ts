@@ -1,18 +1,21 @@
 // "Compare with a git revision...": the review `cachewright compare --git REF --format markdown`
 // gives in CI, for the workspace as the editor holds it (unsaved edits included). The base is read
 // from the revision into a temporary folder (the work tree is never touched); both sides are linted
-// with the workspace's mapping file by the engine and paired up by src/review; the summary opens in
+// with the workspace's mapping file by the engine (disks that name a trace judged by its measured
+// curve, as in CI, in a trusted workspace) and paired up by src/review; the summary opens in
 // the editor's markdown preview (beside the active editor) as a read-only document.
 import * as vscode from 'vscode';
 import * as nodePath from 'node:path';
 import { extractRevision, listRevisions } from '../git/revision';
-import { lintDocument, lintHosts, loadMapping, type FileReport, type Mapping } from '../lint';
+import { lintHosts, lintPrepared, loadMapping, prepareDocument, type FileReport, type Mapping } from '../lint';
+import { traceRequestsOf } from '../lint/traces';
 import { compareRuns } from '../review/compare';
 import { renderCompareMarkdown } from '../review/markdown';
 import { reviewedFiles } from '../review/types';
 import { includedFiles } from './included-files';
 import { readDefinitionText, readText, type MappingState } from './mappings';
 import { readSettings } from './settings';
+import type { TraceCurveCache } from './traces';
 
 export const REVIEW_SCHEME = 'cachewright-review';
 
@@ -74,13 +77,20 @@ async function pickRevision(dir: string): Promise<string | undefined> {
 
 class ReviewError extends Error {}
 
-/** Lints every definition the mapping includes, with the text `read` gives, then the host rule across them. */
-async function lintSide(mapping: Mapping, limit: number): Promise<{ path: string; report?: FileReport }[]> {
+/**
+ * Lints every definition the mapping includes, with the text `read` gives, then the host rule across
+ * them. Disks that name a trace are judged by their measured curve, as the command line's review
+ * judges them, when `traces` is given.
+ */
+async function lintSide(mapping: Mapping, limit: number, traces: TraceCurveCache | undefined): Promise<{ path: string; report?: FileReport }[]> {
   const files: { path: string; report?: FileReport }[] = [];
   for (const uri of await includedFiles(mapping)) {
     const read = await readDefinitionText(uri, limit);
     if (read === undefined || 'tooLarge' in read) throw new ReviewError(`${uri.fsPath}: ${read === undefined ? 'cannot be read' : 'is above the cachewright.fileSizeLimit setting'}`);
-    files.push({ path: uri.fsPath, report: lintDocument({ path: uri.fsPath, text: read.text }, mapping) });
+    const prepared = prepareDocument({ path: uri.fsPath, text: read.text }, mapping);
+    const requests = traces ? traceRequestsOf(prepared) : [];
+    if (traces && requests.length > 0) await traces.load(requests);
+    files.push({ path: uri.fsPath, report: lintPrepared(prepared, traces ? { traces: traces.lookup } : {}) });
     // Each file is linted on its own turn: the editor keeps answering keystrokes in between.
     await new Promise((resolve) => setImmediate(resolve));
   }
@@ -90,7 +100,7 @@ async function lintSide(mapping: Mapping, limit: number): Promise<{ path: string
 }
 
 /** Runs the review against `revision` for the workspace folder of `state`; throws ReviewError with a message for the user. */
-async function review(state: MappingState & { mapping: Mapping }, revision: string): Promise<string> {
+async function review(state: MappingState & { mapping: Mapping }, revision: string, traces: ReviewTraces | undefined): Promise<string> {
   const head = state.mapping;
   const mappingText = await readText(state.uri);
   if (mappingText === undefined) throw new ReviewError(`${state.uri.fsPath}: the mapping file cannot be read`);
@@ -101,12 +111,14 @@ async function review(state: MappingState & { mapping: Mapping }, revision: stri
     const base = loadMapping(mappingText, nodePath.join(extracted.value.baseDir, nodePath.basename(head.path)));
     if (!base.mapping) throw new ReviewError(`${state.uri.fsPath}: ${base.problems[0]?.message ?? 'the mapping file has problems'}`);
     const limit = readSettings(state.uri).fileSizeLimit;
-    const baseFiles = await lintSide(base.mapping, limit);
-    const headFiles = await lintSide(head, limit);
+    const baseFiles = await lintSide(base.mapping, limit, traces?.base);
+    const headFiles = await lintSide(head, limit, traces?.head);
     const comparison = compareRuns(reviewedFiles(base.mapping.dir, baseFiles), reviewedFiles(head.dir, headFiles), head.hosts);
     // Links open the head's files in the editor.
     return renderCompareMarkdown({ comparison, baseLabel: revision }, { linkBase: `${vscode.Uri.file(head.dir).toString()}/` });
   } finally {
+    // The base's measuring thread is stopped before its files go.
+    traces?.base.dispose();
     extracted.value.remove();
   }
 }
@@ -118,7 +130,13 @@ function chooseMapping(states: readonly MappingState[]): (MappingState & { mappi
   return (active ? usable.find((s) => s.mapping.includes(active.fsPath) || s.uri.toString() === active.toString()) : undefined) ?? usable[0];
 }
 
-export async function compareWithRevision(states: readonly MappingState[], documents: ReviewDocuments, request: CompareRequest = {}): Promise<CompareResult> {
+/** The trace caches a review reads (see Linting.reviewTraces); the base's is disposed after the review. */
+export interface ReviewTraces {
+  head: TraceCurveCache;
+  base: TraceCurveCache;
+}
+
+export async function compareWithRevision(states: readonly MappingState[], documents: ReviewDocuments, request: CompareRequest = {}, traces?: () => ReviewTraces | undefined): Promise<CompareResult> {
   const fail = (error: string): CompareResult => {
     void vscode.window.showErrorMessage(`cachewright: ${error}`);
     return { ok: false, error };
@@ -130,7 +148,7 @@ export async function compareWithRevision(states: readonly MappingState[], docum
     if (revision === undefined) return { ok: false, error: 'no revision chosen' };
     const markdown = await vscode.window.withProgress(
       { location: vscode.ProgressLocation.Notification, title: `cachewright: comparing the workspace with ${revision}` },
-      () => review(state, revision),
+      () => review(state, revision, traces?.()),
     );
     const uri = documents.add(revision, markdown);
     // Beside the editor, which keeps the focus: the summary next to the edits it reviews.

@@ -168,7 +168,7 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
       return applied;
     }),
     reviews,
-    vscode.commands.registerCommand('cachewright.compareWithRevision', (request?: CompareRequest) => compareWithRevision(linting.mappings.all(), reviews, request)),
+    vscode.commands.registerCommand('cachewright.compareWithRevision', (request?: CompareRequest) => compareWithRevision(linting.mappings.all(), reviews, request, () => linting.reviewTraces())),
     vscode.commands.registerCommand('cachewright.createStarterMapping', (options?: { confirm?: boolean }) =>
       createStarterMapping(linting, activeDocument(), options?.confirm !== false)),
   );

@@ -90,6 +90,15 @@ export class Linting implements vscode.Disposable {
     void job.finished.then(() => clearTimeout(timer));
   }
 
+  /**
+   * The measured curves for a review against a revision, as `cachewright compare` reads them: the
+   * workspace's own (already measured for the open files) and a fresh cache for the base's copies,
+   * which the caller disposes. None in an untrusted workspace, where the editor reads no traces.
+   */
+  reviewTraces(): { head: TraceCurveCache; base: TraceCurveCache } | undefined {
+    return this.traceCurves ? { head: this.traceCurves, base: this.newTraceCache() } : undefined;
+  }
+
   /** Traces whose measuring was cancelled or stopped are measured again on the next lint. */
   forgetUnfinishedTraces(): void {
     this.traceCurves?.forgetUnfinished();

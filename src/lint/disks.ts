@@ -92,7 +92,7 @@ function sizeDisk(context: FileContext, disk: DiskSpec, machines: readonly Machi
         : `disk "${disk.name}" cannot be sized: the mapping file has no fields.disk.size selector`,
       pointer: disk.pointer,
       range: headRange(document, disk.range),
-    });
+    }, { kind: 'disk', disk });
     return undefined;
   }
   const sizing: DiskSizing = sizeChain(chain, mapping.profile);
@@ -119,7 +119,7 @@ function sizeDisk(context: FileContext, disk: DiskSpec, machines: readonly Machi
 /** One disk's findings (its value problems, then its rules) and sizing. */
 export function lintDisk(context: FileContext, disk: DiskSpec, problems: readonly ValueProblem[], machines: readonly MachineSpec[]): DiskUnit {
   const unit: DiskUnit = { disk, findings: [] };
-  valueProblemFindings(context, problems, unit.findings);
+  valueProblemFindings(context, problems, unit.findings, { kind: 'disk', disk });
   if (disk.isQcow2) {
     const result = sizeDisk(context, disk, machines, unit.findings);
     if (result) unit.result = result;
@@ -158,7 +158,7 @@ export function lintUnits(context: FileContext, extraction: Extraction): Units {
     const unit: MachineUnit = { machine, disks: [], valueFindings: [], ruleFindings: [] };
     // A machine that is its own disk (one disk per machine entry) leaves its problems to the disk.
     const own = machine.disks.some((d) => d.pointer === machine.pointer) ? [] : owners.get(machine.pointer) ?? [];
-    valueProblemFindings(context, own, unit.valueFindings);
+    valueProblemFindings(context, own, unit.valueFindings, { kind: 'machine', machine });
     for (const disk of machine.disks) unit.disks.push(lintDisk(context, disk, owners.get(disk.pointer) ?? [], machines));
     runMachineRules(context, unit);
     units.machines.push(unit);

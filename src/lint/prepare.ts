@@ -44,8 +44,11 @@ function scalarAt(document: DefinitionDocument, pointer: string): string | undef
   return node && isScalar(node) ? String(node.value) : undefined;
 }
 
-/** A finding as a rule hands it over, before its rule id and severity are attached. */
-export type FindingBody = Omit<LintFinding, 'rule' | 'severity'>;
+/** A finding as a rule hands it over, before its rule id, severity and owner are attached. */
+export type FindingBody = Omit<LintFinding, 'rule' | 'severity' | 'machine' | 'disk'>;
+
+/** The disk (with its machine) or the machine whose check made a finding: the finding belongs to it. */
+export type FindingOwner = { kind: 'disk'; disk: DiskSpec } | { kind: 'machine'; machine: MachineSpec };
 
 /** What one file's lint carries from rule to rule. Findings go to the list each call names. */
 export class FileContext {
@@ -64,11 +67,18 @@ export class FileContext {
     return this.severities[rule.id] ?? rule.severity;
   }
 
-  add(into: LintFinding[], rule: Rule<RuleId>, finding: FindingBody): void {
+  /** Adds a finding at the severity the file asks for; `owner` absent: it belongs to the file. */
+  add(into: LintFinding[], rule: Rule<RuleId>, finding: FindingBody, owner?: FindingOwner): void {
     const severity = this.severityOf(rule);
     if (severity === 'off') return;
     const written = scalarAt(this.document, finding.pointer);
-    into.push({ rule: rule.id, severity, ...finding, ...(written !== undefined ? { written } : {}) });
+    const out: LintFinding = { rule: rule.id, severity, ...finding };
+    if (owner?.kind === 'disk') {
+      out.machine = owner.disk.machine.name;
+      out.disk = owner.disk.name;
+    } else if (owner) out.machine = owner.machine.name;
+    if (written !== undefined) out.written = written;
+    into.push(out);
   }
 
   /** How the file writes sizes (read once per file: inserted values follow it). */

@@ -1,14 +1,14 @@
 // Running the rules: each rule's disk hook once per sized disk, its machine hook once per machine,
 // and value problems turned into invalid-value findings. Rules report at a located value (or at the
 // disk or machine when none is named); the severity the file asks for is attached here.
-import type { DiskSizing, LayerCache } from '../core/cache';
+import { cacheOptionsProblems, type DiskSizing, type LayerCache } from '../core/cache';
 import type { DiskSpec, Located, MachineSpec, ValueProblem } from '../model/disks';
 import type { ImageChainFacts } from '../model/images';
 import type { TraceFacts } from '../model/traces';
-import { RULES, ruleOf } from '../rules';
+import { RULES, ruleOf, type RuleId } from '../rules';
 import type { DiskCheck, FindingInput, SizedDisk } from '../rules/types';
 import { headRange } from './documents';
-import type { FileContext } from './prepare';
+import type { FileContext, FindingOwner } from './prepare';
 import type { LintFinding, MachineUnit } from './report';
 
 /** The image a disk names, as the caller read it. */
@@ -27,9 +27,31 @@ export interface DiskTrace {
   facts: TraceFacts;
 }
 
-export function valueProblemFindings(context: FileContext, problems: readonly ValueProblem[], into: LintFinding[]): void {
+/** The value problems as invalid-value findings of their owner (absent: they belong to the file). */
+export function valueProblemFindings(context: FileContext, problems: readonly ValueProblem[], into: LintFinding[], owner?: FindingOwner): void {
   const rule = ruleOf('invalid-value');
-  for (const problem of problems) context.add(into, rule, { message: `${problem.field}: ${problem.message}`, pointer: problem.pointer, range: problem.range });
+  for (const problem of problems) context.add(into, rule, { message: `${problem.field}: ${problem.message}`, pointer: problem.pointer, range: problem.range }, owner);
+}
+
+/**
+ * The rules that judge the split of a disk's caches (how much goes to L2 and refcount). When the
+ * written sizes contradict each other (all three knobs, or a part above the combined size) the
+ * driver refuses the disk, so the split they would be judged on never exists: the contradiction
+ * (invalid-value, cache-options-conflict) is the disk's only cache-sizing finding. Rules about a
+ * written value itself (cache-not-aligned) or the cluster size still run.
+ */
+const JUDGE_CACHE_SPLIT: ReadonlySet<RuleId> = new Set<RuleId>([
+  'l2-cache-undersized',
+  'l2-cache-oversized',
+  'l2-cache-above-working-set',
+  'cache-entry-size-suggested',
+  'cleanup-interval-missing',
+]);
+
+/** Whether the driver refuses the cache sizes a disk writes ([CACHE]; core/cache.ts). */
+function refusesCacheSizes(disk: DiskSpec): boolean {
+  const { l2Cache, refcountCache, combinedCache } = disk.values;
+  return cacheOptionsProblems({ l2Cache: l2Cache?.value, refcountCache: refcountCache?.value, combinedCache: combinedCache?.value }).length > 0;
 }
 
 export function runDiskRules(
@@ -44,8 +66,11 @@ export function runDiskRules(
 ): void {
   const { mapping, document } = context;
   const fix = context.fixHelpers(disk, machines);
+  const owner: FindingOwner = { kind: 'disk', disk };
+  const refused = refusesCacheSizes(disk);
   for (const rule of RULES) {
     if (!rule.checkDisk || context.severityOf(rule) === 'off') continue;
+    if (refused && JUDGE_CACHE_SPLIT.has(rule.id)) continue;
     const report = (input: FindingInput) => {
       const at = typeof input.at === 'string' ? disk.values[input.at] : input.at;
       context.add(into, rule, {
@@ -55,7 +80,7 @@ export function runDiskRules(
         ...(input.fix ? { fix: input.fix } : {}),
         ...(input.alternatives && input.alternatives.length > 0 ? { alternatives: input.alternatives } : {}),
         ...(input.related ? { related: input.related } : {}),
-      });
+      }, owner);
     };
     const check: DiskCheck = {
       disk, sizing, top, mapping, fix, report,
@@ -75,6 +100,7 @@ export function runMachineRules(context: FileContext, unit: MachineUnit): void {
   const sized: SizedDisk[] = unit.disks.flatMap((d) => (d.result ? [{ disk: d.disk, sizing: d.result.sizing }] : []));
   const into: LintFinding[] = [];
   unit.ruleFindings = into;
+  const owner: FindingOwner = { kind: 'machine', machine };
   for (const rule of RULES) {
     if (!rule.checkMachine || context.severityOf(rule) === 'off') continue;
     rule.checkMachine({
@@ -86,7 +112,7 @@ export function runMachineRules(context: FileContext, unit: MachineUnit): void {
           pointer: at?.pointer ?? machine.pointer,
           range: at?.range ?? headRange(context.document, machine.range),
           ...(input.related ? { related: input.related } : {}),
-        });
+        }, owner);
       },
     });
   }

@@ -9,7 +9,7 @@ import { execFileSync } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as path from 'node:path';
 import * as vscode from 'vscode';
-import { api, open, rangeOf, waitFor, workspaceRoot } from './helpers';
+import { api, cliFindings, open, rangeOf, waitFor, workspaceRoot } from './helpers';
 
 type CompareResult = { ok: true; revision: string; uri: vscode.Uri; markdown: string } | { ok: false; error: string };
 
@@ -57,6 +57,13 @@ describe('compare with a git revision', () => {
       assert.match(markdown, /\| tern-db-01 \| quill-hv-north \| [^|]+ \| [^|]+ \| \+120 MiB \|/);
       assert.match(markdown, /Settled findings \(1, positions in the base\)/);
       assert.match(markdown, /`l2-cache-undersized` at \[fleet\/ticketing\.yaml:\d+\]\(file:\/\/[^)]*\/fleet\/ticketing\.yaml#L\d+\)/);
+      // The base's ledger disk is judged by its measured trace, with the very message the command
+      // line gives for the committed file (the work tree on disk is the base: the edit is unsaved).
+      const committed = cliFindings('fleet/ticketing.yaml').find((f) => f.rule === 'l2-cache-undersized' && /measured trace/.test(f.message));
+      assert.ok(committed, 'the command line judges the committed ledger disk by its trace');
+      // The summary escapes only &, <, > and | in messages (src/review/markdown.ts).
+      const asMarkdown = committed.message.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/\|/g, '\\|');
+      assert.ok(markdown.includes(`: ${asMarkdown}`), `the settled finding says: ${committed.message}\n${markdown}`);
       const preview = await waitFor('the markdown preview', () => vscode.window.tabGroups.all.flatMap((g) => g.tabs)
         .find((t) => t.input instanceof vscode.TabInputWebview && /markdown\.preview/.test(t.input.viewType) && t.label.includes('timetable-v1')));
       assert.ok(preview.label.includes('timetable-v1'), preview.label);

@@ -4,9 +4,8 @@
 // With the demo's trace (scripts/demo-traces.mjs) the ledger disk is judged by its measured curve:
 // the editor must show the very finding and fix the command line gives for it.
 import * as assert from 'node:assert/strict';
-import { execFileSync } from 'node:child_process';
 import * as vscode from 'vscode';
-import { api, codeOf, EXTENSION_ID, open, ours, perf, rangeOf, revert, waitFor, workspaceRoot } from './helpers';
+import { api, cliFindings, codeOf, open, ours, perf, rangeOf, revert, waitFor, type CliFinding } from './helpers';
 
 const TICKETING = 'fleet/ticketing.yaml';
 const HARBOUR = 'fleet/harbour.json';
@@ -15,31 +14,9 @@ const KiB = 1024;
 /** The l2-cache-undersized message once the trace is measured (the rule's measured wording). */
 const MEASURED = /On the measured trace \(200,000 requests\)/;
 
-interface CliFinding { rule: string; message: string; line: number; column: number; fix?: { title: string; edits: { text: string }[] } }
-
 /** The command line's finding of `rule` at the start of `range`, from its JSON output (CONTRACTS.md section 3). */
 function cliFindingAt(relative: string, rule: string, range: vscode.Range): CliFinding | undefined {
   return cliFindings(relative).find((f) => f.rule === rule && f.line === range.start.line + 1 && f.column === range.start.character + 1);
-}
-
-/** The command line's findings for a workspace file, from its JSON output (CONTRACTS.md section 3). */
-function cliFindings(relative: string): CliFinding[] {
-  const extension = vscode.extensions.getExtension(EXTENSION_ID);
-  assert.ok(extension, 'the extension is installed');
-  const cli = vscode.Uri.joinPath(extension.extensionUri, 'dist', 'cli.js').fsPath;
-  // The extension host's own runtime runs the CLI (an electron host runs as node with this variable).
-  const run = (): string => {
-    try {
-      return execFileSync(process.execPath, [cli, 'lint', relative, '--format', 'json'], { cwd: workspaceRoot().fsPath, encoding: 'utf8', env: { ...process.env, ELECTRON_RUN_AS_NODE: '1' } });
-    } catch (error) {
-      // Findings make the exit code non-zero; the JSON is still on stdout.
-      const stdout = (error as { stdout?: string }).stdout;
-      if (typeof stdout === 'string' && stdout.startsWith('{')) return stdout;
-      throw error;
-    }
-  };
-  const parsed = JSON.parse(run()) as { files: { findings: CliFinding[] }[] };
-  return parsed.files.flatMap((f) => f.findings);
 }
 
 /** The ledger's undersized-cache diagnostic once its trace has been measured in the worker. */

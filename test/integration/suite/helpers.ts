@@ -1,5 +1,6 @@
 // Small helpers for tests that run inside the real extension host.
 import * as assert from 'node:assert/strict';
+import { execFileSync } from 'node:child_process';
 import * as vscode from 'vscode';
 import type { CachewrightApi } from '../../../src/extension/extension';
 
@@ -69,4 +70,26 @@ export async function revert(document: vscode.TextDocument): Promise<void> {
 /** One line for the performance summary the launcher prints. */
 export function perf(label: string, value: string): void {
   console.log(`perf: ${label}: ${value}`);
+}
+
+export interface CliFinding { rule: string; message: string; line: number; column: number; fix?: { title: string; edits: { text: string }[] } }
+
+/** The command line's findings for a workspace file, from its JSON output (CONTRACTS.md section 3). */
+export function cliFindings(relative: string): CliFinding[] {
+  const extension = vscode.extensions.getExtension(EXTENSION_ID);
+  assert.ok(extension, 'the extension is installed');
+  const cli = vscode.Uri.joinPath(extension.extensionUri, 'dist', 'cli.js').fsPath;
+  // The extension host's own runtime runs the CLI (an electron host runs as node with this variable).
+  const run = (): string => {
+    try {
+      return execFileSync(process.execPath, [cli, 'lint', relative, '--format', 'json'], { cwd: workspaceRoot().fsPath, encoding: 'utf8', env: { ...process.env, ELECTRON_RUN_AS_NODE: '1' } });
+    } catch (error) {
+      // Findings make the exit code non-zero; the JSON is still on stdout.
+      const stdout = (error as { stdout?: string }).stdout;
+      if (typeof stdout === 'string' && stdout.startsWith('{')) return stdout;
+      throw error;
+    }
+  };
+  const parsed = JSON.parse(run()) as { files: { findings: CliFinding[] }[] };
+  return parsed.files.flatMap((f) => f.findings);
 }
