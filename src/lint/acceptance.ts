@@ -4,7 +4,7 @@
 import type { MachineSpec } from '../model/disks';
 import { pointerWithin } from '../model/jsonpath';
 import { readSuppressions } from '../model/suppressions';
-import { RULE_IDS, ruleOf } from '../rules';
+import { RULE_IDS, ruleOf, say, wordingOf } from '../rules';
 import type { FileContext } from './prepare';
 import type { LintFinding } from './report';
 
@@ -46,7 +46,7 @@ export function applyAcceptances(context: FileContext, machines: readonly Machin
   for (const comment of comments) {
     const scope = scopes.filter((s) => s.line === comment.targetLine).sort((a, b) => a.pointer.length - b.pointer.length)[0];
     if (!scope) {
-      context.add(out, rule, { message: 'this accept comment is not above a disk or machine, so it accepts nothing', pointer: '', range: comment.range });
+      context.add(out, rule, { message: say(wordingOf('invalid-suppression'), 'notAbove'), pointer: '', range: comment.range });
       continue;
     }
     if (scope.machine !== undefined) hostAcceptances.set(scope.machine, [...(hostAcceptances.get(scope.machine) ?? []), { rules: comment.rules, reason: comment.reason }]);

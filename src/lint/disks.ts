@@ -7,7 +7,7 @@ import { nodeAt } from '../model/document';
 import type { DiskSpec, Extraction, MachineSpec, ValueProblem } from '../model/disks';
 import type { ImageChainFacts } from '../model/images';
 import type { Mapping } from '../model/mapping';
-import { ruleOf } from '../rules';
+import { ruleOf, say, wordingOf } from '../rules';
 import { headRange } from './documents';
 import type { FileContext } from './prepare';
 import type { DiskResult, DiskUnit, MachineUnit, Units } from './report';
@@ -88,8 +88,8 @@ function sizeDisk(context: FileContext, disk: DiskSpec, machines: readonly Machi
     if (sizeChainKeys && nodeAt(document, [...disk.path, ...sizeChainKeys])) return undefined;
     context.add(into, ruleOf('invalid-value'), {
       message: sizeField
-        ? `disk "${disk.name}" has no virtual size: nothing at ${sizeField}, so its caches cannot be sized`
-        : `disk "${disk.name}" cannot be sized: the mapping file has no fields.disk.size selector`,
+        ? say(wordingOf('invalid-value'), 'noSize', { disk: disk.name, selector: sizeField })
+        : say(wordingOf('invalid-value'), 'noSizeSelector', { disk: disk.name }),
       pointer: disk.pointer,
       range: headRange(document, disk.range),
     }, { kind: 'disk', disk });

@@ -7,7 +7,8 @@ import { formatSize } from '../core/format';
 import { readDefinition, type DefinitionDocument, type ReadResult } from '../model/document';
 import { extractMachines, type Extraction, type MachineSpec } from '../model/disks';
 import type { Mapping } from '../model/mapping';
-import { ruleOf } from '../rules';
+import { ruleOf, say, wordingOf } from '../rules';
+import { exactBytes } from '../rules/format';
 import type { SourceFile } from './prepare';
 import type { FileReport } from './report';
 
@@ -36,13 +37,19 @@ export function prepareDocument(file: SourceFile, mapping: Mapping): PreparedDoc
 
 /** The report of a text that does not parse: its parse errors, nothing else. */
 export function unparsedReport(path: string, problems: readonly { message: string; range: SourceRange }[]): FileReport {
+  const wording = wordingOf('parse-error');
+  return parseErrorReport(path, problems.map((p) => ({ message: say(wording, 'unreadable', { problem: p.message }), range: p.range })));
+}
+
+/** A report of parse-error findings alone, their texts already said. */
+function parseErrorReport(path: string, findings: readonly { message: string; range: SourceRange }[]): FileReport {
   const rule = ruleOf('parse-error');
   return {
     path,
     disks: [],
     machines: [],
-    findings: problems.map((p) => ({ rule: rule.id, severity: 'error' as const, message: p.message, pointer: '', range: p.range })),
-    fileFindings: problems.map((_, index) => index),
+    findings: findings.map((f) => ({ rule: rule.id, severity: 'error' as const, message: f.message, pointer: '', range: f.range })),
+    fileFindings: findings.map((_, index) => index),
     parsed: false,
   };
 }
@@ -53,8 +60,8 @@ export function unparsedReport(path: string, problems: readonly { message: strin
  */
 export function oversizedFileReport(path: string, size: bigint, limit: bigint, raise: string): FileReport {
   const at: SourceRange = { offset: 0, length: 0, line: 1, column: 1, endLine: 1, endColumn: 1 };
-  const message = `${nodePath.basename(path)} is ${formatSize(size)} (${size} bytes), above the size limit of ${formatSize(limit)} for definition files, so it is not linted; ${raise}`;
-  return unparsedReport(path, [{ message, range: at }]);
+  const message = say(wordingOf('parse-error'), 'tooLarge', { file: nodePath.basename(path), size: formatSize(size), bytes: exactBytes(size), limit: formatSize(limit), raise });
+  return parseErrorReport(path, [{ message, range: at }]);
 }
 
 /** The first line of a node: where findings about a whole disk or machine are shown. */

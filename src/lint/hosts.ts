@@ -9,6 +9,7 @@ import { RULES } from '../rules';
 import type { PlacedMachine } from '../rules/types';
 import type { Severity } from '../core/results';
 import type { LintFinding, MachineReport } from './report';
+import { sayFinding } from '../rules/wording';
 
 /** What the step reads of one linted file, and where it adds findings. */
 export interface WorkspaceFile {
@@ -83,11 +84,12 @@ export function lintHosts(files: readonly WorkspaceFile[], mapping: Mapping, opt
         host,
         ...(budget ? { budget } : {}),
         machines,
-        report: ({ severity, message, related }) => {
+        report: (input) => {
+          const { severity, related } = input;
           const finding: LintFinding = {
             rule: rule.id,
             severity: chosenSeverity(severities[rule.id]) ?? severity,
-            message,
+            message: sayFinding(rule.wording, input),
             pointer: first.host.pointer,
             range: first.host.range,
             related: related.map((r) => (r.file === first.file ? { message: r.message, pointer: r.pointer, range: r.range } : r)),

@@ -5,8 +5,9 @@ import { cacheOptionsProblems, type DiskSizing, type LayerCache } from '../core/
 import type { DiskSpec, Located, MachineSpec, ValueProblem } from '../model/disks';
 import type { ImageChainFacts } from '../model/images';
 import type { TraceFacts } from '../model/traces';
-import { RULES, ruleOf, type RuleId } from '../rules';
+import { RULES, ruleOf, say, wordingOf, type RuleId } from '../rules';
 import type { DiskCheck, FindingInput, SizedDisk } from '../rules/types';
+import { sayFinding } from '../rules/wording';
 import { headRange } from './documents';
 import type { FileContext, FindingOwner } from './prepare';
 import type { LintFinding, MachineUnit } from './report';
@@ -30,7 +31,8 @@ export interface DiskTrace {
 /** The value problems as invalid-value findings of their owner (absent: they belong to the file). */
 export function valueProblemFindings(context: FileContext, problems: readonly ValueProblem[], into: LintFinding[], owner?: FindingOwner): void {
   const rule = ruleOf('invalid-value');
-  for (const problem of problems) context.add(into, rule, { message: `${problem.field}: ${problem.message}`, pointer: problem.pointer, range: problem.range }, owner);
+  const wording = wordingOf('invalid-value');
+  for (const problem of problems) context.add(into, rule, { message: say(wording, 'unreadable', { field: problem.field, problem: problem.message }), pointer: problem.pointer, range: problem.range }, owner);
 }
 
 /**
@@ -74,7 +76,7 @@ export function runDiskRules(
     const report = (input: FindingInput) => {
       const at = typeof input.at === 'string' ? disk.values[input.at] : input.at;
       context.add(into, rule, {
-        message: input.message,
+        message: sayFinding(rule.wording, input),
         pointer: at?.pointer ?? disk.pointer,
         range: at?.range ?? headRange(document, disk.range),
         ...(input.fix ? { fix: input.fix } : {}),
@@ -108,7 +110,7 @@ export function runMachineRules(context: FileContext, unit: MachineUnit): void {
       report: (input) => {
         const at = typeof input.at === 'object' ? input.at : undefined;
         context.add(into, rule, {
-          message: input.message,
+          message: sayFinding(rule.wording, input),
           pointer: at?.pointer ?? machine.pointer,
           range: at?.range ?? headRange(context.document, machine.range),
           ...(input.related ? { related: input.related } : {}),

@@ -1,21 +1,30 @@
-import { docsPage, type Rule } from './types';
+import { asWritten } from './format';
+import { declareRule } from './types';
+import { say } from './wording';
 
-export const cacheOptionsConflict: Rule<'cache-options-conflict'> = {
+const WORDING = {
+  allThree: 'L2 ({l2}), refcount ({refcount}) and combined ({combined}) cache sizes are all set; the driver refuses a disk with all three. Remove one of them.',
+  l2Here: 'L2 cache set here',
+  refcountHere: 'refcount cache set here',
+} as const;
+
+export const cacheOptionsConflict = declareRule({
   id: 'cache-options-conflict',
   severity: 'error',
   description: 'L2, refcount and combined cache sizes are all set; the driver accepts at most two.',
   fixable: false,
-  docs: docsPage('cache-options-conflict'),
+  wording: WORDING,
   checkDisk({ disk, report }) {
     const { l2Cache, refcountCache, combinedCache } = disk.values;
     if (!l2Cache || !refcountCache || !combinedCache) return;
     report({
       at: 'combinedCache',
-      message: `L2 (${l2Cache.raw}), refcount (${refcountCache.raw}) and combined (${combinedCache.raw}) cache sizes are all set; the driver refuses a disk with all three. Remove one of them.`,
+      says: 'allThree',
+      fill: { l2: asWritten(l2Cache.raw), refcount: asWritten(refcountCache.raw), combined: asWritten(combinedCache.raw) },
       related: [
-        { message: 'L2 cache set here', pointer: l2Cache.pointer, range: l2Cache.range },
-        { message: 'refcount cache set here', pointer: refcountCache.pointer, range: refcountCache.range },
+        { message: say(WORDING, 'l2Here'), pointer: l2Cache.pointer, range: l2Cache.range },
+        { message: say(WORDING, 'refcountHere'), pointer: refcountCache.pointer, range: refcountCache.range },
       ],
     });
   },
-};
+});

@@ -55,6 +55,9 @@ export const isRuleId = (id: string): id is RuleId => KNOWN_IDS.has(id);
 
 /** The rule with this id. */
 export const ruleOf = (id: RuleId): Rule<RuleId> => RULE_REGISTRY[id];
+/** A rule's wording with the literal type of each text: the orchestrator says its findings through it. */
+export const wordingOf = <Id extends RuleId>(id: Id): (typeof RULE_REGISTRY)[Id]['wording'] => RULE_REGISTRY[id].wording;
 /** The rule an outside string names, if any (a mapping file's or a finding's rule id). */
 export const ruleById = (id: string): Rule<RuleId> | undefined => (isRuleId(id) ? RULE_REGISTRY[id] : undefined);
 export type { Rule } from './types';
+export { say } from './wording';

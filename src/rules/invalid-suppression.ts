@@ -1,10 +1,16 @@
-import { docsPage, type Rule } from './types';
+import { declareRule } from './types';
 
 /** Reported by the orchestrator for a suppression comment it cannot honour. */
-export const invalidSuppression: Rule<'invalid-suppression'> = {
+export const invalidSuppression = declareRule({
   id: 'invalid-suppression',
   severity: 'warning',
   description: 'An accept comment names no rule, an unknown rule, or gives no reason.',
   fixable: false,
-  docs: docsPage('invalid-suppression'),
-};
+  wording: {
+    noRule: 'this accept comment names no rule; write "# cachewright-accept RULE: REASON"',
+    unknownRule: 'this accept comment names unknown rule {rules}',
+    unknownRules: 'this accept comment names unknown rules {rules}',
+    noReason: 'this accept comment for {rules} gives no reason; write "# cachewright-accept {rules}: REASON"',
+    notAbove: 'this accept comment is not above a disk or machine, so it accepts nothing',
+  },
+});

@@ -1,14 +1,32 @@
 import { l2CoveredBytes, minimumRefcountCache } from '../core/sizing';
 import { measuredTarget, type MeasuredTarget } from './measured';
-import { formatShare } from '../core/format';
 import type { MeasuredCurve } from '../model/traces';
 import { TRACE_CAUTION } from './trace-unreadable';
 import type { LayerCache } from '../core/cache';
 import type { Fix } from '../core/results';
 import { modelCache } from '../core/cachemodel';
 import { accessOfPattern } from '../core/workload';
-import { ratio, share, size } from './format';
-import { docsPage, type Rule } from './types';
+import { count, ratio, share, size } from './format';
+import { declareRule } from './types';
+import { say } from './wording';
+
+const WORDING = {
+  modelled: '{where} of {cache} maps {covered} of this {disk} disk ({share}); full coverage needs {need} ({more} more memory per open disk).{prediction}',
+  measured: '{where} of {cache} maps {covered} of this {disk} disk ({share}); full coverage needs {need} ({more} more memory per open disk). On the measured trace ({requests} requests{sampled}) it hits {hits} of L2 lookups; {goal}. {caution}',
+  defaultCache: 'the driver default L2 cache',
+  combinedShare: 'the L2 share of the combined cache',
+  l2Cache: 'the L2 cache',
+  prediction: ' Under {pattern} access it predicts {hits} L2 hits, {misses} extra metadata reads per 1,000 guest I/Os; full coverage: 100 % and none.',
+  sampled: ', estimated from a {rate} sample',
+  targetReached: '{cache} reaches the {target} target',
+  targetUnreachable: 'no cache reaches {target} on it (first touches always miss); {cache} holds all {workingSet} it touched',
+  setCombined: 'Set the combined cache to {combined} ({why})',
+  setL2: 'Set the L2 cache to {cache} ({why})',
+  setL2AndCombined: 'Set the L2 cache to {cache} and the combined cache to {combined} ({why})',
+  fullCoverage: 'full coverage',
+  reachesOnTrace: 'reaches {target} on the measured trace',
+  traceWorkingSet: 'the working set of the measured trace',
+} as const;
 
 /**
  * Sentences already computed, by their inputs: a fleet repeats a few geometries, caches and patterns
@@ -38,30 +56,39 @@ function predictionText(top: LayerCache, pattern: string, requestSize: bigint): 
   if (!model.ok) return '';
   // Rounded down, so a ratio just short of 1 never reads as "100 %".
   const misses = Math.round(model.value.missesPer1000);
-  return ` Under ${pattern} access it predicts ${ratio(model.value.hitRatio)} L2 hits, ${misses} extra metadata reads per 1,000 guest I/Os; full coverage: 100 % and none.`;
+  return say(WORDING, 'prediction', { pattern, hits: ratio(model.value.hitRatio), misses: count(misses) });
 }
 
-function measuredText(curve: MeasuredCurve, effective: bigint, target: number, measured: MeasuredTarget): string {
-  const sampled = curve.sampleRate < 1 ? `, estimated from a ${formatShare(curve.sampleRate, 2)} sample` : '';
-  const requests = curve.requests.toLocaleString('en-US');
+/** The slots of the measured text that come from the trace. */
+function measuredFill(curve: MeasuredCurve, effective: bigint, target: number, measured: MeasuredTarget): { requests: string; sampled: string; hits: string; goal: string } {
   const goal = measured.reached
-    ? `${size(measured.cacheBytes)} reaches the ${formatShare(target)} target`
-    : `no cache reaches ${formatShare(target)} on it (first touches always miss); ${size(measured.cacheBytes)} holds all ${size(curve.workingSet)} it touched`;
-  return `On the measured trace (${requests} requests${sampled}) it hits ${formatShare(curve.hitRatioAt(effective))} of L2 lookups; ${goal}.`;
+    ? say(WORDING, 'targetReached', { cache: size(measured.cacheBytes), target: ratio(target) })
+    : say(WORDING, 'targetUnreachable', { target: ratio(target), cache: size(measured.cacheBytes), workingSet: size(curve.workingSet) });
+  return {
+    requests: count(curve.requests),
+    sampled: curve.sampleRate < 1 ? say(WORDING, 'sampled', { rate: ratio(curve.sampleRate, 2) }) : '',
+    hits: ratio(curve.hitRatioAt(effective)),
+    goal,
+  };
 }
 
-export const l2CacheUndersized: Rule<'l2-cache-undersized'> = {
+export const l2CacheUndersized = declareRule({
   id: 'l2-cache-undersized',
   severity: 'warning',
   description: 'The effective L2 cache maps less than the whole virtual disk, so random I/O pays extra metadata reads.',
   fixable: true,
-  docs: docsPage('l2-cache-undersized'),
+  wording: WORDING,
   checkDisk({ disk, top, sizing, pattern, requestSize, report, fix, trace, mapping }) {
     const { virtualSize, clusterSize, extendedL2 } = top.geometry;
     if (l2CoveredBytes(top.l2, clusterSize, extendedL2, top.entrySize) >= virtualSize) return;
     const need = sizing.recommended.l2Cache;
-    const where = top.l2Source === 'default' ? 'the driver default L2 cache' : top.l2Source === 'combined' ? 'the L2 share of the combined cache' : 'the L2 cache';
-    const coverage = `${where} of ${size(top.l2)} maps ${size(top.l2Covered)} of this ${size(virtualSize)} disk (${share(top.l2Covered, virtualSize)}); full coverage needs ${size(need)} (${size(need - top.l2)} more memory per open disk).`;
+    const where = say(WORDING, top.l2Source === 'default' ? 'defaultCache' : top.l2Source === 'combined' ? 'combinedShare' : 'l2Cache');
+    const cache = size(top.l2);
+    const covered = size(top.l2Covered);
+    const diskSize = size(virtualSize);
+    const coveredShare = share(top.l2Covered, virtualSize);
+    const needed = size(need);
+    const more = size(need - top.l2);
     const { combinedCache, l2Cache, refcountCache } = disk.values;
     const onlyCombined = combinedCache !== undefined && l2Cache === undefined;
     const refcount = refcountCache?.value ?? minimumRefcountCache(clusterSize);
@@ -69,11 +96,11 @@ export const l2CacheUndersized: Rule<'l2-cache-undersized'> = {
     // alone would push it past the combined size, which the driver refuses; the combined size grows too.
     const withCombined = combinedCache !== undefined && l2Cache !== undefined;
     const setL2 = (bytes: bigint, why: string): Fix | undefined => {
-      if (onlyCombined) return fix.setSize('combinedCache', bytes + refcount, `Set the combined cache to ${size(bytes + refcount)} (${why})`);
-      const l2 = fix.setSize('l2Cache', bytes, `Set the L2 cache to ${size(bytes)} (${why})`);
+      if (onlyCombined) return fix.setSize('combinedCache', bytes + refcount, say(WORDING, 'setCombined', { combined: size(bytes + refcount), why }));
+      const l2 = fix.setSize('l2Cache', bytes, say(WORDING, 'setL2', { cache: size(bytes), why }));
       if (!withCombined || !l2) return l2;
       const combined = fix.setSize('combinedCache', bytes + top.refcount, '');
-      return combined ? { title: `Set the L2 cache to ${size(bytes)} and the combined cache to ${size(bytes + top.refcount)} (${why})`, edits: [...l2.edits, ...combined.edits] } : undefined;
+      return combined ? { title: say(WORDING, 'setL2AndCombined', { cache: size(bytes), combined: size(bytes + top.refcount), why }), edits: [...l2.edits, ...combined.edits] } : undefined;
     };
     const at = onlyCombined ? 'combinedCache' : l2Cache ? 'l2Cache' : undefined;
     const curve = trace?.facts.curve;
@@ -82,13 +109,14 @@ export const l2CacheUndersized: Rule<'l2-cache-undersized'> = {
       const target = mapping.assume.targetHitRatio;
       const measured = measuredTarget(curve, target, top.entrySize);
       if (top.l2 >= measured.cacheBytes) return;
-      const message = `${coverage} ${measuredText(curve, top.l2, target, measured)} ${TRACE_CAUTION}`;
-      const primary = setL2(measured.cacheBytes, measured.reached ? `reaches ${formatShare(target)} on the measured trace` : 'the working set of the measured trace');
-      const full = setL2(need, 'full coverage');
-      report({ ...(at ? { at } : {}), message, ...(primary ? { fix: primary } : {}), ...(full ? { alternatives: [full] } : {}) });
+      const { requests, sampled, hits, goal } = measuredFill(curve, top.l2, target, measured);
+      const fill = { where, cache, covered, disk: diskSize, share: coveredShare, need: needed, more, requests, sampled, hits, goal, caution: TRACE_CAUTION };
+      const primary = setL2(measured.cacheBytes, measured.reached ? say(WORDING, 'reachesOnTrace', { target: ratio(target) }) : say(WORDING, 'traceWorkingSet'));
+      const full = setL2(need, say(WORDING, 'fullCoverage'));
+      report({ ...(at ? { at } : {}), says: 'measured', fill, ...(primary ? { fix: primary } : {}), ...(full ? { alternatives: [full] } : {}) });
       return;
     }
-    const message = `${coverage}${prediction(top, pattern, requestSize)}`;
-    report({ ...(at ? { at } : {}), message, fix: setL2(need, 'full coverage') });
+    const fill = { where, cache, covered, disk: diskSize, share: coveredShare, need: needed, more, prediction: prediction(top, pattern, requestSize) };
+    report({ at, says: 'modelled', fill, fix: setL2(need, say(WORDING, 'fullCoverage')) });
   },
-};
+});

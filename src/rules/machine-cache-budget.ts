@@ -1,13 +1,23 @@
 import { machineCacheUse } from '../core/sizing';
-import { ratio, share, size } from './format';
-import { docsPage, type Rule } from './types';
+import { count, ratio, share, size } from './format';
+import { declareRule } from './types';
+import { say } from './wording';
 
-export const machineCacheBudget: Rule<'machine-cache-budget'> = {
+const WORDING = {
+  overBudget: "disk caches of {machine} take {total} over {disks}, {used} of its {memory} RAM; the budget is {budget} ({budgetBytes}). Check the host's headroom before raising caches.",
+  oneDisk: '1 disk',
+  disks: '{count} disks',
+  diskUse: '{disk}: {caches} over {layers}',
+  oneLayer: '1 layer',
+  layers: '{count} layers',
+} as const;
+
+export const machineCacheBudget = declareRule({
   id: 'machine-cache-budget',
   severity: 'warning',
   description: "A machine's cache memory over all its disks and backing layers exceeds the budget share of its RAM.",
   fixable: false,
-  docs: docsPage('machine-cache-budget'),
+  wording: WORDING,
   checkMachine({ machine, disks, mapping, report }) {
     const memory = machine.memory?.value;
     if (!memory || disks.length === 0) return;
@@ -15,8 +25,21 @@ export const machineCacheBudget: Rule<'machine-cache-budget'> = {
     if (budget === undefined || total <= budget) return;
     report({
       at: machine.memory,
-      message: `disk caches of ${machine.name} take ${size(total)} over ${disks.length} disk${disks.length > 1 ? 's' : ''}, ${share(total, memory)} of its ${size(memory)} RAM; the budget is ${ratio(mapping.cacheShareOfMemory)} (${size(budget)}). Check the host's headroom before raising caches.`,
-      related: disks.map((d) => ({ message: `${d.disk.name}: ${size(d.sizing.report.cacheMemoryTotal)} over ${d.sizing.layers.length} layer${d.sizing.layers.length > 1 ? 's' : ''}`, pointer: d.disk.pointer, range: d.disk.range })),
+      says: 'overBudget',
+      fill: {
+        machine: machine.name,
+        total: size(total),
+        disks: disks.length > 1 ? say(WORDING, 'disks', { count: count(disks.length) }) : say(WORDING, 'oneDisk'),
+        used: share(total, memory),
+        memory: size(memory),
+        budget: ratio(mapping.cacheShareOfMemory),
+        budgetBytes: size(budget),
+      },
+      related: disks.map((d) => {
+        const layers = d.sizing.layers.length;
+        const over = layers > 1 ? say(WORDING, 'layers', { count: count(layers) }) : say(WORDING, 'oneLayer');
+        return { message: say(WORDING, 'diskUse', { disk: d.disk.name, caches: size(d.sizing.report.cacheMemoryTotal), layers: over }), pointer: d.disk.pointer, range: d.disk.range };
+      }),
     });
   },
-};
+});

@@ -8,8 +8,9 @@ import type { DiskSpec, DiskValues, Located, MachineSpec } from '../model/disks'
 import type { Assumptions, HostBudget, Mapping } from '../model/mapping';
 import type { ImageChainFacts } from '../model/images';
 import type { TraceFacts } from '../model/traces';
+import type { Said, Wording } from './wording';
 
-export interface RuleMeta<Id extends string = string> {
+export interface RuleMeta<Id extends string = string, W extends Wording = Wording> {
   id: Id;
   severity: Severity;
   /** One line: what the rule catches. */
@@ -17,6 +18,8 @@ export interface RuleMeta<Id extends string = string> {
   fixable: boolean;
   /** The rule's docs page, relative to the package root. */
   docs: string;
+  /** Every text the rule's findings, related places and fix titles carry, by key (src/rules/wording.ts). */
+  wording: W;
 }
 
 export type SizeField = 'l2Cache' | 'refcountCache' | 'combinedCache' | 'cacheEntrySize';
@@ -27,8 +30,10 @@ export interface FixHelpers {
   setInterval(field: 'cleanupInterval', seconds: number, title: string): Fix | undefined;
 }
 
-export interface FindingInput {
-  message: string;
+/** A finding as a rule reports it: the key of its text in the rule's wording and the values that fill it. */
+export type FindingInput<W extends Wording = Wording> = Said<W> & FindingPlace;
+
+export interface FindingPlace {
   /** The value the finding is about; absent: the disk (or machine) itself. */
   at?: keyof DiskValues | Located<unknown>;
   fix?: Fix;
@@ -80,11 +85,10 @@ export interface PlacedMachine {
   cacheMemoryTotal: bigint;
 }
 
-export interface HostFindingInput {
+export type HostFindingInput<W extends Wording = Wording> = Said<W> & {
   severity: Severity;
-  message: string;
   related: RelatedLocation[];
-}
+};
 
 /** One host and every machine placed on it, across all the files linted together. */
 export interface HostCheck {
@@ -97,6 +101,7 @@ export interface HostCheck {
   report(finding: HostFindingInput): void;
 }
 
+/** A rule as the engine runs it: any wording, hooks that report by key. */
 export interface Rule<Id extends string = string> extends RuleMeta<Id> {
   checkDisk?(check: DiskCheck): void;
   checkMachine?(check: MachineCheck): void;
@@ -104,4 +109,22 @@ export interface Rule<Id extends string = string> extends RuleMeta<Id> {
   checkHost?(check: HostCheck): void;
 }
 
+/** A check whose `report` takes only the keys of one wording, each with the fill its text asks for. */
+type Worded<Check, Input> = Omit<Check, 'report'> & { report(finding: Input): void };
+
+/** A rule as it is written: its hooks see its own wording's keys. */
+export interface RuleSpec<Id extends string, W extends Wording> extends Omit<RuleMeta<Id, W>, 'docs'> {
+  checkDisk?(check: Worded<DiskCheck, FindingInput<W>>): void;
+  checkMachine?(check: Worded<MachineCheck, FindingInput<W>>): void;
+  checkHost?(check: Worded<HostCheck, HostFindingInput<W>>): void;
+}
+
 export const docsPage = (id: string): string => `docs/rules/${id}.md`;
+
+/**
+ * A rule from its id, metadata, wording and hooks; its docs page follows from the id. The wording's
+ * texts keep their literal types, so each report's key and fill are checked against them.
+ */
+export function declareRule<const Id extends string, const W extends Wording>(rule: RuleSpec<Id, W>): Rule<Id> & { wording: W } {
+  return { ...rule, docs: docsPage(rule.id) };
+}
