@@ -110,7 +110,20 @@ function resolve(node: unknown, state: { viaAlias: boolean }, doc: Document.Pars
 /** The node at a path of map keys and sequence indices. */
 export function nodeAt(document: DefinitionDocument, path: readonly PathSegment[]): LocatedNode | undefined {
   const state = { viaAlias: false };
-  let current = resolve(document.tree.contents, state, document.tree);
+  return walkFrom(document, resolve(document.tree.contents, state, document.tree), state, path);
+}
+
+/**
+ * The node at a path below a node already found (a disk's values below the disk): the same answer as
+ * nodeAt with the two paths joined, without walking down from the root again for every value.
+ */
+export function nodeBelow(document: DefinitionDocument, start: LocatedNode, path: readonly PathSegment[]): LocatedNode | undefined {
+  if (path.length === 0) return start;
+  return walkFrom(document, start.node, { viaAlias: start.viaAlias }, path);
+}
+
+function walkFrom(document: DefinitionDocument, from: unknown, state: { viaAlias: boolean }, path: readonly PathSegment[]): LocatedNode | undefined {
+  let current = from;
   let pair: Pair | undefined;
   for (const segment of path) {
     if (isMap(current)) {
