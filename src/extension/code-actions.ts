@@ -3,6 +3,7 @@ import * as vscode from 'vscode';
 import type { Finding, Fix } from '../lint';
 import { FIX_PASSES, nonOverlapping } from '../model/edits';
 import { SOURCE, ruleOf } from './diagnostics';
+import { acceptActions } from './accept-finding';
 import { toRange, workspaceEdit } from './edits';
 import type { Linting } from './linting';
 
@@ -45,6 +46,11 @@ export class CachewrightCodeActions implements vscode.CodeActionProvider {
           actions.push(action);
         }
       }
+      // After the fixes: accepting a finding is the reviewer's call, never the preferred action.
+      actions.push(...acceptActions(this.linting, document, (finding) => {
+        const at = toRange(finding.range);
+        return ours.find((d) => ruleOf(d) === finding.rule && sameRange(d.range, at)) ?? (at.intersection(range) ? undefined : false);
+      }));
     }
     if (!context.only || wantsFixAll || context.only.contains(vscode.CodeActionKind.Source)) {
       const { fixes } = fixAllEdits(result.report.findings);

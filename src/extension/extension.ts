@@ -14,6 +14,7 @@ import { CacheStatus } from './status-bar';
 import { proposeMapping } from './starter-proposal';
 import { setDiskSizesEdit } from '../model/disk-edits';
 import { registerImageViewer } from './image-viewer';
+import { acceptFinding, ACCEPT_FINDING_COMMAND, type AcceptRequest } from './accept-finding';
 import { compareWithRevision, ReviewDocuments, type CompareRequest } from './compare-revision';
 import type { WhatIfValues } from '../protocol/panel';
 
@@ -168,6 +169,7 @@ export function activate(context: vscode.ExtensionContext): CachewrightApi {
       return applied;
     }),
     reviews,
+    vscode.commands.registerCommand(ACCEPT_FINDING_COMMAND, (request: AcceptRequest) => acceptFinding(linting, request)),
     vscode.commands.registerCommand('cachewright.compareWithRevision', (request?: CompareRequest) => compareWithRevision(linting.mappings.all(), reviews, request, () => linting.reviewTraces())),
     vscode.commands.registerCommand('cachewright.createStarterMapping', (options?: { confirm?: boolean }) =>
       createStarterMapping(linting, activeDocument(), options?.confirm !== false)),

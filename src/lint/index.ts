@@ -14,6 +14,7 @@ export { oversizedFileReport, prepareDocument, type PreparedDocument } from './d
 export { loadMapping, type LintOptions, type SourceFile } from './prepare';
 export type { DiskReport, FileReport, LintFinding as Finding, MachineReport } from './report';
 export { LintSession } from './session';
+export { acceptCommentEdit } from './accept-comment';
 export { hostReports, lintHosts, type HostReport, type WorkspaceFile } from './hosts';
 export type { HostLoad } from '../core/host-load';
 

@@ -53,7 +53,7 @@ describe('commands, status bar and panel', () => {
   it('registers its commands in one category', async () => {
     await api();
     const commands = await vscode.commands.getCommands(true);
-    for (const id of ['cachewright.showSizingPanel', 'cachewright.lintWorkspace', 'cachewright.fixAllInFile', 'cachewright.createStarterMapping']) {
+    for (const id of ['cachewright.showSizingPanel', 'cachewright.lintWorkspace', 'cachewright.fixAllInFile', 'cachewright.createStarterMapping', 'cachewright.compareWithRevision', 'cachewright.acceptFinding']) {
       assert.ok(commands.includes(id), `${id} is registered`);
     }
     const manifest = vscode.extensions.getExtension('cachewright.cachewright')?.packageJSON as { contributes: { commands: { category: string }[] } };
