@@ -3,6 +3,8 @@
 // separators, intervals in seconds with the unit a person would pick. Pure: runs in the webviews too.
 // Values written back into definition files are not formatted here (see units.ts, formatSizeExact).
 
+import { atIndex } from './indexed';
+
 const KI = 1024n;
 const BINARY_NAMES = ['B', 'KiB', 'MiB', 'GiB', 'TiB', 'PiB', 'EiB'] as const;
 /** 1024 to the power of each unit's index, computed once: the lint formats several sizes per disk. */
@@ -14,8 +16,8 @@ const BINARY_UNITS = BINARY_NAMES.map((_, index) => KI ** BigInt(index));
  */
 export function formatSize(bytes: bigint): string {
   let index = 0;
-  while (index < BINARY_NAMES.length - 1 && bytes >= (BINARY_UNITS[index + 1] as bigint)) index++;
-  const unit = BINARY_UNITS[index] as bigint;
+  while (index < BINARY_NAMES.length - 1 && bytes >= atIndex(BINARY_UNITS, index + 1)) index++;
+  const unit = atIndex(BINARY_UNITS, index);
   const hundredths = (bytes * 100n) / unit;
   const exact = (bytes * 100n) % unit === 0n;
   const whole = hundredths / 100n;
