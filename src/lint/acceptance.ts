@@ -1,14 +1,41 @@
-// Accepting findings: an accept comment above a disk or machine, or an entry of the mapping file's
+// Accepting findings: an accept comment above a disk, machine or value, or an entry of the mapping file's
 // accept list, marks the findings under it as reviewed. Which of the two accepted a finding is
 // decided here, once, and carried in the report.
-import type { MachineSpec } from '../model/disks';
+import type { DiskSpec, Located, MachineSpec } from '../model/disks';
 import { pointerWithin } from '../model/jsonpath';
-import { readSuppressions } from '../model/suppressions';
+import { readSuppressions, type SuppressionProblem } from '../model/suppressions';
 import { RULE_IDS, ruleOf, say, wordingOf } from '../rules';
 import type { FileContext } from './prepare';
 import type { LintFinding } from './report';
 
 const KNOWN_RULES: ReadonlySet<string> = new Set(RULE_IDS);
+const WORDING = wordingOf('invalid-suppression');
+
+/** What is wrong with an accept comment, in the invalid-suppression rule's wording. */
+function suppressionProblemText(problem: SuppressionProblem): string {
+  const rules = problem.rules.join(', ');
+  if (problem.kind === 'no-rule') return say(WORDING, 'noRule');
+  if (problem.kind === 'no-reason') return say(WORDING, 'noReason', { rules });
+  return problem.rules.length > 1 ? say(WORDING, 'unknownRules', { rules }) : say(WORDING, 'unknownRule', { rules });
+}
+
+/** A line an accept comment can stand above: a disk's or machine's first line, a host line, or a value's line. */
+interface Scope {
+  pointer: string;
+  line: number;
+  /** The machine whose first line or host line this is (its comments also reach the host's findings). */
+  machine?: string;
+  value?: true;
+}
+
+const valueScope = (value: Located<unknown>): Scope => ({ pointer: value.pointer, line: value.range.line, value: true });
+
+/** A disk's first line and the lines of its values, and the same for a backing disk written inline. */
+function diskScopes(disk: DiskSpec, scopes: Scope[]): void {
+  scopes.push({ pointer: disk.pointer, line: disk.range.line });
+  for (const value of Object.values(disk.values)) if (value) scopes.push(valueScope(value));
+  if (disk.backing && 'disk' in disk.backing) diskScopes(disk.backing.disk, scopes);
+}
 
 /** An accept comment on a machine or on its host line, kept for the host rules that run later. */
 export interface HostAcceptance {
@@ -28,29 +55,33 @@ export function applyAcceptances(context: FileContext, machines: readonly Machin
   const out = [...findings];
   const rule = ruleOf('invalid-suppression');
   const { comments, problems } = readSuppressions(document, KNOWN_RULES);
-  for (const problem of problems) context.add(out, rule, { message: problem.message, pointer: '', range: problem.range });
+  for (const problem of problems) context.add(out, rule, { message: suppressionProblemText(problem), pointer: '', range: problem.range });
   const accept = (matches: (finding: LintFinding) => boolean, accepted: NonNullable<LintFinding['accepted']>): void => {
     out.forEach((finding, index) => {
       if (!finding.accepted && matches(finding)) out[index] = { ...finding, accepted };
     });
   };
-  const scopes: { pointer: string; line: number; machine?: string }[] = [];
+  const scopes: Scope[] = [];
   const hostAcceptances = new Map<string, HostAcceptance[]>();
   if (comments.length > 0) {
     for (const machine of machines) {
       if (machine.path.length > 0) scopes.push({ pointer: machine.pointer, line: machine.range.line, machine: machine.pointer });
       if (machine.host) scopes.push({ pointer: machine.host.pointer, line: machine.host.range.line, machine: machine.pointer });
-      for (const disk of machine.disks) scopes.push({ pointer: disk.pointer, line: disk.range.line });
+      if (machine.memory) scopes.push(valueScope(machine.memory));
+      for (const disk of machine.disks) diskScopes(disk, scopes);
     }
   }
   for (const comment of comments) {
-    const scope = scopes.filter((s) => s.line === comment.targetLine).sort((a, b) => a.pointer.length - b.pointer.length)[0];
+    const onLine = scopes.filter((s) => s.line === comment.targetLine).sort((a, b) => a.pointer.length - b.pointer.length);
+    const scope = onLine[0];
     if (!scope) {
-      context.add(out, rule, { message: say(wordingOf('invalid-suppression'), 'notAbove'), pointer: '', range: comment.range });
+      context.add(out, rule, { message: say(WORDING, 'notAbove'), pointer: '', range: comment.range });
       continue;
     }
     if (scope.machine !== undefined) hostAcceptances.set(scope.machine, [...(hostAcceptances.get(scope.machine) ?? []), { rules: comment.rules, reason: comment.reason }]);
-    accept((finding) => comment.rules.includes(finding.rule) && pointerWithin(finding.pointer, scope.pointer), { reason: comment.reason, from: 'comment' });
+    // Above a line of values (no disk or machine starts there): every value written on that line.
+    const covered = scope.value ? onLine.filter((s) => s.value) : [scope];
+    accept((finding) => comment.rules.includes(finding.rule) && covered.some((s) => pointerWithin(finding.pointer, s.pointer)), { reason: comment.reason, from: 'comment' });
   }
   for (const entry of mapping.accept) {
     if (entry.file !== undefined && entry.file !== document.path) continue;

@@ -14,8 +14,11 @@ export interface SuppressionComment {
   targetLine: number;
 }
 
+/** What is wrong with an accept comment; the invalid-suppression rule's wording says it. */
 export interface SuppressionProblem {
-  message: string;
+  kind: 'no-rule' | 'unknown-rules' | 'no-reason';
+  /** The unknown rules (unknown-rules) or the rules named (no-reason); empty for no-rule. */
+  rules: string[];
   range: SourceRange;
 }
 
@@ -51,16 +54,16 @@ export function readSuppressions(document: DefinitionDocument, knownRules: Reado
     const reason = colon === -1 ? '' : body.slice(colon + 1).trim();
     const rules = ruleText.split(/[\s,]+/).filter(Boolean);
     if (rules.length === 0) {
-      problems.push({ message: 'this accept comment names no rule; write "# cachewright-accept RULE: REASON"', range });
+      problems.push({ kind: 'no-rule', rules, range });
       continue;
     }
     const unknown = rules.filter((r) => !knownRules.has(r));
     if (unknown.length > 0) {
-      problems.push({ message: `this accept comment names unknown rule${unknown.length > 1 ? 's' : ''} ${unknown.join(', ')}`, range });
+      problems.push({ kind: 'unknown-rules', rules: unknown, range });
       continue;
     }
     if (!reason) {
-      problems.push({ message: `this accept comment for ${rules.join(', ')} gives no reason; write "# cachewright-accept ${rules.join(', ')}: REASON"`, range });
+      problems.push({ kind: 'no-reason', rules, range });
       continue;
     }
     // A comment alone on its line applies to the next line with content; a trailing one to its own line.

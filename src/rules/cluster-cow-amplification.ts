@@ -3,17 +3,12 @@ import { KiB, writeAmplification } from '../core/sizing';
 import { isSequential } from '../core/workload';
 import { factor, size } from './format';
 import { declareRule } from './types';
-import { say } from './wording';
 
 /** Above this allocation unit, small first writes copy far more than they write (common practice). */
 const LARGE_UNIT = 64n * KiB;
 
 const WORDING = {
-  firstWritesFill: '{pattern} {request} writes on {units}: each first write into unallocated space fills {moved} ({ratio}x the data written). {remedy} keeps first writes small. {caution}',
-  subclusters: 'subclusters of {unit}',
-  clusters: '{cluster} clusters',
-  smallerCluster: 'A smaller cluster',
-  smallerClusterOrExtended: 'A smaller cluster, or extended L2 (32 subclusters per cluster),',
+  firstWritesFill: '{pattern} {request} writes on {cluster} clusters: each first write into unallocated space fills {moved} ({ratio}x the data written). A smaller cluster, or extended L2 (32 subclusters per cluster), keeps first writes small. {caution}',
 } as const;
 
 export const clusterCowAmplification = declareRule({
@@ -26,8 +21,8 @@ export const clusterCowAmplification = declareRule({
     if (isSequential(pattern)) return;
     const { clusterSize, extendedL2 } = top.geometry;
     const amplification = writeAmplification(requestSize, clusterSize, extendedL2);
+    // With extended L2 the unit is a subcluster, at most 2 MiB / 32 = 64 KiB [SPEC]: never above the line.
     if (amplification.unit <= LARGE_UNIT || requestSize >= amplification.unit) return;
-    const units = extendedL2 ? say(WORDING, 'subclusters', { unit: size(amplification.unit) }) : say(WORDING, 'clusters', { cluster: size(clusterSize) });
     report({
       // Point at what sets the cluster: the definition's value, or the image file when that is where it comes from.
       at: disk.values.clusterSize?.value === clusterSize ? 'clusterSize' : disk.values.image ? 'image' : undefined,
@@ -35,10 +30,9 @@ export const clusterCowAmplification = declareRule({
       fill: {
         pattern,
         request: size(requestSize),
-        units,
+        cluster: size(clusterSize),
         moved: size(amplification.bytesMoved),
         ratio: factor(amplification.ratio),
-        remedy: say(WORDING, extendedL2 ? 'smallerCluster' : 'smallerClusterOrExtended'),
         caution: CAUTIONS.fixedAtCreation,
       },
     });

@@ -11,6 +11,6 @@ export const invalidSuppression = declareRule({
     unknownRule: 'this accept comment names unknown rule {rules}',
     unknownRules: 'this accept comment names unknown rules {rules}',
     noReason: 'this accept comment for {rules} gives no reason; write "# cachewright-accept {rules}: REASON"',
-    notAbove: 'this accept comment is not above a disk or machine, so it accepts nothing',
+    notAbove: 'this accept comment is not above a disk, a machine or a value, so it accepts nothing',
   },
 });

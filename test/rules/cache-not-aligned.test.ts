@@ -31,6 +31,14 @@ ruleTable(RULE, {
       findings: [{ rule: RULE, line: 6, column: 39, messageIncludes: ['cluster size', '128 KiB'] }],
     },
     {
+      name: `${CACHE} a refcount cache rounded up past the combined size: its fix raises the combined size too`,
+      text: oneDisk('size: 8G\ncluster: 256K\ncache: { refcount: 100K, total: 128K }'),
+      findings: [
+        { rule: RULE, line: 7, column: 28, messageIncludes: 'refcountCache 100K (102400 bytes) is not a multiple of the cluster size (256 KiB)' },
+        { rule: RULE, line: 7, column: 41, messageIncludes: 'combinedCache 128K' },
+      ],
+    },
+    {
       name: `${CACHE} a combined cache not a multiple of 1 MiB clusters`,
       text: oneDisk('size: 100G\ncluster: 1M\ncache: { total: 2500K }'),
       findings: [{ rule: RULE, line: 7, column: 25, messageIncludes: '3 MiB' }],

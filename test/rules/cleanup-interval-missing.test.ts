@@ -41,6 +41,12 @@ ruleTable(RULE, {
       mapping: { assume: { platform: 'other' } },
       findings: [{ rule: RULE, line: 4, column: 9, messageIncludes: ['current driver default is off', 'backing layer'] }],
     },
+    {
+      name: `${CACHE} legacy driver, 16 MiB of L2 (12.5 MiB used: full coverage of 100 GiB) above its 1 MiB default and two backing layers: both reasons, joined`,
+      text: oneDisk('size: 100G\ncache: { l2: 16M }\nbacking: { name: mid, size: 100G, backing: { name: golden, size: 100G } }'),
+      mapping: legacy,
+      findings: [{ rule: RULE, line: 4, column: 9, messageIncludes: ['the L2 cache of 12.5 MiB is above the driver default of 1 MiB, and 2 backing layers keep caches of'] }],
+    },
   ],
   fix: { name: 'YAML: the interval is inserted into the existing cache map', text: oneDisk('size: 64G\ncache:\n  l2: 8M   # raised for the index\nformat: qcow2'), mapping: legacy },
 });

@@ -174,8 +174,49 @@ export function roundTrip(rule: string, testCase: RuleCase): string {
   return fixed;
 }
 
+/**
+ * The texts a rule's tests produce: its findings' messages, their related places' messages and the
+ * titles of their fixes. test/rules/wording.test.ts replays every source of a rule and checks the
+ * texts against the rule's wording (every key said, nothing said outside it).
+ */
+export interface ProducedTexts {
+  messages: string[];
+  /** Related places' messages and fix titles: said from the wording too. */
+  others: string[];
+}
+
+export interface TextSource {
+  before?: () => void | Promise<void>;
+  after?: () => void | Promise<void>;
+  produce(): ProducedTexts;
+}
+
+/** Every rule's text sources by rule id, filled as the rule test files load. */
+export const TEXT_SOURCES = new Map<string, TextSource[]>();
+
+export function addTextSource(rule: string, source: TextSource): void {
+  TEXT_SOURCES.set(rule, [...(TEXT_SOURCES.get(rule) ?? []), source]);
+}
+
+/** The texts of one rule's findings in some reports. */
+export function textsOf(findings: readonly Finding[]): ProducedTexts {
+  return {
+    messages: findings.map((f) => f.message),
+    others: findings.flatMap((f) => [...(f.related ?? []).map((r) => r.message), ...[f.fix, ...(f.alternatives ?? [])].flatMap((x) => (x ? [x.title] : []))]),
+  };
+}
+
 /** Registers the mocha cases of one rule's table. */
 export function ruleTable(rule: string, table: RuleTable): void {
+  addTextSource(rule, {
+    ...(table.before ? { before: table.before } : {}),
+    ...(table.after ? { after: table.after } : {}),
+    produce: () => {
+      const cases = [...table.valid, ...table.invalid, ...(table.fix ? [table.fix] : [])];
+      const found = cases.map((c) => textsOf(findingsOf(lintCase(c), rule)));
+      return { messages: found.flatMap((t) => t.messages), others: found.flatMap((t) => t.others) };
+    },
+  });
   describe(`rule ${rule}`, () => {
     if (table.before) before(table.before);
     if (table.after) after(table.after);

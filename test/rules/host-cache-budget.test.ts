@@ -6,7 +6,7 @@
 import { strict as assert } from 'node:assert';
 import { hostReports, lintDocument, lintHosts, type FileReport } from '../../src/lint';
 import { CACHE, COMMON, CONTRACT } from '../helpers/sources';
-import { BASE_MAPPING, DEFINITION_DIR, mappingFor, mergeMapping, type MappingObject } from './harness';
+import { addTextSource, BASE_MAPPING, DEFINITION_DIR, mappingFor, mergeMapping, textsOf, type MappingObject } from './harness';
 
 const RULE = 'host-cache-budget';
 
@@ -67,6 +67,12 @@ const CASES: { valid: HostCase[]; invalid: HostCase[] } = {
       messageIncludes: ['guest RAM 64 GiB', '129.5 MiB', 'more than its 64 GiB'],
     },
     {
+      name: `${CACHE} RAM known for one machine of two: 64 GiB plus caches exceed the 64 GiB host, and the text says whose RAM it counts`,
+      files: { 'a.yaml': file(machine('m1', 'hv-a', BIG, '64G'), machine('m2', 'hv-a', SMALL)) },
+      expect: ['a.yaml:3:11 error'],
+      messageIncludes: ['guest RAM 64 GiB (RAM known for 1 of them) plus disk caches 129.5 MiB'],
+    },
+    {
       name: `${COMMON} assume.hostMemory stands in for hosts the list does not name; budget.hostCacheShareOfMemory sets the share`,
       files: { 'a.yaml': file(machine('m1', 'hv-q', BIG)) },
       mapping: { assume: { hostMemory: '4G' }, budget: { hostCacheShareOfMemory: 0.02 } },
@@ -92,6 +98,13 @@ const CASES: { valid: HostCase[]; invalid: HostCase[] } = {
     },
   ],
 };
+
+addTextSource(RULE, {
+  produce: () => {
+    const found = [...CASES.valid, ...CASES.invalid].map((c) => textsOf(lintAll(c).reports.flatMap((r) => r.findings.filter((f) => f.rule === RULE))));
+    return { messages: found.flatMap((t) => t.messages), others: found.flatMap((t) => t.others) };
+  },
+});
 
 describe(`rule ${RULE}`, () => {
   for (const [kind, cases] of Object.entries(CASES)) {

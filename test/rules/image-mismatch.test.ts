@@ -41,6 +41,10 @@ ruleTable(RULE, {
       ...at(disk('size: 1G, image: sub.qcow2, extendedL2: false'), [{ rule: RULE, line: 4, column: 63, messageIncludes: ['extended L2 is off', 'uses extended L2'] }]),
     },
     {
+      name: `${SPEC} extended L2: on written, incompatible bit 4 clear`,
+      ...at(disk('size: 1T, image: orders.qcow2, extendedL2: true'), [{ rule: RULE, line: 4, column: 66, messageIncludes: ['extended L2 is on', 'does not use extended L2'] }]),
+    },
+    {
       name: `${SPEC} backing file: another name than the overlay's header`,
       ...at(disk('size: 20G, image: overlay.qcow2, backing: other.qcow2'), [{ rule: RULE, line: 4, column: 65, messageIncludes: ['other.qcow2', 'golden.qcow2'] }]),
     },

@@ -1,5 +1,6 @@
 // invalid-suppression: a `# cachewright-accept RULE[, RULE]: REASON` comment must name known rules,
-// give a reason, and sit above (or at the end of the first line of) a disk or machine.
+// give a reason, and sit above (or at the end of the first line of) a disk, a machine or a value
+// [CONTRACTS.md section 1: "on the line above the disk or value"].
 import { strict as assert } from 'node:assert';
 import { CONTRACT } from '../helpers/sources';
 import { findingsOf, lintCase, ruleTable } from './harness';
@@ -14,6 +15,7 @@ ruleTable(RULE, {
     { name: 'two rules, separated by a comma', text: disks('# cachewright-accept l2-cache-undersized, cluster-cow-amplification: reviewed', '- { name: a, size: 1T, cluster: 1M }') },
     { name: 'a trailing comment on the disk\'s first line', text: disks('- name: a   # cachewright-accept l2-cache-undersized: reviewed', '  size: 1T') },
     { name: 'blank lines and other comments between the suppression and the disk', text: disks('# cachewright-accept l2-cache-undersized: reviewed', '', '# the ledger volume', '- { name: a, size: 1T }') },
+    { name: 'a comment above one of the disk\'s values', text: disks('- name: a', '  size: 1T', '  cache:', '    # cachewright-accept l2-cache-undersized: reviewed', '    l2: 8M') },
     { name: 'JSON has no comments: the accept list serves instead', text: '{"machines":[{"name":"m","disks":[{"name":"a","size":"1T"}]}]}' },
   ],
   invalid: [
@@ -28,6 +30,11 @@ ruleTable(RULE, {
       findings: [{ rule: RULE, line: 4, column: 7, messageIncludes: 'l2-cache-tiny' }],
     },
     {
+      name: 'two unknown rule ids',
+      text: disks('# cachewright-accept l2-cache-tiny, l2-cache-huge: reviewed', '- { name: a, size: 1T }'),
+      findings: [{ rule: RULE, line: 4, column: 7, messageIncludes: 'names unknown rules l2-cache-tiny, l2-cache-huge' }],
+    },
+    {
       name: 'no reason',
       text: disks('# cachewright-accept l2-cache-undersized', '- { name: a, size: 1T }'),
       findings: [{ rule: RULE, line: 4, column: 7, messageIncludes: ['gives no reason', '# cachewright-accept l2-cache-undersized: REASON'] }],
@@ -38,9 +45,9 @@ ruleTable(RULE, {
       findings: [{ rule: RULE, line: 4, column: 7, messageIncludes: 'gives no reason' }],
     },
     {
-      name: 'a suppression inside a disk, above one of its values, silences nothing',
-      text: disks('- name: a', '  # cachewright-accept l2-cache-undersized: reviewed', '  size: 1T'),
-      findings: [{ rule: RULE, line: 5, column: 9, messageIncludes: 'not above a disk or machine' }],
+      name: 'a suppression above a key that only holds other keys (no value starts on its line) silences nothing',
+      text: disks('- name: a', '  size: 1T', '  # cachewright-accept l2-cache-undersized: reviewed', '  cache:', '    l2: 8M'),
+      findings: [{ rule: RULE, line: 6, column: 9, messageIncludes: 'not above a disk, a machine or a value' }],
     },
   ],
 });
@@ -51,5 +58,20 @@ describe(`rule ${RULE}: what a broken suppression does`, () => {
     const finding = findingsOf(report, 'l2-cache-undersized')[0];
     assert.ok(finding);
     assert.equal(finding.accepted, undefined);
+  });
+
+  it(`${CONTRACT} a comment above a value accepts the named rule's findings at that value`, () => {
+    const report = lintCase({ text: disks('- name: a', '  size: 1T', '  cache:', '    # cachewright-accept l2-cache-undersized: sized for a staging copy', '    l2: 8M') });
+    assert.deepEqual(findingsOf(report, 'l2-cache-undersized')[0]?.accepted, { reason: 'sized for a staging copy', from: 'comment' });
+    assert.equal(findingsOf(report, RULE).length, 0);
+  });
+
+  it(`${CONTRACT} above a line of several values (a flow map), it covers every value written on that line`, () => {
+    const report = lintCase({ text: disks('- name: a', '  size: 1T', '  # cachewright-accept l2-cache-undersized, cache-options-conflict: reviewed', '  cache: { l2: 8M, refcount: 1M, total: 16M }') });
+    for (const rule of ['cache-options-conflict'] as const) {
+      const found = findingsOf(report, rule);
+      assert.ok(found.length > 0, `${rule} is reported`);
+      assert.ok(found.every((f) => f.accepted?.reason === 'reviewed'), `${rule}: ${JSON.stringify(found.map((f) => f.pointer))}`);
+    }
   });
 });

@@ -27,6 +27,12 @@ ruleTable(RULE, {
   ],
   invalid: [
     {
+      name: `${CONTRACT} a mapping file without a size selector: each disk says it cannot be sized`,
+      text: oneDisk('cache: { l2: 1M }'),
+      mapping: { fields: { disk: { size: undefined } } },
+      findings: [{ rule: RULE, line: 4, column: 9, messageIncludes: 'disk "data" cannot be sized: the mapping file has no fields.disk.size selector' }],
+    },
+    {
       name: `${CONTRACT} an unknown unit names the value and the units expected`,
       text: oneDisk('size: 20G\ncache:\n  l2: 12Q'),
       findings: [{ rule: RULE, line: 7, column: 15, messageIncludes: ['l2Cache', '"12Q"', 'unknown unit "Q"', 'powers of 1024'] }],

@@ -2,9 +2,9 @@
 // A cyclic scan over 64 cache entries (64 KiB clusters, whole tables: one entry maps 512 MiB [SPEC])
 // touches 64 x 64 KiB = 4 MiB of cache [MATTSON].
 import { strict as assert } from 'node:assert';
-import { MATTSON } from '../helpers/sources';
+import { MATTSON, SHARDS } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, ruleTable, type RuleCase } from './harness';
-import { TraceFolder } from './traces';
+import { sampledTraceTable, TraceFolder } from './traces';
 
 const RULE = 'l2-cache-above-working-set';
 const MiB512 = 512n * 1024n * 1024n;
@@ -33,6 +33,10 @@ ruleTable(RULE, {
     { name: 'a combined cache alone, at the combined value', ...cases.combined },
   ],
   fix: { name: 'lowers the L2 cache to the working set, 4 MiB', ...cases.sixteen },
+});
+
+sampledTraceTable(RULE, `${SHARDS} a working set estimated from a sample says so`, 'size: 1T\ncache: { l2: 64M }', {
+  rule: RULE, line: 6, column: 22, messageIncludes: ['of cache entries the trace touched (estimated from a 25 % sample)'],
 });
 
 describe(`rule ${RULE}: the lowered cache`, () => {

@@ -2,9 +2,9 @@
 // A cyclic scan over 64 entries (each maps 512 MiB at 64 KiB clusters [SPEC]) hits nothing in a cache
 // of fewer than 64 entries and 1 - 64/20000 = 99.68% in one of 64 or more.
 import { strict as assert } from 'node:assert';
-import { MATTSON } from '../helpers/sources';
+import { MATTSON, SHARDS } from '../helpers/sources';
 import { findingsOf, lintCase, oneDisk, ruleTable, type RuleCase } from './harness';
-import { TraceFolder } from './traces';
+import { sampledTraceTable, TraceFolder } from './traces';
 
 const RULE = 'l2-cache-undersized';
 const traces = new TraceFolder().cycle('traces/cycle64.csv', 64, 512n * 1024n * 1024n, 20_000);
@@ -21,7 +21,14 @@ const cases = {
     findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['no cache reaches 99.9 % on it', '4 MiB holds all 4 MiB it touched'] }],
   }),
   defaultCache: at(`size: 16T\n${TRACE}`),
+  withCombined: at(`size: 1T\ncache: { l2: 1M, total: 2M }\n${TRACE}`, {
+    findings: [{ rule: RULE, line: 6, column: 22, messageIncludes: ['maps 8 GiB of this 1 TiB disk', '4 MiB reaches the 99 % target'] }],
+  }),
 };
+
+sampledTraceTable(RULE, `${SHARDS} a sampled measurement says so beside the request count`, 'size: 1T\ncache: { l2: 1M }', {
+  rule: RULE, line: 6, column: 22, messageIncludes: ['(20,000 requests, estimated from a 25 % sample)'],
+});
 
 ruleTable(RULE, {
   before: () => traces.load(Object.values(cases)),
@@ -33,6 +40,7 @@ ruleTable(RULE, {
   invalid: [
     { name: `${MATTSON} 1 MiB holds 16 of the 64 entries the scan cycles over`, ...cases.short },
     { name: `${MATTSON} a target above what first touches allow`, ...cases.unreachable },
+    { name: `${MATTSON} L2 and combined both written: the fix raises both, keeping the refcount share`, ...cases.withCombined },
   ],
   fix: { name: 'sets the measured target, 4 MiB', ...cases.short },
 });

@@ -2,7 +2,9 @@
 // the place the parser stopped, and the file is marked unparsed so --fix leaves it alone.
 import { strict as assert } from 'node:assert';
 import { RFC8259 } from '../helpers/sources';
-import { lintCase, ruleTable } from './harness';
+import { oversizedFileReport } from '../../src/lint';
+import { CONTRACT } from '../helpers/sources';
+import { addTextSource, DEFINITION_DIR, lintCase, ruleTable, textsOf } from './harness';
 
 const RULE = 'parse-error';
 const YAML12 = '[YAML 1.2]';
@@ -64,7 +66,19 @@ ruleTable(RULE, {
   ],
 });
 
+// A file above the size limit is left unread: one parse-error at its start (docs/cli.md, --file-size-limit).
+const oversized = () => oversizedFileReport(`${DEFINITION_DIR}/big.yaml`, 70_000n, 64n * 1024n, 'raise the limit to lint it');
+addTextSource(RULE, { produce: () => textsOf(oversized().findings) });
+
 describe(`rule ${RULE}: the file is left alone`, () => {
+  it(`${CONTRACT} a file above the size limit is one finding naming its size, in IEC units and exact bytes, and the limit`, () => {
+    const report = oversized();
+    assert.equal(report.parsed, false);
+    assert.deepEqual(
+      report.findings.map((f) => [f.rule, f.range.line, f.range.column, f.message]),
+      [[RULE, 1, 1, 'big.yaml is ~68.35 KiB (70000 bytes), above the size limit of 64 KiB for definition files, so it is not linted; raise the limit to lint it']],
+    );
+  });
   it('an unparsed file reports parsed: false and no disks', () => {
     const report = lintCase({ text: 'machines:\n  - name: a\n    name: b\n' });
     assert.equal(report.parsed, false);
