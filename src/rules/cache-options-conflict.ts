@@ -1,5 +1,5 @@
 import { asWritten } from './format';
-import { declareRule } from './types';
+import { declareRule, relatedAt } from './types';
 import { say } from './wording';
 
 const WORDING = {
@@ -22,8 +22,8 @@ export const cacheOptionsConflict = declareRule({
       says: 'allThree',
       fill: { l2: asWritten(l2Cache.raw), refcount: asWritten(refcountCache.raw), combined: asWritten(combinedCache.raw) },
       related: [
-        { message: say(WORDING, 'l2Here'), pointer: l2Cache.pointer, range: l2Cache.range },
-        { message: say(WORDING, 'refcountHere'), pointer: refcountCache.pointer, range: refcountCache.range },
+        relatedAt(say(WORDING, 'l2Here'), l2Cache),
+        relatedAt(say(WORDING, 'refcountHere'), refcountCache),
       ],
     });
   },

@@ -1,6 +1,6 @@
 import { cacheOptionsProblems } from '../core/cache';
 import { asWritten, size } from './format';
-import { declareRule } from './types';
+import { declareRule, relatedAt } from './types';
 import { say } from './wording';
 
 const WORDING = {
@@ -35,7 +35,7 @@ export const invalidValue = declareRule({
         at: problem.part,
         says: 'partAboveCombined',
         fill: { part: problem.part, written: asWritten(part.raw), bytes: size(part.value), combined: asWritten(combinedCache.raw), combinedBytes: size(combinedCache.value) },
-        related: [{ message: say(WORDING, 'combinedHere'), pointer: combinedCache.pointer, range: combinedCache.range }],
+        related: [relatedAt(say(WORDING, 'combinedHere'), combinedCache)],
       });
     }
   },

@@ -1,6 +1,6 @@
 import { machineCacheUse } from '../core/sizing';
 import { count, ratio, share, size } from './format';
-import { declareRule } from './types';
+import { declareRule, relatedAt } from './types';
 import { say } from './wording';
 
 const WORDING = {
@@ -38,7 +38,7 @@ export const machineCacheBudget = declareRule({
       related: disks.map((d) => {
         const layers = d.sizing.layers.length;
         const over = layers > 1 ? say(WORDING, 'layers', { count: count(layers) }) : say(WORDING, 'oneLayer');
-        return { message: say(WORDING, 'diskUse', { disk: d.disk.name, caches: size(d.sizing.report.cacheMemoryTotal), layers: over }), pointer: d.disk.pointer, range: d.disk.range };
+        return relatedAt(say(WORDING, 'diskUse', { disk: d.disk.name, caches: size(d.sizing.report.cacheMemoryTotal), layers: over }), d.disk);
       }),
     });
   },

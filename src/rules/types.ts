@@ -121,6 +121,9 @@ export interface RuleSpec<Id extends string, W extends Wording> extends Omit<Rul
 
 export const docsPage = (id: string): string => `docs/rules/${id}.md`;
 
+/** A related place of a finding: a located value or node of the same file, with what it says there. */
+export const relatedAt = (message: string, at: { pointer: string; range: SourceRange }): RelatedLocation => ({ message, pointer: at.pointer, range: at.range });
+
 /**
  * A rule from its id, metadata, wording and hooks; its docs page follows from the id. The wording's
  * texts keep their literal types, so each report's key and fill are checked against them.

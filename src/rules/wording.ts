@@ -48,7 +48,6 @@ function fillText(text: string, fill: AnyFill | undefined): string {
 
 /** The text a wording gives for `key`, its slots filled. */
 export function say<W extends Wording, K extends keyof W & string>(wording: W, key: K, ...fill: FillArgs<W[K]>): string;
-export function say(wording: Wording, key: string, fill?: AnyFill): string;
 export function say(wording: Wording, key: string, fill?: AnyFill): string {
   const text = wording[key];
   return text === undefined ? key : fillText(text, fill);

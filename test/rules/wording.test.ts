@@ -6,6 +6,7 @@ import { strict as assert } from 'node:assert';
 import { readdirSync, readFileSync } from 'node:fs';
 import * as path from 'node:path';
 import { RULES } from '../../src/rules';
+import { declareRule } from '../../src/rules/types';
 import { say, slotsIn } from '../../src/rules/wording';
 import { TEXT_SOURCES, type ProducedTexts } from './harness';
 import { withMessages } from '../../scripts/rule-messages';
@@ -33,6 +34,28 @@ describe('rule wording', () => {
     });
     it('a text without slots is said as it is', () => {
       assert.equal(say({ here: 'L2 cache set here' } as const, 'here'), 'L2 cache set here');
+    });
+    it('the compiler refuses an unknown key, a missing fill and a misspelt slot (npx tsc checks these lines)', () => {
+      const wording = { cover: 'maps {covered} of {disk}', here: 'set here' } as const;
+      // @ts-expect-error a misspelt slot: "cover" has {covered}, not {coverage}
+      assert.equal(say(wording, 'cover', { coverage: '8 GiB', disk: '1 TiB' }), 'maps {covered} of 1 TiB');
+      // @ts-expect-error a missing fill
+      assert.equal(say(wording, 'cover'), 'maps {covered} of {disk}');
+      // @ts-expect-error a key the wording does not have
+      assert.equal(say(wording, 'elsewhere'), 'elsewhere');
+      const rule = declareRule({
+        id: 'wording-probe',
+        severity: 'info',
+        description: 'checks the types of reports',
+        fixable: false,
+        wording,
+        checkDisk({ report }) {
+          report({ says: 'here' });
+          // @ts-expect-error a report's fill is checked against its text too
+          report({ says: 'cover', fill: { covered: '8 GiB' } });
+        },
+      });
+      assert.equal(rule.docs, 'docs/rules/wording-probe.md');
     });
     it('lists a text\'s slots in order of first appearance', () => {
       assert.deepEqual(slotsIn('{a} and {b}, then {a} again{c}'), ['a', 'b', 'c']);
