@@ -7,22 +7,11 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
+import { mulberry32 as generator } from '../test/helpers/seeded-random.cjs';
 
 const GiB = 2 ** 30;
 const REQUESTS = 200_000;
 const dir = join(import.meta.dirname ?? new URL('.', import.meta.url).pathname, '..', 'examples', 'fleet', 'traces');
-
-/** mulberry32 (public domain): a small seeded generator, uniform in [0, 1). */
-function generator(seed) {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function ledger() {
   const random = generator(1203);

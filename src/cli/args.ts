@@ -3,6 +3,7 @@
 import { fail, ok, type Outcome } from '../core/results';
 import { checkClusterSize, checkExtendedL2, checkSlice, DEFAULT_CLUSTER } from '../core/sizing';
 import { parseSize } from '../core/units';
+import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 
 export interface OptionSpec {
   /** Takes a value (`--size 20G` or `--size=20G`), or is a flag. */
@@ -56,10 +57,42 @@ export function parseArgs(argv: readonly string[], spec: Record<string, OptionSp
 
 export const lastOption = (args: ParsedArgs, name: string): string | undefined => args.options.get(name)?.at(-1);
 
-export function formatOption(args: ParsedArgs): Outcome<'text' | 'json'> {
+export const TEXT_OR_JSON = ['text', 'json'] as const;
+
+/** The --format value (text when absent), one of the formats the command writes. */
+export function formatOption<F extends string>(args: ParsedArgs, formats: readonly F[]): Outcome<F> {
   const format = lastOption(args, 'format') ?? 'text';
-  if (format !== 'text' && format !== 'json') return fail(`--format must be text or json, not "${format}"`);
-  return ok(format);
+  const known = formats.find((f) => f === format);
+  if (known === undefined) return fail(`--format must be ${formats.slice(0, -1).join(', ')} or ${formats.at(-1) ?? ''}, not "${format}"`);
+  return ok(known);
+}
+
+/** The --allow-warnings count (undefined when absent), a whole number of 0 or more. */
+export function allowWarningsOption(args: ParsedArgs): Outcome<number | undefined> {
+  const raw = lastOption(args, 'allow-warnings');
+  if (raw === undefined) return ok(undefined);
+  if (!/^\d+$/.test(raw) || !Number.isSafeInteger(Number(raw))) return fail(`--allow-warnings needs a whole number of warnings (0 or more), not "${raw}"`);
+  return ok(Number(raw));
+}
+
+/** Prints a usage error the way every command does: its name, the message, then its usage text. */
+export function usageError(io: Pick<CommandIO, 'stderr'>, command: string, usage: string, message: string): number {
+  io.stderr(`cachewright ${command}: ${message}\n\n${usage}`);
+  return EXIT_USAGE;
+}
+
+/**
+ * A command's request read from its arguments, or the exit code it ends with: --help prints the
+ * usage text (exit 0); a bad option, or what `read` refuses, is a usage error (exit 2).
+ */
+export function readCommand<T>(argv: readonly string[], spec: Record<string, OptionSpec>, command: { name: string; usage: string }, io: Pick<CommandIO, 'stdout' | 'stderr'>, read: (args: ParsedArgs) => Outcome<T>): Outcome<T, number> {
+  const args = parseArgs(argv, spec);
+  if (args.ok && args.value.flags.has('help')) {
+    io.stdout(command.usage);
+    return fail(EXIT_OK);
+  }
+  const request = args.ok ? read(args.value) : args;
+  return request.ok ? request : fail(usageError(io, command.name, command.usage, request.error));
 }
 
 /** A size option as bytes (undefined when absent), or a usage message naming the option. */

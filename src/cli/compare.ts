@@ -8,12 +8,13 @@ import { DEFINITION_SIZE_LIMIT, readRegularText } from '../files/open';
 import { identify } from '../review/identity';
 import { compareWithKnown, entryOf } from '../review/known';
 import { compareRuns, type Comparison } from '../review/compare';
-import { lastOption, parseArgs, type OptionSpec } from './args';
+import { allowWarningsOption, formatOption, lastOption, readCommand, usageError, type OptionSpec, type ParsedArgs } from './args';
+import { fail, ok, type Outcome } from '../core/results';
 import { extractRevision } from '../git/revision';
 import { renderCompareJson, renderCompareText } from './compare-output';
 import { renderCompareMarkdown } from '../review/markdown';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
-import { displayPath, findMappingFile, loadMappingText, selectFiles, stripBom } from './lint-discovery';
+import { displayPath, findNearestMappingFile, loadMappingText, selectFiles, stripBom } from './lint-discovery';
 import type { LintRequest } from './lint-file';
 import { reviewedFiles } from './lint-known';
 import { lintFiles } from './lint-parallel';
@@ -21,7 +22,6 @@ import { startProgress } from './lint-progress';
 import type { LintedFile, LintRun } from './lint-results';
 import { renderSarif } from './lint-sarif';
 import { completeRun } from './lint-workspace';
-import { isOneOf } from '../core/guards';
 
 const OPTIONS: Record<string, OptionSpec> = {
   git: { value: true },
@@ -65,37 +65,22 @@ interface CompareRequest {
   linkBase?: string;
 }
 
-function usageError(io: CommandIO, message: string): number {
-  io.stderr(`cachewright compare: ${message}\n\n${COMPARE_USAGE}`);
-  return EXIT_USAGE;
-}
-
-function readRequest(argv: readonly string[], io: CommandIO): CompareRequest | number {
-  const parsed = parseArgs(argv, OPTIONS);
-  if (!parsed.ok) return usageError(io, parsed.error);
-  const args = parsed.value;
-  if (args.flags.has('help')) {
-    io.stdout(COMPARE_USAGE);
-    return EXIT_OK;
-  }
-  const format = lastOption(args, 'format') ?? 'text';
-  if (!isOneOf(FORMATS, format)) return usageError(io, `--format must be text, json, sarif or markdown, not "${format}"`);
-  const allowRaw = lastOption(args, 'allow-warnings');
-  let allowWarnings: number | undefined;
-  if (allowRaw !== undefined) {
-    if (!/^\d+$/.test(allowRaw) || !Number.isSafeInteger(Number(allowRaw))) return usageError(io, `--allow-warnings needs a whole number of warnings (0 or more), not "${allowRaw}"`);
-    allowWarnings = Number(allowRaw);
-  }
+function readRequest(args: ParsedArgs): Outcome<CompareRequest> {
+  const format = formatOption(args, FORMATS);
+  if (!format.ok) return format;
+  const allowed = allowWarningsOption(args);
+  if (!allowed.ok) return allowed;
+  const allowWarnings = allowed.value;
   const gitRef = lastOption(args, 'git');
   const positionals = args.positionals;
   if (gitRef !== undefined ? positionals.length > 1 : positionals.length !== 2) {
-    return usageError(io, gitRef !== undefined ? 'with --git, give at most one folder (the head)' : 'give two folders, BASE_DIR and HEAD_DIR, or --git REF');
+    return fail(gitRef !== undefined ? 'with --git, give at most one folder (the head)' : 'give two folders, BASE_DIR and HEAD_DIR, or --git REF');
   }
-  const common = { format, ...(allowWarnings !== undefined ? { allowWarnings } : {}), mapping: lastOption(args, 'mapping'), linkBase: lastOption(args, 'link-base') };
-  if (gitRef !== undefined) return { ...common, gitRef, head: positionals[0] ?? '.' };
+  const common = { format: format.value, ...(allowWarnings !== undefined ? { allowWarnings } : {}), mapping: lastOption(args, 'mapping'), linkBase: lastOption(args, 'link-base') };
+  if (gitRef !== undefined) return ok({ ...common, gitRef, head: positionals[0] ?? '.' });
   const [base, head] = positionals;
-  if (base === undefined || head === undefined) return usageError(io, 'give two folders, BASE_DIR and HEAD_DIR, or --git REF');
-  return { ...common, base, head };
+  if (base === undefined || head === undefined) return fail('give two folders, BASE_DIR and HEAD_DIR, or --git REF');
+  return ok({ ...common, base, head });
 }
 
 function isDirectory(path: string): boolean {
@@ -132,13 +117,14 @@ export interface CompareOutcome {
 }
 
 export async function runCompare(argv: readonly string[], io: CommandIO, version: string): Promise<number> {
-  const request = readRequest(argv, io);
-  if (typeof request === 'number') return request;
+  const read = readCommand(argv, OPTIONS, { name: 'compare', usage: COMPARE_USAGE }, io, readRequest);
+  if (!read.ok) return read.error;
+  const request = read.value;
   const headDir = nodePath.resolve(io.cwd, request.head);
-  if (!isDirectory(headDir)) return usageError(io, `${request.head} is not a folder`);
-  if (request.base !== undefined && !isDirectory(nodePath.resolve(io.cwd, request.base))) return usageError(io, `${request.base} is not a folder`);
+  if (!isDirectory(headDir)) return usageError(io, 'compare', COMPARE_USAGE, `${request.head} is not a folder`);
+  if (request.base !== undefined && !isDirectory(nodePath.resolve(io.cwd, request.base))) return usageError(io, 'compare', COMPARE_USAGE, `${request.base} is not a folder`);
 
-  const mappingPath = request.mapping !== undefined ? nodePath.resolve(io.cwd, request.mapping) : findMappingFile(headDir);
+  const mappingPath = request.mapping !== undefined ? nodePath.resolve(io.cwd, request.mapping) : findNearestMappingFile(headDir);
   if (mappingPath === undefined) {
     io.stderr(`cachewright compare: no mapping file in ${displayPath(headDir, io.cwd)} or any folder above it; name one with --mapping FILE\n`);
     return EXIT_USAGE;

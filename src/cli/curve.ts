@@ -14,7 +14,7 @@ import { checkSampleRate, measureTraces, type MeasureProgress } from '../trace/m
 import { curveReport, DEFAULT_TARGET_HIT_RATIO, type CurveReport } from '../trace/report';
 import type { TraceGeometry } from '../trace/lookups';
 import type { TraceFilter } from '../trace/reader';
-import { diskGeometryOptions, formatOption, lastOption, parseArgs, type OptionSpec, type ParsedArgs } from './args';
+import { diskGeometryOptions, formatOption, TEXT_OR_JSON, lastOption, readCommand, type OptionSpec, type ParsedArgs } from './args';
 import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { renderColumns } from './table';
 
@@ -63,7 +63,7 @@ interface CurveRequest {
 
 function readRequest(args: ParsedArgs): Outcome<CurveRequest> {
   if (args.positionals.length === 0) return fail('name at least one TRACE file');
-  const format = formatOption(args);
+  const format = formatOption(args, TEXT_OR_JSON);
   if (!format.ok) return format;
   const geometry = diskGeometryOptions(args);
   if (!geometry.ok) return geometry;
@@ -99,16 +99,8 @@ function readRequest(args: ParsedArgs): Outcome<CurveRequest> {
 }
 
 export async function runCurve(argv: readonly string[], io: CommandIO): Promise<number> {
-  const args = parseArgs(argv, OPTIONS);
-  if (args.ok && args.value.flags.has('help')) {
-    io.stdout(CURVE_USAGE);
-    return EXIT_OK;
-  }
-  const request = args.ok ? readRequest(args.value) : args;
-  if (!request.ok) {
-    io.stderr(`cachewright curve: ${request.error}\n\n${CURVE_USAGE}`);
-    return EXIT_USAGE;
-  }
+  const request = readCommand(argv, OPTIONS, { name: 'curve', usage: CURVE_USAGE }, io, readRequest);
+  if (!request.ok) return request.error;
   const r = request.value;
   const progress = io.stderrIsTTY ? progressLine(io) : undefined;
   const measured = await measureTraces(

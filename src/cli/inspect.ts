@@ -3,12 +3,13 @@
 // read, 2 when any failed or the command line is wrong; a bad file is a message, never a trace.
 import { isAbsolute, relative, resolve } from 'node:path';
 import { stringifyJson } from '../core/json';
+import { fail, ok, type Outcome } from '../core/results';
 import { driverProfile, type DriverProfile } from '../core/profiles';
 import { inspectImage, reportFailed, type ImageReport, type InspectProgress } from '../image';
 import { resolveBackingPath } from '../image/chain';
 import { chainCost, layerCost } from '../image/cost';
 import { chainRows, GROUP_TITLES, layerGroups, type CostRow, type HeaderNotes } from '../protocol/image-groups';
-import { formatOption, parseArgs, type OptionSpec } from './args';
+import { formatOption, readCommand, TEXT_OR_JSON, type ParsedArgs, type OptionSpec } from './args';
 import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { renderColumns } from './table';
 
@@ -31,17 +32,9 @@ export const INSPECT_USAGE = `usage: cachewright inspect IMAGE... [--format text
 type InspectIO = Pick<CommandIO, 'stdout' | 'stderr'> & Partial<Pick<CommandIO, 'cwd' | 'stderrIsTTY'>>;
 
 export async function runInspect(args: string[], io: InspectIO): Promise<number> {
-  const parsed = parseArgs(args, OPTIONS);
-  if (!parsed.ok) return usage(io, parsed.error);
-  if (parsed.value.flags.has('help')) {
-    io.stdout(INSPECT_USAGE);
-    return EXIT_OK;
-  }
-  const format = formatOption(parsed.value);
-  if (!format.ok) return usage(io, format.error);
-  const images = parsed.value.positionals;
-  if (images.length === 0) return usage(io, 'name at least one image');
-  const followChain = !parsed.value.flags.has('no-chain');
+  const read = readCommand(args, OPTIONS, { name: 'inspect', usage: INSPECT_USAGE }, io, readRequest);
+  if (!read.ok) return read.error;
+  const { format, images, followChain } = read.value;
 
   const reports: ImageReport[] = [];
   for (const image of images) {
@@ -53,13 +46,15 @@ export async function runInspect(args: string[], io: InspectIO): Promise<number>
     reports.push(where === image || !io.cwd ? report : relabel(report, io.cwd));
   }
 
-  io.stdout(format.value === 'json' ? `${stringifyJson({ images: reports.map((r) => toJson(r)) })}\n` : reports.map((r) => renderText(r)).join('\n'));
+  io.stdout(format === 'json' ? `${stringifyJson({ images: reports.map((r) => toJson(r)) })}\n` : reports.map((r) => renderImageText(r)).join('\n'));
   return reports.some(reportFailed) ? EXIT_USAGE : EXIT_OK;
 }
 
-function usage(io: InspectIO, message: string): number {
-  io.stderr(`cachewright inspect: ${message}\n\n${INSPECT_USAGE}`);
-  return EXIT_USAGE;
+function readRequest(args: ParsedArgs): Outcome<{ format: 'text' | 'json'; images: string[]; followChain: boolean }> {
+  const format = formatOption(args, TEXT_OR_JSON);
+  if (!format.ok) return format;
+  if (args.positionals.length === 0) return fail('name at least one image');
+  return ok({ format: format.value, images: args.positionals, followChain: !args.flags.has('no-chain') });
 }
 
 function progressLine(io: InspectIO, image: string): (p: InspectProgress) => void {
@@ -172,7 +167,7 @@ function layerLines(r: ImageReport, indent: string, profile: DriverProfile): str
   return lines;
 }
 
-export function renderText(r: ImageReport, profile: DriverProfile = driverProfile()): string {
+export function renderImageText(r: ImageReport, profile: DriverProfile = driverProfile()): string {
   const lines = [r.path, ...layerLines(r, '  ', profile)];
   const layers = [r, ...r.chain];
   if (r.chain.length > 0 || r.backing !== null) {

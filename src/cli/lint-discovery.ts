@@ -22,7 +22,7 @@ export function displayPath(absolutePath: string, cwd: string): string {
 }
 
 /** The mapping file in `start` or the nearest folder above it. */
-export function findMappingFile(start: string): string | undefined {
+export function findNearestMappingFile(start: string): string | undefined {
   let dir = nodePath.resolve(start);
   for (;;) {
     for (const name of MAPPING_FILE_NAMES) {
@@ -64,11 +64,11 @@ export function resolveMapping(cwd: string, config: string | undefined, paths: r
   if (config !== undefined) {
     mappingPath = nodePath.resolve(cwd, config);
   } else {
-    mappingPath = findMappingFile(cwd);
+    mappingPath = findNearestMappingFile(cwd);
     const first = paths[0];
     if (!mappingPath && first !== undefined) {
       const resolved = nodePath.resolve(cwd, first);
-      mappingPath = findMappingFile(isFile(resolved) ? nodePath.dirname(resolved) : resolved);
+      mappingPath = findNearestMappingFile(isFile(resolved) ? nodePath.dirname(resolved) : resolved);
     }
     if (!mappingPath) {
       return fail(`no mapping file (${MAPPING_FILE_NAMES.join(', ')}) in ${displayPath(cwd, cwd) === '.' ? 'this folder' : cwd} or any folder above it; create one or name it with --mapping FILE`);

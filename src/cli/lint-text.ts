@@ -36,7 +36,7 @@ function goneLine(entry: KnownEntry): string {
   return `  ${entry.file}  ${entry.rule}${subject ? `  ${subject}` : ''}${entry.field ? `  ${entry.field}` : ''}`;
 }
 
-export function renderText(run: LintRun): string {
+export function renderLintText(run: LintRun): string {
   const out: string[] = [];
   for (const file of run.files) {
     if (!file.report) continue;

@@ -3,7 +3,8 @@
 import { formatSize } from '../core/format';
 import { parseSize, SIZE_UNITS_HELP } from '../core/units';
 import { DEFINITION_SIZE_LIMIT, MAX_FILE_SIZE_LIMIT } from '../files/open';
-import { lastOption, parseArgs, type OptionSpec } from './args';
+import { allowWarningsOption, formatOption, lastOption, readCommand, type OptionSpec, type ParsedArgs } from './args';
+import { fail, ok, type Outcome } from '../core/results';
 import { EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { displayPath, resolveMapping, selectFiles } from './lint-discovery';
 import type { LintFormat, LintRequest } from './lint-file';
@@ -12,11 +13,10 @@ import { lintFiles } from './lint-parallel';
 import { startProgress } from './lint-progress';
 import { summarize, type LintedFile, type LintRun } from './lint-results';
 import { renderSarif } from './lint-sarif';
-import { renderText } from './lint-text';
+import { renderLintText } from './lint-text';
 import { compareRunWithKnown, writeKnown } from './lint-known';
 import { completeRun } from './lint-workspace';
 import * as nodePath from 'node:path';
-import { isOneOf } from '../core/guards';
 
 const OPTIONS: Record<string, OptionSpec> = {
   mapping: { value: true },
@@ -60,41 +60,25 @@ exit status:
 environment: CACHEWRIGHT_JOBS=N lints on N threads (default: one per core for large runs)
 `;
 
-function usageError(io: CommandIO, message: string): number {
-  io.stderr(`cachewright lint: ${message}\n\n${LINT_USAGE}`);
-  return EXIT_USAGE;
-}
-
-function readRequest(argv: readonly string[], io: CommandIO): LintRequest | number {
-  const parsed = parseArgs(argv, OPTIONS);
-  if (!parsed.ok) return usageError(io, parsed.error);
-  const args = parsed.value;
-  if (args.flags.has('help')) {
-    io.stdout(LINT_USAGE);
-    return EXIT_OK;
-  }
-  const format = lastOption(args, 'format') ?? 'text';
-  if (!isOneOf(FORMATS, format)) return usageError(io, `--format must be text, json or sarif, not "${format}"`);
-  const allowedRaw = lastOption(args, 'allow-warnings');
-  let allowWarnings: number | undefined;
-  if (allowedRaw !== undefined) {
-    if (!/^\d+$/.test(allowedRaw) || !Number.isSafeInteger(Number(allowedRaw))) return usageError(io, `--allow-warnings needs a whole number of warnings (0 or more), not "${allowedRaw}"`);
-    allowWarnings = Number(allowedRaw);
-  }
+function readRequest(args: ParsedArgs): Outcome<LintRequest> {
+  const format = formatOption(args, FORMATS);
+  if (!format.ok) return format;
+  const allowWarnings = allowWarningsOption(args);
+  if (!allowWarnings.ok) return allowWarnings;
   const fileSizeLimit = readFileSizeLimit(lastOption(args, 'file-size-limit'));
-  if (typeof fileSizeLimit === 'string') return usageError(io, fileSizeLimit);
-  return {
+  if (typeof fileSizeLimit === 'string') return fail(fileSizeLimit);
+  return ok({
     fileSizeLimit,
     paths: args.positionals,
     mappingPath: lastOption(args, 'mapping'),
-    format,
+    format: format.value,
     fix: args.flags.has('fix'),
-    allowWarnings,
+    allowWarnings: allowWarnings.value,
     errorsOnly: args.flags.has('errors-only'),
     images: !args.flags.has('no-images'),
     known: lastOption(args, 'known'),
     recordKnown: lastOption(args, 'record-known'),
-  };
+  });
 }
 
 /** The --file-size-limit value in bytes, or why it cannot be one. */
@@ -126,8 +110,9 @@ function applyKnown(run: LintRun, request: LintRequest, io: CommandIO): number |
 }
 
 export async function runLint(argv: readonly string[], io: CommandIO, version: string): Promise<number> {
-  const request = readRequest(argv, io);
-  if (typeof request === 'number') return request;
+  const read = readCommand(argv, OPTIONS, { name: 'lint', usage: LINT_USAGE }, io, readRequest);
+  if (!read.ok) return read.error;
+  const request = read.value;
 
   const mapping = resolveMapping(io.cwd, request.mappingPath, request.paths);
   if (!mapping.ok) {
@@ -147,7 +132,7 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   completeRun(run);
   const known = applyKnown(run, request, io);
   if (known !== undefined) return known;
-  const render = request.format === 'json' ? renderJson : request.format === 'sarif' ? renderSarif : renderText;
+  const render = request.format === 'json' ? renderJson : request.format === 'sarif' ? renderSarif : renderLintText;
   io.stdout(render(run));
 
   const problems: string[] = [];

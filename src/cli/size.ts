@@ -10,7 +10,7 @@ import {
 } from '../core/sizing';
 import { formatInterval, formatPercent, formatShare, formatSize } from '../core/format';
 import { formatAccessSpec, modelCache, parseAccessSpec, type AccessPattern, type CacheModelReport } from '../core/cachemodel';
-import { diskGeometryOptions, formatOption, lastOption, parseArgs, sizeOption, type OptionSpec, type ParsedArgs } from './args';
+import { diskGeometryOptions, formatOption, TEXT_OR_JSON, lastOption, readCommand, sizeOption, type OptionSpec, type ParsedArgs } from './args';
 import { renderColumns } from './table';
 import { EXIT_OK, EXIT_USAGE, type CommandIO } from './io';
 import { isOneOf } from '../core/guards';
@@ -72,7 +72,7 @@ function choice<T extends string>(args: ParsedArgs, name: string, allowed: reado
 
 function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
   if (args.positionals.length > 0) return fail(`unexpected argument "${args.positionals[0]}"`);
-  const format = formatOption(args);
+  const format = formatOption(args, TEXT_OR_JSON);
   if (!format.ok) return format;
   const geometry = diskGeometryOptions(args);
   if (!geometry.ok) return geometry;
@@ -110,16 +110,8 @@ function readRequest(args: ParsedArgs): Outcome<SizeRequest> {
 }
 
 export function runSize(argv: readonly string[], io: CommandIO): number {
-  const args = parseArgs(argv, OPTIONS);
-  if (args.ok && args.value.flags.has('help')) {
-    io.stdout(SIZE_USAGE);
-    return EXIT_OK;
-  }
-  const request = args.ok ? readRequest(args.value) : args;
-  if (!request.ok) {
-    io.stderr(`cachewright size: ${request.error}\n\n${SIZE_USAGE}`);
-    return EXIT_USAGE;
-  }
+  const request = readCommand(argv, OPTIONS, { name: 'size', usage: SIZE_USAGE }, io, readRequest);
+  if (!request.ok) return request.error;
   const r = request.value;
   const profile = driverProfile(r.generation, r.platform);
   const settings: CacheSettings = { l2Cache: r.cache, entrySize: r.cacheEntrySize };

@@ -2,7 +2,7 @@
 import * as vscode from 'vscode';
 import type { Finding, Fix } from '../lint';
 import { FIX_PASSES, nonOverlapping } from '../model/edits';
-import { SOURCE, ruleOf } from './diagnostics';
+import { SOURCE, ruleIdOf } from './diagnostics';
 import { acceptActions } from './accept-finding';
 import { toRange, workspaceEdit } from './edits';
 import type { Linting } from './linting';
@@ -34,7 +34,7 @@ export class CachewrightCodeActions implements vscode.CodeActionProvider {
       for (const finding of result.report.findings) {
         if (!finding.fix || finding.accepted) continue;
         const at = toRange(finding.range);
-        const diagnostic = ours.find((d) => ruleOf(d) === finding.rule && sameRange(d.range, at));
+        const diagnostic = ours.find((d) => ruleIdOf(d) === finding.rule && sameRange(d.range, at));
         if (!diagnostic && !at.intersection(range)) continue;
         // The fix first (preferred: what --fix applies), then the others offered beside it, such as
         // full coverage beside the smallest cache that reaches the target on a measured trace.
@@ -49,7 +49,7 @@ export class CachewrightCodeActions implements vscode.CodeActionProvider {
       // After the fixes: accepting a finding is the reviewer's call, never the preferred action.
       actions.push(...acceptActions(this.linting, document, (finding) => {
         const at = toRange(finding.range);
-        return ours.find((d) => ruleOf(d) === finding.rule && sameRange(d.range, at)) ?? (at.intersection(range) ? undefined : false);
+        return ours.find((d) => ruleIdOf(d) === finding.rule && sameRange(d.range, at)) ?? (at.intersection(range) ? undefined : false);
       }));
     }
     if (!context.only || wantsFixAll || context.only.contains(vscode.CodeActionKind.Source)) {

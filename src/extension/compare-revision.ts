@@ -137,12 +137,12 @@ export interface ReviewTraces {
 }
 
 export async function compareWithRevision(states: readonly MappingState[], documents: ReviewDocuments, request: CompareRequest = {}, traces?: () => ReviewTraces | undefined): Promise<CompareResult> {
-  const fail = (error: string): CompareResult => {
+  const showFailure = (error: string): CompareResult => {
     void vscode.window.showErrorMessage(`cachewright: ${error}`);
     return { ok: false, error };
   };
   const state = chooseMapping(states);
-  if (!state) return fail('no usable mapping file (cachewright.yaml or cachewright.json) at the root of a workspace folder, so there is nothing to compare.');
+  if (!state) return showFailure('no usable mapping file (cachewright.yaml or cachewright.json) at the root of a workspace folder, so there is nothing to compare.');
   try {
     const revision = request.revision ?? (await pickRevision(state.mapping.dir));
     if (revision === undefined) return { ok: false, error: 'no revision chosen' };
@@ -155,7 +155,7 @@ export async function compareWithRevision(states: readonly MappingState[], docum
     await vscode.commands.executeCommand('markdown.showPreviewToSide', uri);
     return { ok: true, revision, uri, markdown };
   } catch (error) {
-    if (error instanceof ReviewError) return fail(error.message);
+    if (error instanceof ReviewError) return showFailure(error.message);
     throw error;
   }
 }

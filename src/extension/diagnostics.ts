@@ -47,7 +47,8 @@ export function mappingDiagnostics(problems: readonly MappingProblem[]): vscode.
   });
 }
 
-export function ruleOf(diagnostic: vscode.Diagnostic): string | undefined {
+/** The rule id a diagnostic of ours carries as its code. */
+export function ruleIdOf(diagnostic: vscode.Diagnostic): string | undefined {
   const code = diagnostic.code;
   if (typeof code === 'string') return code;
   if (code && typeof code === 'object') return String(code.value);

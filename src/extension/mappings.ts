@@ -29,7 +29,7 @@ async function exists(uri: vscode.Uri): Promise<boolean> {
 }
 
 /** The mapping file a folder uses: the configured path, else the first standard name at its root. */
-export async function findMappingFile(folder: vscode.WorkspaceFolder): Promise<vscode.Uri | undefined> {
+export async function mappingFileOfFolder(folder: vscode.WorkspaceFolder): Promise<vscode.Uri | undefined> {
   const configured = readSettings(folder.uri).mappingFile;
   if (configured) {
     const uri = path.isAbsolute(configured) ? vscode.Uri.file(configured) : vscode.Uri.joinPath(folder.uri, configured);
@@ -90,7 +90,7 @@ export class Mappings {
   async reloadAll(): Promise<MappingState[]> {
     const next = new Map<string, MappingState>();
     for (const folder of vscode.workspace.workspaceFolders ?? []) {
-      const uri = await findMappingFile(folder);
+      const uri = await mappingFileOfFolder(folder);
       if (!uri) continue;
       next.set(folder.uri.toString(), await this.load(folder, uri));
     }

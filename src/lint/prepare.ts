@@ -10,7 +10,7 @@ import type { NewValue } from '../model/edits';
 import type { ImageLookup } from '../model/images';
 import type { TraceLookup } from '../model/traces';
 import { parseJsonPointer } from '../model/jsonpath';
-import { loadMapping as loadMappingFile, type Mapping, type MappingLoad } from '../model/mapping';
+import { parseMapping, type Mapping, type MappingLoad } from '../model/mapping';
 import { RULE_IDS, type Rule, type RuleId } from '../rules';
 import type { FixHelpers, SizeField } from '../rules/types';
 import type { LintFinding } from './report';
@@ -32,7 +32,7 @@ export interface LintOptions {
 
 /** Reads a mapping file, checking rule ids against the rules that exist. */
 export function loadMapping(text: string, path: string): MappingLoad {
-  return loadMappingFile(text, path, RULE_IDS);
+  return parseMapping(text, path, RULE_IDS);
 }
 
 /** The scalar a finding points at, as data: part of the finding's identity across runs. */

@@ -60,15 +60,7 @@ class Scanner {
       if (this.text[this.i] !== ':') this.fail(`expected ":" after the key, found ${this.describe()}`);
       this.i++;
       this.value(depth + 1);
-      this.space();
-      if (this.text[this.i] === ',') {
-        this.i++;
-        this.space();
-        if (this.text[this.i] === '}') this.fail('a trailing comma is not allowed before "}"');
-        continue;
-      }
-      if (this.text[this.i] === '}') return void this.i++;
-      this.fail(`expected "," or "}", found ${this.describe()}`);
+      if (!this.another('}')) return;
     }
   }
 
@@ -78,16 +70,24 @@ class Scanner {
     if (this.text[this.i] === ']') return void this.i++;
     for (;;) {
       this.value(depth + 1);
-      this.space();
-      if (this.text[this.i] === ',') {
-        this.i++;
-        this.space();
-        if (this.text[this.i] === ']') this.fail('a trailing comma is not allowed before "]"');
-        continue;
-      }
-      if (this.text[this.i] === ']') return void this.i++;
-      this.fail(`expected "," or "]", found ${this.describe()}`);
+      if (!this.another(']')) return;
     }
+  }
+
+  /** After a member or element: past a comma, true (another must follow); past the closing bracket, false. */
+  another(close: '}' | ']'): boolean {
+    this.space();
+    if (this.text[this.i] === ',') {
+      this.i++;
+      this.space();
+      if (this.text[this.i] === close) this.fail(`a trailing comma is not allowed before "${close}"`);
+      return true;
+    }
+    if (this.text[this.i] === close) {
+      this.i++;
+      return false;
+    }
+    this.fail(`expected "," or "${close}", found ${this.describe()}`);
   }
 
   string(): void {

@@ -184,7 +184,8 @@ function readHosts(file: MappingFile, at: (...path: PathSegment[]) => { pointer:
 
 const byPosition = (problems: MappingProblem[]): MappingProblem[] => problems.sort((a, b) => a.range.offset - b.range.offset);
 
-export function loadMapping(text: string, path: string, knownRuleIds: readonly string[] = []): MappingLoad {
+/** A mapping file read from its text; rule ids are checked against `knownRuleIds` (the lint passes its registry: `loadMapping`). */
+export function parseMapping(text: string, path: string, knownRuleIds: readonly string[] = []): MappingLoad {
   const read = readDefinition(path, text);
   if (!read.document) {
     return { problems: read.problems.map((p) => ({ message: `mapping file: ${p.message}`, pointer: '', range: p.range })) };

@@ -1,29 +1,17 @@
 // What the review reads of a lint run: per definition file, its disks, machines and findings. The
 // CLI's report views fit these shapes as they are; nothing here reads files or runs git.
 import * as nodePath from 'node:path';
-import type { Finding, SizingReport, SourceRange } from '../core/results';
+import type { Finding } from '../core/results';
+import type { DiskReport, MachineReport } from '../lint/report';
 
-export interface ReviewedDisk {
-  machine: string;
-  name: string;
-  /** Whether the name comes from the definition (else it depends on the disk's index). */
-  named: boolean;
-  pointer: string;
-  sizing: SizingReport;
+/** A disk as the review reads it: the lint report's own fields (DiskReport), nothing recomputed. */
+export type ReviewedDisk = Pick<DiskReport, 'machine' | 'name' | 'named' | 'pointer' | 'sizing'> & {
   /** The values the definition writes for the disk, as written (the report's `values`). */
   values?: Readonly<Record<string, { raw: unknown } | undefined>>;
-}
+};
 
-export interface ReviewedMachine {
-  name: string;
-  named: boolean;
-  pointer: string;
-  range: SourceRange;
-  memory?: bigint;
-  /** The hypervisor host the machine runs on, when the mapping says where that is written. */
-  host?: string;
-  cacheMemoryTotal: bigint;
-}
+/** A machine as the review reads it: the lint report's own fields (MachineReport), nothing recomputed. */
+export type ReviewedMachine = Pick<MachineReport, 'name' | 'named' | 'pointer' | 'range' | 'memory' | 'host' | 'cacheMemoryTotal'>;
 
 export interface ReviewedFile {
   /** Relative to the mapping file's folder, with forward slashes: the same on every checkout. */

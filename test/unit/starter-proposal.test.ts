@@ -2,7 +2,7 @@
 // (docs/sources.md: one name per concept; `cachewright size --cache` is the L2 cache).
 import { strict as assert } from 'node:assert';
 import { proposeMapping } from '../../src/extension/starter-proposal';
-import { loadMapping } from '../../src/model/mapping';
+import { loadMapping } from '../../src/lint';
 
 const fleet = (tuning: Record<string, string>) => ({
   vms: [{ hostname: 'plover-01', ram: '8G', volumes: [{ label: 'root', capacity: '40G', kind: 'qcow2', tuning }] }],

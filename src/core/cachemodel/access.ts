@@ -1,7 +1,7 @@
 // Access patterns: the workload shapes the model knows, and the one notation every front end uses to
 // name them: `random`, `sequential`, `mixed`, `zipf(S)` and `P% on Q%` (docs/sources.md, access patterns).
 
-import { fail, ok, type ModelResult } from './result';
+import { failOn, ok, type ModelResult } from './result';
 
 /** Every touched cache entry is equally likely; the textbook C/N case. */
 export interface RandomAccess {
@@ -47,20 +47,20 @@ export function checkAccessPattern(access: AccessPattern, field = 'access'): Mod
       return ok(access);
     case 'zipf':
       if (!Number.isFinite(access.exponent) || access.exponent < 0 || access.exponent > MAX_ZIPF_EXPONENT) {
-        return fail(field, `Zipf exponent ${String(access.exponent)} is out of range: use a number from 0 to ${MAX_ZIPF_EXPONENT} (0 is random; 0.6 to 1.2 is typical of skewed workloads)`);
+        return failOn(field, `Zipf exponent ${String(access.exponent)} is out of range: use a number from 0 to ${MAX_ZIPF_EXPONENT} (0 is random; 0.6 to 1.2 is typical of skewed workloads)`);
       }
       return ok(access);
     case 'concentrated':
       if (!Number.isFinite(access.share) || access.share < 0 || access.share > 1) {
-        return fail(field, `the share of I/O ${percentText(access.share)}% is out of range: use 0% to 100%`);
+        return failOn(field, `the share of I/O ${percentText(access.share)}% is out of range: use 0% to 100%`);
       }
       if (!Number.isFinite(access.fraction) || access.fraction <= 0 || access.fraction >= 1) {
-        return fail(field, `the share of the disk ${percentText(access.fraction)}% is out of range: use more than 0% and less than 100%`);
+        return failOn(field, `the share of the disk ${percentText(access.fraction)}% is out of range: use more than 0% and less than 100%`);
       }
       return ok(access);
     default: {
       const unknown: { kind?: unknown } = access;
-      return fail(field, `unknown access pattern kind ${JSON.stringify(unknown.kind)}: expected ${ACCESS_FORMS}`);
+      return failOn(field, `unknown access pattern kind ${JSON.stringify(unknown.kind)}: expected ${ACCESS_FORMS}`);
     }
   }
 }
@@ -92,7 +92,7 @@ export function parseAccessSpec(text: string, field = 'access'): ModelResult<Acc
     const argument = (zipf[1] ?? '').trim();
     const exponent = parseNumber(argument);
     if (exponent === undefined) {
-      return fail(field, `access pattern ${shown}: the Zipf exponent "${argument}" is not a number; use a number from 0 to ${MAX_ZIPF_EXPONENT}, e.g. zipf(1.1)`);
+      return failOn(field, `access pattern ${shown}: the Zipf exponent "${argument}" is not a number; use a number from 0 to ${MAX_ZIPF_EXPONENT}, e.g. zipf(1.1)`);
     }
     return prefix(checkAccessPattern({ kind: 'zipf', exponent }, field), shown);
   }
@@ -100,17 +100,17 @@ export function parseAccessSpec(text: string, field = 'access'): ModelResult<Acc
   if (share) {
     const [, ioText = '', diskText = ''] = share;
     const io = parseNumber(ioText);
-    if (io === undefined) return fail(field, `access pattern ${shown}: the share of I/O "${ioText.trim()}%" is not a percentage; e.g. "90% on 10%"`);
+    if (io === undefined) return failOn(field, `access pattern ${shown}: the share of I/O "${ioText.trim()}%" is not a percentage; e.g. "90% on 10%"`);
     const disk = parseNumber(diskText);
-    if (disk === undefined) return fail(field, `access pattern ${shown}: the share of the disk "${diskText.trim()}%" is not a percentage; e.g. "90% on 10%"`);
+    if (disk === undefined) return failOn(field, `access pattern ${shown}: the share of the disk "${diskText.trim()}%" is not a percentage; e.g. "90% on 10%"`);
     return prefix(checkAccessPattern({ kind: 'concentrated', share: io / 100, fraction: disk / 100 }, field), shown);
   }
-  return fail(field, `unknown access pattern ${shown}: use ${ACCESS_FORMS}`);
+  return failOn(field, `unknown access pattern ${shown}: use ${ACCESS_FORMS}`);
 }
 
 function prefix(result: ModelResult<AccessPattern>, shown: string): ModelResult<AccessPattern> {
   if (result.ok) return result;
-  return fail(result.error.field, `access pattern ${shown}: ${result.error.message}`);
+  return failOn(result.error.field, `access pattern ${shown}: ${result.error.message}`);
 }
 
 /** The notation for a pattern; parseAccessSpec(formatAccessSpec(p)) gives p back. */

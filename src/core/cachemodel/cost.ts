@@ -3,7 +3,7 @@
 // An access costs the device's latency plus transfer time. The latencies are round figures for each
 // device class, recalled (from memory), not measured: they are assumptions the caller can override.
 
-import { fail, ok, type ModelResult } from './result';
+import { failOn, ok, type ModelResult } from './result';
 
 export interface DeviceLatency {
   /** A label for reports, e.g. "nvme" or the caller's own name. */
@@ -30,15 +30,15 @@ export function resolveDevice(device: DeviceClass | DeviceLatency | undefined): 
   if (typeof device === 'string') {
     const known = DEVICE_CLASSES[device];
     if (known === undefined) {
-      return fail('device', `unknown device class ${JSON.stringify(device)}: expected ${Object.keys(DEVICE_CLASSES).join(', ')}, or explicit latencies`);
+      return failOn('device', `unknown device class ${JSON.stringify(device)}: expected ${Object.keys(DEVICE_CLASSES).join(', ')}, or explicit latencies`);
     }
     return ok(known);
   }
   if (!Number.isFinite(device.accessLatencyUs) || device.accessLatencyUs < 0) {
-    return fail('device.accessLatencyUs', `device access latency ${String(device.accessLatencyUs)} µs is not allowed: use a number of microseconds, 0 or more`);
+    return failOn('device.accessLatencyUs', `device access latency ${String(device.accessLatencyUs)} µs is not allowed: use a number of microseconds, 0 or more`);
   }
   if (!Number.isFinite(device.bytesPerSecond) || device.bytesPerSecond <= 0) {
-    return fail('device.bytesPerSecond', `device transfer rate ${String(device.bytesPerSecond)} bytes/s is not allowed: use a number greater than 0`);
+    return failOn('device.bytesPerSecond', `device transfer rate ${String(device.bytesPerSecond)} bytes/s is not allowed: use a number greater than 0`);
   }
   return ok(device);
 }

@@ -3,7 +3,7 @@
 // entry is either that whole table or a slice of it.
 
 import { isPowerOfTwo } from '../sizing';
-import { fail, ok, type ModelResult } from './result';
+import { failOn, ok, type ModelResult } from './result';
 
 export const MIN_CLUSTER_SIZE = 512n; // cluster_bits 9
 export const MAX_CLUSTER_SIZE = 2n * 1024n * 1024n; // cluster_bits 21
@@ -28,14 +28,14 @@ export interface EntryGeometry {
 
 export function entryGeometry(clusterSize: bigint, extendedL2: boolean, entrySize?: bigint): ModelResult<EntryGeometry> {
   if (!isPowerOfTwo(clusterSize) || clusterSize < MIN_CLUSTER_SIZE || clusterSize > MAX_CLUSTER_SIZE) {
-    return fail('clusterSize', `cluster size ${clusterSize} bytes is not allowed: qcow2 clusters are a power of two from 512 bytes to 2 MiB`);
+    return failOn('clusterSize', `cluster size ${clusterSize} bytes is not allowed: qcow2 clusters are a power of two from 512 bytes to 2 MiB`);
   }
   if (extendedL2 && clusterSize < MIN_EXTENDED_L2_CLUSTER_SIZE) {
-    return fail('extendedL2', `extended L2 entries need clusters of at least 16 KiB; the cluster size is ${clusterSize} bytes`);
+    return failOn('extendedL2', `extended L2 entries need clusters of at least 16 KiB; the cluster size is ${clusterSize} bytes`);
   }
   const size = entrySize ?? clusterSize;
   if (!isPowerOfTwo(size) || size < MIN_ENTRY_SIZE || size > clusterSize) {
-    return fail('entrySize', `cache entry size ${size} bytes is not allowed: use a power of two from 512 bytes up to the cluster size (${clusterSize} bytes)`);
+    return failOn('entrySize', `cache entry size ${size} bytes is not allowed: use a power of two from 512 bytes up to the cluster size (${clusterSize} bytes)`);
   }
   const l2EntryBytes = extendedL2 ? EXTENDED_L2_ENTRY_BYTES : STANDARD_L2_ENTRY_BYTES;
   const l2EntriesPerEntry = size / l2EntryBytes;
@@ -66,17 +66,17 @@ export interface EntrySpan {
 
 export function checkWorkingSet(virtualSize: bigint, workingSet: WorkingSet | undefined): ModelResult<WorkingSet> {
   if (virtualSize <= 0n) {
-    return fail('virtualSize', `virtual size ${virtualSize} bytes is not allowed: it must be greater than 0`);
+    return failOn('virtualSize', `virtual size ${virtualSize} bytes is not allowed: it must be greater than 0`);
   }
   const set = workingSet ?? { offset: 0n, length: virtualSize };
   if (set.offset < 0n) {
-    return fail('workingSet.offset', `working set offset ${set.offset} is negative: it must be from 0 to the virtual size (${virtualSize} bytes)`);
+    return failOn('workingSet.offset', `working set offset ${set.offset} is negative: it must be from 0 to the virtual size (${virtualSize} bytes)`);
   }
   if (set.length <= 0n) {
-    return fail('workingSet.length', `working set length ${set.length} bytes is not allowed: it must be greater than 0`);
+    return failOn('workingSet.length', `working set length ${set.length} bytes is not allowed: it must be greater than 0`);
   }
   if (set.offset + set.length > virtualSize) {
-    return fail('workingSet', `working set ${set.offset}+${set.length} ends at byte ${set.offset + set.length}, past the end of the ${virtualSize}-byte disk: it must lie inside the virtual disk`);
+    return failOn('workingSet', `working set ${set.offset}+${set.length} ends at byte ${set.offset + set.length}, past the end of the ${virtualSize}-byte disk: it must lie inside the virtual disk`);
   }
   return ok(set);
 }

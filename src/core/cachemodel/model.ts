@@ -7,7 +7,7 @@ import { checkAccessPattern, type AccessPattern } from './access';
 import { cheHitRatio, singleEntryHitRatio, weightedItems, type WarmStart, type WeightedItems } from './characteristic-time';
 import { estimateThroughput, resolveDevice, type DeviceClass, type DeviceLatency, type ThroughputEstimate } from './cost';
 import { checkWorkingSet, entryClasses, entryGeometry, entrySpan, type DensitySegment, type EntryGeometry, type WorkingSet } from './geometry';
-import { fail, ok, type ModelResult } from './result';
+import { failOn, ok, type ModelResult } from './result';
 import { zipfItems } from './zipf';
 import { atIndex } from '../indexed';
 
@@ -126,10 +126,10 @@ export function prepareCacheModel(input: CacheModelGeometryInput): ModelResult<P
   if (!accessResult.ok) return accessResult;
   const access = accessResult.value;
   const ioSize = input.ioSize ?? DEFAULT_IO_SIZE;
-  if (ioSize <= 0n) return fail('ioSize', `guest I/O size ${ioSize} bytes is not allowed: it must be greater than 0`);
+  if (ioSize <= 0n) return failOn('ioSize', `guest I/O size ${ioSize} bytes is not allowed: it must be greater than 0`);
   const minEntries = input.minEntries ?? DRIVER_MIN_ENTRIES;
   if (!Number.isSafeInteger(minEntries) || minEntries < 1) {
-    return fail('minEntries', `minimum cache entries ${String(minEntries)} is not allowed: use a whole number, 1 or more (the driver keeps at least ${DRIVER_MIN_ENTRIES})`);
+    return failOn('minEntries', `minimum cache entries ${String(minEntries)} is not allowed: use a whole number, 1 or more (the driver keeps at least ${DRIVER_MIN_ENTRIES})`);
   }
   const deviceResult = resolveDevice(input.device);
   if (!deviceResult.ok) return deviceResult;
@@ -333,7 +333,7 @@ function modularInverse(a: bigint, modulus: bigint): bigint {
 export function modelCache(input: CacheModelInput): ModelResult<CacheModelReport> {
   const prepared = prepareCacheModel(input);
   if (!prepared.ok) return prepared;
-  if (input.cacheBytes < 0n) return fail('cacheBytes', `cache size ${input.cacheBytes} bytes is negative: use 0 or more bytes`);
+  if (input.cacheBytes < 0n) return failOn('cacheBytes', `cache size ${input.cacheBytes} bytes is negative: use 0 or more bytes`);
   return ok(prepared.value.at(input.cacheBytes));
 }
 

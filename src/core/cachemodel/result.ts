@@ -1,6 +1,6 @@
 // Every entry point of the cache model returns the one result shape instead of throwing: the model
 // also runs in the panel's webview, where a bad what-if value must become a message, never an exception.
-import { fail as failWith, type Outcome } from '../results';
+import { fail, type Outcome } from '../results';
 
 export { ok } from '../results';
 
@@ -12,6 +12,7 @@ export interface ModelProblem {
 
 export type ModelResult<T> = Outcome<T, ModelProblem>;
 
-export function fail(field: string, message: string): { ok: false; error: ModelProblem } {
-  return failWith({ field, message });
+/** A failed result naming the input field it failed on. */
+export function failOn(field: string, message: string): { ok: false; error: ModelProblem } {
+  return fail({ field, message });
 }

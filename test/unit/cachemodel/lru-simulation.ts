@@ -2,17 +2,7 @@
 // Written from the definition of LRU (on a miss with a full cache, evict the entry unused the longest),
 // sharing no code with src/core/cachemodel.
 
-/** mulberry32: a small, well-known 32-bit seeded generator (public domain); uniform in [0, 1). */
-export function mulberry32(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export { mulberry32 } from '../../helpers/seeded-random.cjs';
 
 /** Uniform in [0, 1) with 53 random bits, for byte offsets beyond 2^32. */
 export function fine(random: () => number): () => number {

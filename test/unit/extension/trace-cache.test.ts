@@ -7,26 +7,15 @@ import { join } from 'node:path';
 import { TraceCurveCache, type RunningTraceJob } from '../../../src/extension/traces';
 import type { TraceRequest } from '../../../src/model/traces';
 import { asCsv, libraryHits, lookupsOf, tempFolder, type Request } from '../trace/helpers';
+import { mulberry32 } from '../../helpers/seeded-random.cjs';
 
 const WORKER = join(__dirname, '..', '..', '..', 'dist', 'trace-worker.js');
 const KiB = 1024;
 const MiB = 1024 * KiB;
 const GiB = 1024 * MiB;
 
-/** A seeded generator (mulberry32, public domain), so the trace is the same every run. */
-function seeded(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 function randomRequests(count: number, seed: number): Request[] {
-  const next = seeded(seed);
+  const next = mulberry32(seed);
   return Array.from({ length: count }, () => ({ offset: Math.floor(next() * (8 * GiB / (4 * KiB))) * 4 * KiB, length: 4 * KiB, op: 'read' as const }));
 }
 
