@@ -3,7 +3,7 @@
 // file, a moment later and off the keystroke path. Its findings go to the file of the first machine
 // on each host; the status bar and the panel read the host reports it leaves behind.
 import * as vscode from 'vscode';
-import { hostReports, lintHosts, type Finding, type HostReport, type Mapping } from '../lint';
+import { HostPassMemo, runHostPass, type Finding, type HostReport, type Mapping } from '../lint';
 import type { FileReport } from '../lint';
 import { readSettings } from './settings';
 
@@ -30,6 +30,8 @@ export class WorkspaceHosts implements vscode.Disposable {
   private findings = new Map<string, Finding[]>();
   /** Host reports by mapping file path. */
   private reports = new Map<string, HostReport[]>();
+  /** The last pass's results by mapping file path, for the next pass to reuse. */
+  private memos = new Map<string, HostPassMemo>();
   private readonly emitter = new vscode.EventEmitter<void>();
   /** Fires after a pass that changed the host reports. */
   readonly onDidUpdate = this.emitter.event;
@@ -50,6 +52,7 @@ export class WorkspaceHosts implements vscode.Disposable {
   /** One pass over every definition's latest report, per mapping file. */
   run(): void {
     const groups = new Map<string, { mapping: Mapping; files: { uri: vscode.Uri; report: FileReport }[] }>();
+    const memos = new Map<string, HostPassMemo>();
     for (const result of this.source.results()) {
       const group = groups.get(result.mapping.path) ?? { mapping: result.mapping, files: [] };
       // Results linted after a mapping reload carry the newer mapping: the group takes that one.
@@ -59,26 +62,33 @@ export class WorkspaceHosts implements vscode.Disposable {
     }
     const findings = new Map<string, Finding[]>();
     const reports = new Map<string, HostReport[]>();
+    let changed = this.memos.size !== groups.size;
     for (const [mappingPath, { mapping, files }] of groups) {
       // The step appends to each file's list: it gets empty lists, the reports stay as linted.
       const workspace = files.map(({ uri, report }) => {
         const added: Finding[] = [];
         return { uri, path: uri.fsPath, machines: report.machines, findings: added };
       });
-      lintHosts(workspace, mapping, { severities: readSettings(vscode.Uri.file(mappingPath)).rules });
+      // A host whose machines did not change keeps its findings (the same objects): most passes,
+      // after an edit in one file, judge only the hosts that file's machines sit on.
+      const memo = this.memos.get(mappingPath) ?? new HostPassMemo();
+      memos.set(mappingPath, memo);
+      const pass = runHostPass(workspace, mapping, { severities: readSettings(vscode.Uri.file(mappingPath)).rules }, memo);
+      if (pass.changed) changed = true;
       for (const file of workspace) if (file.findings.length > 0) findings.set(file.uri.toString(), file.findings);
-      reports.set(mappingPath, hostReports(workspace, mapping));
+      reports.set(mappingPath, pass.reports);
     }
     const before = this.findings;
-    const reportsBefore = this.reports;
     this.findings = findings;
     this.reports = reports;
+    this.memos = memos;
     this.passes++;
+    if (!changed) return;
     for (const key of new Set([...before.keys(), ...findings.keys()])) {
-      if (JSON.stringify(before.get(key) ?? [], jsonBigint) !== JSON.stringify(findings.get(key) ?? [], jsonBigint)) this.source.republish(vscode.Uri.parse(key));
+      if (!sameItems(before.get(key) ?? [], findings.get(key) ?? [])) this.source.republish(vscode.Uri.parse(key));
     }
     // The status bar and the panel redraw only when a host's figures or machines changed.
-    if (JSON.stringify([...reportsBefore], jsonBigint) !== JSON.stringify([...reports], jsonBigint)) this.emitter.fire();
+    this.emitter.fire();
   }
 
   /**
@@ -111,4 +121,5 @@ export class WorkspaceHosts implements vscode.Disposable {
   }
 }
 
-const jsonBigint = (_key: string, value: unknown): unknown => (typeof value === 'bigint' ? value.toString() : value);
+/** The same findings, by identity: the step hands back the very objects of a host it did not judge again. */
+const sameItems = (a: readonly unknown[], b: readonly unknown[]): boolean => a.length === b.length && a.every((item, i) => item === b[i]);

@@ -15,7 +15,7 @@ export { loadMapping, type LintOptions, type SourceFile } from './prepare';
 export type { DiskReport, FileReport, LintFinding as Finding, MachineReport } from './report';
 export { LintSession } from './session';
 export { acceptCommentEdit } from './accept-comment';
-export { hostReports, lintHosts, type HostReport, type WorkspaceFile } from './hosts';
+export { HostPassMemo, runHostPass, hostReports, lintHosts, type HostReport, type WorkspaceFile } from './hosts';
 export type { HostLoad } from '../core/host-load';
 
 /** Lints one definition file. Never throws for any text. */
