@@ -61,7 +61,7 @@ describe('accept comments written for a finding', () => {
     const edit = acceptCommentEdit(text, report, finding, `  ${REASON}\n  (two lines)  `);
     assert.ok(edit.ok);
     const lines = applyEdits(text, [edit.value]).split('\n');
-    const at = lines.findIndex((l) => l.includes('# cachewright-accept'));
+    const at = lines.findIndex((l) => l.includes('# cachewright-accept l2-cache-undersized'));
     assert.equal(lines[at], `      # cachewright-accept l2-cache-undersized: ${REASON} (two lines)`);
     assert.match(lines[at + 1] ?? '', /^ {6}- label: ledger$/);
   });

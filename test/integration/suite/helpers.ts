@@ -72,7 +72,7 @@ export function perf(label: string, value: string): void {
   console.log(`perf: ${label}: ${value}`);
 }
 
-export interface CliFinding { rule: string; message: string; line: number; column: number; fix?: { title: string; edits: { text: string }[] } }
+export interface CliFinding { rule: string; message: string; line: number; column: number; fix?: { title: string; edits: { text: string }[] }; accepted?: { reason: string } }
 
 /** The command line's findings for a workspace file, from its JSON output (CONTRACTS.md section 3). */
 export function cliFindings(relative: string): CliFinding[] {

@@ -105,7 +105,7 @@ describe('commands, status bar and panel', () => {
     const disks = await cachewright.refreshPanel(document.uri);
     assert.equal(disks, 4, 'four qcow2 disks drawn (the raw scratch disk is not sized)');
     // An edit re-renders the panel; the host measures lint + post + draw.
-    const range = rangeOf(document, 'l2: 5M', '5M');
+    const range = rangeOf(document, 'l2: 10M', '10M');
     const redraw = async (count: number): Promise<number> => {
       await waitFor('the panel to redraw after the edit', () => cachewright.timings().panelUpdates > count);
       return cachewright.timings().panelUpdateMs ?? -1;
