@@ -3,7 +3,7 @@
 import type { Fix, Severity } from '../core/results';
 import type { SizeStyle } from '../core/units';
 import { setDiskFieldEdit, sizeStyleOfMachines } from '../model/disk-edits';
-import { isScalar } from 'yaml';
+import { isScalar } from '../model/yaml-functions';
 import { nodeAt, type DefinitionDocument } from '../model/document';
 import type { DiskSpec, MachineSpec } from '../model/disks';
 import type { NewValue } from '../model/edits';

@@ -141,12 +141,18 @@ function byPlace(a: LintFinding, b: LintFinding): number {
   return a.range.offset - b.range.offset || SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity] || (RULE_ORDER.get(a.rule) ?? 0) - (RULE_ORDER.get(b.rule) ?? 0);
 }
 
-/** The report from a file's units: disks in order, machine sums, findings accepted and sorted. */
-export function assemble(context: FileContext, units: Units): FileReport {
+/**
+ * The report from a file's units: disks in order, machine sums, findings accepted and sorted.
+ * `disksNested` is whether a disk's pointer lies within another's (or repeats it); absent, it is
+ * worked out here (the editor session works it out once per full read: edits keep the pointers).
+ */
+export function assemble(context: FileContext, units: Units, disksNested?: boolean): FileReport {
   const { mapping, document } = context;
   const disks: DiskReport[] = [];
   const machineReports: MachineReport[] = [];
   const findings: LintFinding[] = [...units.other];
+  // The disk each disk unit's finding came from: claimFindings confirms it instead of searching.
+  const fromDisk = new Map<LintFinding, DiskReport>();
   for (const unit of units.machines) {
     const indices: number[] = [];
     findings.push(...unit.valueFindings);
@@ -155,7 +161,9 @@ export function assemble(context: FileContext, units: Units): FileReport {
       findings.push(...disk.findings);
       if (!disk.result) continue;
       indices.push(disks.length);
-      disks.push(diskReport(mapping, disk.disk, disk.result));
+      const report = diskReport(mapping, disk.disk, disk.result);
+      disks.push(report);
+      for (const finding of disk.findings) fromDisk.set(finding, report);
       diskTotals.push(disk.result.sizing.report.cacheMemoryTotal);
     }
     findings.push(...unit.ruleFindings);
@@ -181,7 +189,7 @@ export function assemble(context: FileContext, units: Units): FileReport {
     if (accepts && machine.host !== undefined) machine.hostAcceptances = accepts;
   }
   judged.sort(byPlace);
-  const fileFindings = claimFindings(judged, disks, machineReports);
+  const fileFindings = claimFindings(judged, disks, machineReports, disksNested ?? pointersNested(disks.map((d) => d.pointer)) ? undefined : fromDisk);
   return { path: document.path, disks, machines: machineReports, findings: judged, fileFindings, parsed: true };
 }
 
@@ -252,12 +260,27 @@ const DISK_VALUE_KEYS = [
 const everyValueKey: Exclude<keyof DiskValues, (typeof DISK_VALUE_KEYS)[number]> extends never ? true : false = true;
 void everyValueKey;
 
+/** Whether a pointer lies within another of the list (or repeats it): then a disk's findings may belong to a disk inside it. */
+export function pointersNested(pointers: readonly string[]): boolean {
+  const all = new Set(pointers);
+  if (all.size < pointers.length) return true;
+  for (const pointer of pointers) {
+    for (let cut = pointer.lastIndexOf('/'); cut > 0; cut = pointer.lastIndexOf('/', cut - 1)) if (all.has(pointer.slice(0, cut))) return true;
+  }
+  return false;
+}
+
+/** pointerWithin for a non-empty scope, without building `${scope}/`. */
+const isWithin = (pointer: string, scope: string): boolean => (pointer.length === scope.length ? pointer === scope : pointer.charCodeAt(scope.length) === 47 && pointer.startsWith(scope));
+
 /**
  * Gives each finding to the disk whose pointer holds it, else its machine, else the file; returns
  * the file's. Found by walking each finding's pointer up to its owner, so the cost grows with the
- * findings, not with findings times disks.
+ * findings, not with findings times disks. `fromDisk` (given only when no disk's pointer lies within
+ * another's) names the disk a finding came from: when that disk's pointer holds the finding it is
+ * the only one that can, and the walk (a string cut and a lookup per level) is skipped.
  */
-function claimFindings(findings: readonly LintFinding[], disks: DiskReport[], machines: MachineReport[]): number[] {
+function claimFindings(findings: readonly LintFinding[], disks: DiskReport[], machines: MachineReport[], fromDisk?: ReadonlyMap<LintFinding, DiskReport>): number[] {
   const diskAt = new Map<string, number[]>();
   const machineAt = new Map<string, number[]>();
   for (const disk of disks) if (!diskAt.has(disk.pointer)) diskAt.set(disk.pointer, disk.findings);
@@ -271,7 +294,9 @@ function claimFindings(findings: readonly LintFinding[], disks: DiskReport[], ma
   };
   const file: number[] = [];
   findings.forEach((finding, index) => {
-    (ownerIn(diskAt, finding.pointer) ?? ownerIn(machineAt, finding.pointer) ?? file).push(index);
+    const disk = fromDisk?.get(finding);
+    if (disk && disk.pointer !== '' && isWithin(finding.pointer, disk.pointer)) disk.findings.push(index);
+    else (ownerIn(diskAt, finding.pointer) ?? ownerIn(machineAt, finding.pointer) ?? file).push(index);
   });
   return file;
 }

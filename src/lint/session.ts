@@ -15,7 +15,7 @@ import { traceRequestsOfMachines } from './traces';
 import type { TraceRequest } from '../model/traces';
 import { lintPreparedUnits } from './lint';
 import { FileContext, type LintOptions } from './prepare';
-import { assemble, locatedValues, type DiskUnit, type FileReport, type LintFinding, type MachineUnit, type Units } from './report';
+import { assemble, locatedValues, pointersNested, type DiskUnit, type FileReport, type LintFinding, type MachineUnit, type Units } from './report';
 import { runMachineRules } from './rules';
 
 
@@ -110,6 +110,8 @@ interface SessionState {
   sizeStyle: SizeStyle | undefined;
   /** Anchors or aliases: then every edit is read in full. */
   shared: boolean;
+  /** Whether a disk's pointer lies within another's: an edit inside a disk keeps every pointer. */
+  disksNested: boolean;
   report: FileReport;
 }
 
@@ -166,7 +168,7 @@ export class LintSession {
     const simpleSelectors = (!this.mapping.machines || this.mapping.machines.steps !== undefined) && this.mapping.disks.steps !== undefined;
     if (linted && document && simpleSelectors && document.format === 'yaml') {
       const { context, units } = linted;
-      this.state = { text, document, machines: units.machines.map((u) => u.machine), units, sizeStyle: context.fileSizeStyle(this.machines), shared: hasSharedNodes(document), report };
+      this.state = { text, document, machines: units.machines.map((u) => u.machine), units, sizeStyle: context.fileSizeStyle(this.machines), shared: hasSharedNodes(document), disksNested: pointersNested(units.machines.flatMap((u) => u.disks.map((d) => d.disk.pointer))), report };
     }
     return report;
   }
@@ -232,7 +234,7 @@ export class LintSession {
         return moved;
       }),
     };
-    const report = assemble(context, units);
+    const report = assemble(context, units, state.disksNested);
     this.state = { ...state, text, document, units, report };
     this.lastUpdate = 'incremental';
     return report;

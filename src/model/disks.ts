@@ -6,7 +6,7 @@ import type { SourceRange } from '../core/results';
 import { checkClusterSize, checkExtendedL2, checkSlice } from '../core/sizing';
 import { parseInterval, parseSize } from '../core/units';
 import { accessOfPattern, PATTERN_HELP } from '../core/workload';
-import { nodeAt, rangeOfNode, type DefinitionDocument } from './document';
+import { nodeAt, nodeBelow, rangeOfNode, type DefinitionDocument, type LocatedNode } from './document';
 import { select, toJsonPointer, type PathSegment, type Selector } from './jsonpath';
 import type { AccessPatternText, Mapping } from './mapping';
 import type { DiskField } from './mapping-schema';
@@ -88,25 +88,31 @@ const isRecord = (value: unknown): value is Record<string, unknown> => typeof va
 
 const BOOLEAN_WORDS: Record<string, boolean> = { true: true, false: false, on: true, off: false, yes: true, no: false };
 
+/** A machine or disk whose fields are being read: its place, found once, and its value. */
+interface Base {
+  path: PathSegment[];
+  pointer: string;
+  value: unknown;
+  found: LocatedNode | undefined;
+}
+
 class Extractor {
   readonly problems: ValueProblem[] = [];
   constructor(readonly document: DefinitionDocument, readonly mapping: Mapping) {}
 
-  private place(path: PathSegment[]): { node: Node; range: SourceRange; viaAlias: boolean } | undefined {
-    const found = nodeAt(this.document, path);
-    if (!found) return undefined;
-    return { node: found.node, range: rangeOfNode(this.document, found.node), viaAlias: found.viaAlias };
+  private base(path: PathSegment[], value: unknown): Base {
+    return { path, pointer: toJsonPointer(path), value, found: nodeAt(this.document, path) };
   }
 
-  /** The first node a field's selector picks below `base`. */
-  private raw(selector: Selector | undefined, base: PathSegment[], baseValue: unknown): Located<unknown> | undefined {
-    if (!selector) return undefined;
-    const match = select(selector, baseValue)[0];
+  /** The first node a field's selector picks below `base`, found from the base's own node. */
+  private raw(selector: Selector | undefined, base: Base): Located<unknown> | undefined {
+    if (!selector || !base.found) return undefined;
+    const match = select(selector, base.value)[0];
     if (!match || match.value === null || match.value === undefined) return undefined;
-    const path = [...base, ...match.path];
-    const place = this.place(path);
-    if (!place) return undefined;
-    return { value: match.value, raw: match.value, path, pointer: toJsonPointer(path), node: place.node, range: place.range, viaAlias: place.viaAlias };
+    const found = nodeBelow(this.document, base.found, match.path);
+    if (!found) return undefined;
+    const path = base.path.concat(match.path);
+    return { value: match.value, raw: match.value, path, pointer: base.pointer + toJsonPointer(match.path), node: found.node, range: rangeOfNode(this.document, found.node), viaAlias: found.viaAlias };
   }
 
   private problem(field: string, at: Located<unknown>, message: string): undefined {
@@ -130,19 +136,20 @@ class Extractor {
   }
 
   private machine(path: PathSegment[], value: unknown, index: number): MachineSpec {
-    const place = this.place(path);
+    const base = this.base(path, value);
+    const place = base.found;
     const fields = this.mapping.machineFields;
-    const nameAt = this.raw(fields.name, path, value);
-    const memory = this.typed('memory', this.raw(fields.memory, path, value), parseSize);
-    const host = this.typed('host', this.raw(fields.host, path, value), (v) =>
+    const nameAt = this.raw(fields.name, base);
+    const memory = this.typed('memory', this.raw(fields.memory, base), parseSize);
+    const host = this.typed('host', this.raw(fields.host, base), (v) =>
       (typeof v === 'string' && v.trim() !== '') || typeof v === 'number' ? { ok: true, value: String(v).trim() } : { ok: false, error: `a host name must be a non-empty string, got ${JSON.stringify(v)}` });
     const hasName = nameAt !== undefined && (typeof nameAt.raw === 'string' || typeof nameAt.raw === 'number');
     const machine: MachineSpec = {
       name: hasName ? String(nameAt.raw) : this.mapping.machines ? `machine ${index + 1}` : this.document.path.split(/[\\/]/).pop() ?? 'machine',
       named: hasName || !this.mapping.machines,
       path,
-      pointer: toJsonPointer(path),
-      range: place?.range ?? this.document.lines.range(0, 0),
+      pointer: base.pointer,
+      range: place ? rangeOfNode(this.document, place.node) : this.document.lines.range(0, 0),
       node: place?.node,
       memory,
       ...(host ? { host } : {}),
@@ -157,10 +164,11 @@ class Extractor {
   }
 
   disk(machine: MachineSpec, path: PathSegment[], value: Record<string, unknown>, fallbackName: string, depth = 0): DiskSpec | undefined {
-    const place = this.place(path);
+    const base = this.base(path, value);
+    const place = base.found;
     if (!place) return undefined;
     const f = this.mapping.diskFields;
-    const raw = (field: DiskField) => this.raw(f[field], path, value);
+    const raw = (field: DiskField) => this.raw(f[field], base);
     const size = (field: DiskField) => this.typed(field, raw(field), parseSize);
     const nameAt = raw('name');
     const values: DiskValues = {
@@ -216,8 +224,8 @@ class Extractor {
       named: hasName,
       machine,
       path,
-      pointer: toJsonPointer(path),
-      range: place.range,
+      pointer: base.pointer,
+      range: rangeOfNode(this.document, place.node),
       node: place.node,
       values,
       isQcow2: format.trim().toLowerCase() === 'qcow2',

@@ -1,7 +1,8 @@
 // Fixes as data: the smallest text edits that set a value in place or insert a missing key, written
 // in the file's own style (YAML block or flow, JSON with its indentation, the unit style the file
 // uses), so everything the fix does not mean to change keeps its bytes.
-import { isMap, isNode, isScalar, type Node, type Pair } from 'yaml';
+import { isMap, isNode, isScalar } from './yaml-functions';
+import type { Node, Pair } from 'yaml';
 import type { TextEdit } from '../core/results';
 import { formatSizeExact, sizeStyleOf, type SizeStyle } from '../core/units';
 import { keyText, type DefinitionDocument } from './document';

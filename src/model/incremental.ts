@@ -6,7 +6,8 @@
 //
 // Only the yaml package's public surface is used: node ranges (`[start, value-end, node-end]`) and
 // a sequence's `items`. Every write into the previous tree happens in spliceItem, after all checks.
-import { isAlias, isMap, isPair, isScalar, isSeq, parseDocument, type Document, type Node, type Range, type YAMLMap, type YAMLSeq } from 'yaml';
+import { isAlias, isMap, isPair, isScalar, isSeq, parseDocument } from './yaml-functions';
+import type { Document, Node, Range, YAMLMap, YAMLSeq } from 'yaml';
 import { nodeAt, type DefinitionDocument } from './document';
 import { valueAtPath, type PathSegment } from './jsonpath';
 

@@ -2,7 +2,7 @@
 // reported at its own line and column in the mapping file.
 import * as nodePath from 'node:path';
 import picomatch from 'picomatch';
-import { isNode } from 'yaml';
+import { isNode } from './yaml-functions';
 import type { core } from 'zod';
 type ZodIssue = core.$ZodIssue;
 import { driverProfile, type DriverGeneration, type HostPlatform } from '../core/profiles';

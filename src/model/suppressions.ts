@@ -2,7 +2,7 @@
 // or machine (or at the end of its first line) silences those rules for it. A reason is required:
 // suppressions are reviewed exceptions, and the reason travels into JSON and SARIF output.
 import type { SourceRange } from '../core/results';
-import { visit } from 'yaml';
+import { visit } from './yaml-functions';
 import type { DefinitionDocument } from './document';
 
 export interface SuppressionComment {

@@ -3,6 +3,7 @@
 // target (under 10 ms), in wall time and in this process's CPU time (steadier when other work shares
 // the cores); asserts nothing (tests never assert on wall-clock time).
 //   npx tsx test/bench/editor-latency.ts [--disks N] [--runs N]
+import * as os from 'node:os';
 import * as path from 'node:path';
 import { LintSession, lintDocument, loadMapping } from '../../src/lint';
 import { option } from './lib/options';
@@ -94,6 +95,7 @@ function main(): void {
   const cpuMedian = typedCpu[Math.floor(typedCpu.length / 2)] ?? NaN;
   console.log(`  editor session, a keystroke inside one disk: median ${typedMedian.toFixed(1)} ms, fastest ${typed[0]?.toFixed(1)} ms, slowest ${typed.at(-1)?.toFixed(1)} ms (${fast} of ${keystrokes} re-checked one disk)`);
   console.log(`  the same in CPU time of this process: median ${cpuMedian.toFixed(1)} ms`);
+  console.log(`  CPU time spread: fastest ${typedCpu[0]?.toFixed(1)} ms, tenth ${typedCpu[Math.floor(typedCpu.length / 10)]?.toFixed(1)} ms, ninetieth ${typedCpu[Math.floor((typedCpu.length * 9) / 10)]?.toFixed(1)} ms; load average (1 min) ${(os.loadavg()[0] ?? NaN).toFixed(2)} on ${os.availableParallelism()} cores`);
   console.log(`  ${(typedMedian / TARGET_MS).toFixed(2)} of the ${TARGET_MS} ms target: ${typedMedian < TARGET_MS ? 'within target' : 'over target'}`);
 }
 

@@ -123,6 +123,7 @@ function main(): void {
     const env = { ...process.env, BENCH_YAML: require.resolve('yaml') };
     const floorScript = path.join(dir, 'floor.js');
     fs.writeFileSync(floorScript, FLOOR);
+    const loadBefore = os.loadavg()[0] ?? NaN;
     // one warm-up of each so the file cache is hot for both
     timeRun('floor', [floorScript, dir], dir, env);
     timeRun('lint', [CLI, 'lint', '--format', 'json'], dir, env);
@@ -141,6 +142,8 @@ function main(): void {
     console.log(`  wall spread over the runs: floor ${range(floor)} ms, lint ${range(lint)} ms, one thread ${range(single)} ms`);
     console.log(`  ratio ${ratio.toFixed(2)}x wall (target <= ${TARGET_RATIO}x): ${ratio <= TARGET_RATIO ? 'within target' : 'over target'}`);
     console.log(`  one thread: ${(wall(single) / wall(floor)).toFixed(2)}x wall, ${(cpu(single) / cpu(floor)).toFixed(2)}x cpu`);
+    // Other work on the machine stretches wall times (and the threads' share of the cores): say how busy it was.
+    console.log(`  load average (1 min) before ${loadBefore.toFixed(2)}, after ${(os.loadavg()[0] ?? NaN).toFixed(2)} on ${os.availableParallelism()} cores`);
   } finally {
     if (process.argv.includes('--keep')) console.log(`  files kept in ${dir}`);
     else fs.rmSync(dir, { recursive: true, force: true });

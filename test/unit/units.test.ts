@@ -1,7 +1,7 @@
 // Sizes and intervals (docs/mapping-file.md) against IEC 80000-13's prefixes and exact decimal arithmetic.
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
-import { formatInterval, formatSize } from '../../src/core/format';
+import { formatCount, formatInterval, formatShare, formatSize } from '../../src/core/format';
 import { formatSizeExact, parseInterval, parseSize, sizeStyleOf, type SizeStyle } from '../../src/core/units';
 import { assertErrorMentions, errorOf, valueOf } from '../helpers/outcome';
 import { COMMON, CONTRACT, IEC } from '../helpers/sources';
@@ -138,6 +138,23 @@ describe('units: formatSize (for people)', () => {
   it('marks an inexact two-decimal value with "~"', () => {
     assert.equal(formatSize(1025n), '~1 KiB');
     assert.equal(formatSize(Ki + Ki / 3n), '~1.33 KiB');
+  });
+});
+
+describe('units: thousands separators (for people)', () => {
+  // The formatter groups digits itself (the platform's Intl call was the costliest part of a
+  // message); the reference is that Intl call, ECMA-402 NumberFormat for en-US.
+  const ECMA402 = "[ECMA-402 Intl.NumberFormat, en-US, the platform's own]";
+  it(`${ECMA402} property: formatCount writes every integer as toLocaleString('en-US') does`, () => {
+    let ran = 0;
+    fc.assert(fc.property(fc.oneof(fc.integer(), fc.maxSafeInteger(), fc.constantFrom(0, -0, 999, 1000, -1000, 1e21, 0.5)), (n) => {
+      ran++;
+      assert.equal(formatCount(n), n.toLocaleString('en-US'));
+    }), { numRuns: 2000 });
+    assert.equal(ran, 2000);
+  });
+  it(`${ECMA402} a share above 1,000 % groups its whole part the same way`, () => {
+    assert.equal(formatShare(12345.678), `${(1234567).toLocaleString('en-US')}.8 %`);
   });
 });
 
