@@ -2,11 +2,12 @@
 // One engine, three front ends: each bundle carries its own copy of src/core.
 import * as esbuild from 'esbuild';
 import { existsSync } from 'node:fs';
+import { yamlEnvSwitches } from './yaml-env-switches.mjs';
 
 const watch = process.argv.includes('--watch');
 // --release: minified, no source maps (what the .vsix ships; see scripts/vscode-package.mjs).
 const release = process.argv.includes('--release');
-const common = { bundle: true, sourcemap: !release, minify: release, logLevel: 'warning', target: 'es2022' };
+const common = { bundle: true, sourcemap: !release, minify: release, logLevel: 'warning', target: 'es2022', plugins: [yamlEnvSwitches] };
 const targets = [
   { ...common, entryPoints: ['src/cli/main.ts'], outfile: 'dist/cli.js', platform: 'node', format: 'cjs',
     banner: { js: '#!/usr/bin/env node' } },
