@@ -9,25 +9,13 @@ import * as fs from 'node:fs';
 import * as os from 'node:os';
 import * as path from 'node:path';
 import { CLI, option } from './lib/options';
+import { HOSTS, HOST_FLEET_MAPPING as MAPPING } from './lib/host-fleet';
 
 const TARGET_RATIO = 2.2;
 
 const FILES = option('files', 3000);
 const RUNS = option('runs', 3);
 
-const HOSTS = 40;
-const MAPPING = `version: 1
-include: ["defs/**/*.yaml"]
-machines: "$.vms[*]"
-disks: "$.volumes[*]"
-fields:
-  machine: { name: "$.hostname", memory: "$.ram", host: "$.hv" }
-  disk: { name: "$.label", size: "$.capacity", clusterSize: "$.block", l2Cache: "$.tuning.l2", cleanupInterval: "$.tuning.sweep" }
-assume:
-  hostMemory: 1T
-hosts:
-${Array.from({ length: HOSTS / 2 }, (_, h) => `  - { name: hv-${h}, memory: 512G }`).join('\n')}
-`;
 
 const SIZES = ['20G', '40G', '100G', '500G', '1T', '2T'];
 const CACHES = ['2.5M', '5M', '8M', '16M', '3000K', undefined];

@@ -10,24 +10,11 @@
 import { performance } from 'node:perf_hooks';
 import { HostPassMemo, lintDocument, loadMapping, runHostPass, type FileReport, type Finding, type Mapping } from '../../src/lint';
 import { option } from './lib/options';
+import { HOSTS, HOST_FLEET_MAPPING as MAPPING } from './lib/host-fleet';
 
 const LONG_TASK_MS = 50;
 const FILES = option('files', 3000);
 const RUNS = option('runs', 15);
-const HOSTS = 40;
-
-const MAPPING = `version: 1
-include: ["defs/**/*.yaml"]
-machines: "$.vms[*]"
-disks: "$.volumes[*]"
-fields:
-  machine: { name: "$.hostname", memory: "$.ram", host: "$.hv" }
-  disk: { name: "$.label", size: "$.capacity", clusterSize: "$.block", l2Cache: "$.tuning.l2", cleanupInterval: "$.tuning.sweep" }
-assume:
-  hostMemory: 1T
-hosts:
-${Array.from({ length: HOSTS / 2 }, (_, h) => `  - { name: hv-${h}, memory: 512G }`).join('\n')}
-`;
 
 function definition(index: number): string {
   const machines = Array.from({ length: 4 }, (_, m) => {
