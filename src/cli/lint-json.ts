@@ -25,7 +25,7 @@ const fixJson = (fix: Fix) => ({ title: fix.title, edits: fix.edits.map((e) => (
 
 /**
  * Field by field, in the order the contract lists them: an object spread followed by more fields
- * (`{ ...position(range), fix }`) takes a slow path in V8, and this runs for every finding of a run.
+ * (`{ ...position(range), fix }`) takes the JavaScript engine's slow path, and this runs for every finding of a run.
  */
 function findingJson(run: LintRun, finding: Finding) {
   const { range } = finding;

@@ -172,6 +172,10 @@ function runShare(script: string, cwd: string, request: LintRequest, first: stri
       return;
     }
     worker.on('message', (message: ShareMessage) => {
+      // After an 'error' the thread's last messages may still arrive (the runtime reports the crash
+      // on another channel): the share is already settled and its unfinished files reported, so a
+      // late result must not join it and a late request must not take a batch from the queue.
+      if (settled) return;
       if (message.type === 'file') {
         files.push(message.file);
         notes.push(...message.notes);

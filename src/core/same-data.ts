@@ -17,3 +17,6 @@ export function sameData(a: unknown, b: unknown): boolean {
   }
   return true;
 }
+
+/** The same items in the same order, by identity (the very objects, not equal copies). */
+export const sameItems = (a: readonly unknown[], b: readonly unknown[]): boolean => a.length === b.length && a.every((item, i) => item === b[i]);

@@ -117,8 +117,8 @@ async function review(state: MappingState & { mapping: Mapping }, revision: stri
     // Links open the head's files in the editor.
     return renderCompareMarkdown({ comparison, baseLabel: revision }, { linkBase: `${vscode.Uri.file(head.dir).toString()}/` });
   } finally {
-    // The base's measuring thread is stopped before its files go.
-    traces?.base.dispose();
+    // The review's measuring threads are stopped before the base's files go.
+    traces?.dispose();
     extracted.value.remove();
   }
 }
@@ -130,10 +130,11 @@ function chooseMapping(states: readonly MappingState[]): (MappingState & { mappi
   return (active ? usable.find((s) => s.mapping.includes(active.fsPath) || s.uri.toString() === active.toString()) : undefined) ?? usable[0];
 }
 
-/** The trace caches a review reads (see Linting.reviewTraces); the base's is disposed after the review. */
+/** The trace caches a review reads (see Linting.reviewTraces); `dispose` stops those made for it. */
 export interface ReviewTraces {
   head: TraceCurveCache;
   base: TraceCurveCache;
+  dispose(): void;
 }
 
 export async function compareWithRevision(states: readonly MappingState[], documents: ReviewDocuments, request: CompareRequest = {}, traces?: () => ReviewTraces | undefined): Promise<CompareResult> {

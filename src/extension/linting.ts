@@ -6,6 +6,7 @@ import * as vscode from 'vscode';
 import { LintSession, oversizedFileReport, type FileReport, type Mapping } from '../lint';
 import { ImageFactsCache } from '../image/facts-cache';
 import { TraceCurveCache, type RunningTraceJob } from './traces';
+import type { ReviewTraces } from './compare-revision';
 import { fileDiagnostics, mappingDiagnostics } from './diagnostics';
 import { isMappingFileName, Mappings, readDefinitionText } from './mappings';
 import { readSettings } from './settings';
@@ -64,7 +65,11 @@ export class Linting implements vscode.Disposable {
   }
 
   private newTraceCache(): TraceCurveCache {
-    return new TraceCurveCache(vscode.Uri.joinPath(this.extensionUri, 'dist', 'trace-worker.js').fsPath, (job) => this.showTraceJob(job), readSettings().traceSampleRate);
+    return new TraceCurveCache(this.traceWorkerScript(), (job) => this.showTraceJob(job), readSettings().traceSampleRate);
+  }
+
+  private traceWorkerScript(): string {
+    return vscode.Uri.joinPath(this.extensionUri, 'dist', 'trace-worker.js').fsPath;
   }
 
   /** A long measurement shows its progress and can be cancelled; a short one passes unseen. */
@@ -91,12 +96,24 @@ export class Linting implements vscode.Disposable {
   }
 
   /**
-   * The measured curves for a review against a revision, as `cachewright compare` reads them: the
-   * workspace's own (already measured for the open files) and a fresh cache for the base's copies,
-   * which the caller disposes. None in an untrusted workspace, where the editor reads no traces.
+   * The measured curves for a review against a revision, as `cachewright compare` reads them: every
+   * lookup counted, whatever cachewright.traceSampleRate says. The workspace's own curves serve the
+   * head when they are exact (already measured for the open files); the caches made for the review
+   * go with its dispose. None in an untrusted workspace, where the editor reads no traces.
    */
-  reviewTraces(): { head: TraceCurveCache; base: TraceCurveCache } | undefined {
-    return this.traceCurves ? { head: this.traceCurves, base: this.newTraceCache() } : undefined;
+  reviewTraces(): ReviewTraces | undefined {
+    if (!this.traceCurves) return undefined;
+    const exact = (): TraceCurveCache => new TraceCurveCache(this.traceWorkerScript(), () => undefined, 1);
+    const head = this.traceCurves.sampleRate === 1 ? this.traceCurves : exact();
+    const base = exact();
+    return {
+      head,
+      base,
+      dispose: () => {
+        base.dispose();
+        if (head !== this.traceCurves) head.dispose();
+      },
+    };
   }
 
   /** Traces whose measuring was cancelled or stopped are measured again on the next lint. */

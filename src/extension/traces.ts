@@ -42,7 +42,8 @@ export class TraceCurveCache {
   constructor(
     private readonly workerScript: string,
     private readonly onJob: (job: RunningTraceJob) => void = () => undefined,
-    private readonly sampleRate = 1,
+    /** The share of cache entries counted (1: every lookup). */
+    readonly sampleRate = 1,
   ) {}
 
   private keyOf(request: TraceRequest): string {
@@ -120,7 +121,7 @@ export class TraceCurveCache {
     // A stopped thread may have met a passing shortage (memory, a busy machine): no automatic retry,
     // which could loop on a trace that always stops it, but the user's next workspace lint or an
     // edit of the file measures it again.
-    const again = 'it is measured again with "Lint every definition in the workspace" or when the file changes';
+    const remeasureHint = 'it is measured again with "Lint every definition in the workspace" or when the file changes';
     const result = new Promise<{ facts: TraceFacts; unfinished: boolean }>((resolve) => {
       let settled = false;
       const settle = (facts: TraceFacts, unfinished = false): void => {
@@ -134,8 +135,8 @@ export class TraceCurveCache {
         if (message.type === 'progress') for (const listener of listeners) listener(message.done);
         else settle(message.outcome.ok ? { curve: measuredCurveOf(fromData(message.outcome.value)) } : problem(message.outcome.error));
       });
-      worker.on('error', (error) => settle(problem(`measuring it failed: ${error.message}; ${again}`), true));
-      worker.on('exit', (code) => settle(problem(cancelled ? `measuring it was cancelled; ${again}` : `the thread measuring it stopped (exit code ${code}) before it answered; ${again}`), true));
+      worker.on('error', (error) => settle(problem(`measuring it failed: ${error.message}; ${remeasureHint}`), true));
+      worker.on('exit', (code) => settle(problem(cancelled ? `measuring it was cancelled; ${remeasureHint}` : `the thread measuring it stopped (exit code ${code}) before it answered; ${remeasureHint}`), true));
     });
     this.onJob({
       paths: request.paths,

@@ -6,6 +6,7 @@ import * as vscode from 'vscode';
 import { HostPassMemo, runHostPass, type Finding, type HostReport, type Mapping } from '../lint';
 import type { FileReport } from '../lint';
 import { readSettings } from './settings';
+import { sameItems } from '../core/same-data';
 
 /** What the step reads of one linted definition. */
 export interface LintedDefinition {
@@ -85,6 +86,7 @@ export class WorkspaceHosts implements vscode.Disposable {
     this.passes++;
     if (!changed) return;
     for (const key of new Set([...before.keys(), ...findings.keys()])) {
+      // By identity: the step hands back the very objects of a host it did not judge again.
       if (!sameItems(before.get(key) ?? [], findings.get(key) ?? [])) this.source.republish(vscode.Uri.parse(key));
     }
     // The status bar and the panel redraw only when a host's figures or machines changed.
@@ -120,6 +122,3 @@ export class WorkspaceHosts implements vscode.Disposable {
     this.emitter.dispose();
   }
 }
-
-/** The same findings, by identity: the step hands back the very objects of a host it did not judge again. */
-const sameItems = (a: readonly unknown[], b: readonly unknown[]): boolean => a.length === b.length && a.every((item, i) => item === b[i]);

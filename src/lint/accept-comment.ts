@@ -15,7 +15,11 @@ interface Scope {
   offset: number;
 }
 
-/** Every line an accept comment can stand above, in the order src/lint/acceptance.ts lists them. */
+/**
+ * The disk, machine and host lines an accept comment can stand above, in the order
+ * src/lint/acceptance.ts lists them. The reader also takes value lines, but a value's pointer is
+ * longer than its disk's, so a value never takes a comment written above a disk's first line.
+ */
 function scopesOf(report: FileReport): Scope[] {
   const scopes: Scope[] = [];
   for (const machine of report.machines) {

@@ -28,12 +28,18 @@ interface Scope {
   value?: true;
 }
 
-const valueScope = (value: Located<unknown>): Scope => ({ pointer: value.pointer, line: value.range.line, value: true });
+/**
+ * A value's line, unless the value is reached through a YAML alias: its range is then the anchor's,
+ * on another disk's line, where a comment must not reach this disk's findings.
+ */
+function pushValueScope(scopes: Scope[], value: Located<unknown>): void {
+  if (!value.viaAlias) scopes.push({ pointer: value.pointer, line: value.range.line, value: true });
+}
 
 /** A disk's first line and the lines of its values, and the same for a backing disk written inline. */
 function diskScopes(disk: DiskSpec, scopes: Scope[]): void {
   scopes.push({ pointer: disk.pointer, line: disk.range.line });
-  for (const value of Object.values(disk.values)) if (value) scopes.push(valueScope(value));
+  for (const value of Object.values(disk.values)) if (value) pushValueScope(scopes, value);
   if (disk.backing && 'disk' in disk.backing) diskScopes(disk.backing.disk, scopes);
 }
 
@@ -67,7 +73,7 @@ export function applyAcceptances(context: FileContext, machines: readonly Machin
     for (const machine of machines) {
       if (machine.path.length > 0) scopes.push({ pointer: machine.pointer, line: machine.range.line, machine: machine.pointer });
       if (machine.host) scopes.push({ pointer: machine.host.pointer, line: machine.host.range.line, machine: machine.pointer });
-      if (machine.memory) scopes.push(valueScope(machine.memory));
+      if (machine.memory) pushValueScope(scopes, machine.memory);
       for (const disk of machine.disks) diskScopes(disk, scopes);
     }
   }

@@ -3,7 +3,7 @@
 // the file of the first machine placed on the host (files in path order), where the mapping
 // file's accept list can accept them like any other.
 import { hostLoadOf, type HostLoad } from '../core/host-load';
-import { sameData } from '../core/same-data';
+import { sameData, sameItems } from '../core/same-data';
 import { hostBudget, type HostBudget, type Mapping } from '../model/mapping';
 import { pointerWithin } from '../model/jsonpath';
 import { RULES } from '../rules';
@@ -44,7 +44,7 @@ function machinesByHost(files: readonly Pick<WorkspaceFile, 'path' | 'machines'>
   return byHost;
 }
 
-function placed({ file, machine }: PlacedSource): PlacedMachine {
+function toPlacedMachine({ file, machine }: PlacedSource): PlacedMachine {
   const { name, pointer, range, memory, cacheMemoryTotal } = machine;
   // machinesByHost keeps only machines placed on a host.
   const host = { name: machine.host ?? '', pointer: machine.hostPointer ?? '', range: machine.hostRange ?? range };
@@ -72,7 +72,7 @@ function hostReportOf(name: string, machines: PlacedMachine[], mapping: Pick<Map
 
 /** Every host the files place machines on, sorted by name: the numbers the host rule judges. */
 export function hostReports(files: readonly Pick<WorkspaceFile, 'path' | 'machines'>[], mapping: Pick<Mapping, 'hosts'>): HostReport[] {
-  return [...machinesByHost(files)].sort(byName).map(([name, sources]) => hostReportOf(name, sources.map(placed), mapping));
+  return [...machinesByHost(files)].sort(byName).map(([name, sources]) => hostReportOf(name, sources.map(toPlacedMachine), mapping));
 }
 
 /** The severity the file or settings ask for ('off' rules never run, so it is left out). */
@@ -97,11 +97,15 @@ export class HostPassMemo {
   private inputs: { mapping: Mapping; severities: string } | undefined;
   private results = new Map<string, HostResult>();
 
-  /** The last pass's results, if it ran with this mapping and these severities. */
-  previous(mapping: Mapping, severities: string): ReadonlyMap<string, HostResult> {
-    if (this.inputs?.mapping !== mapping || this.inputs.severities !== severities) this.results = new Map();
+  /**
+   * The last pass's results, if it ran with this mapping and these severities; `reset` when they
+   * were dropped (another mapping or severities), which is a change even if no host is left.
+   */
+  previous(mapping: Mapping, severities: string): { results: ReadonlyMap<string, HostResult>; reset: boolean } {
+    const reset = this.inputs !== undefined && (this.inputs.mapping !== mapping || this.inputs.severities !== severities);
+    if (reset) this.results = new Map();
     this.inputs = { mapping, severities };
-    return this.results;
+    return { results: this.results, reset };
   }
 
   keep(results: Map<string, HostResult>): void {
@@ -116,8 +120,6 @@ export interface HostPass {
   changed: boolean;
 }
 
-const sameSources = (a: readonly unknown[], b: readonly unknown[]): boolean => a.length === b.length && a.every((item, i) => item === b[i]);
-
 /** The same report and findings, to the last range and byte. */
 const sameOutcome = (a: HostResult, b: HostResult): boolean => a.file === b.file && sameData(a.report, b.report) && sameData(a.findings, b.findings);
 
@@ -128,17 +130,18 @@ const sameOutcome = (a: HostResult, b: HostResult): boolean => a.file === b.file
  */
 export function runHostPass(files: readonly WorkspaceFile[], mapping: Mapping, options: HostLintOptions = {}, memo?: HostPassMemo): HostPass {
   const severities = { ...mapping.severities, ...options.severities };
-  const previous = memo?.previous(mapping, JSON.stringify(severities)) ?? new Map<string, HostResult>();
+  const remembered = memo?.previous(mapping, JSON.stringify(severities));
+  const previous = remembered?.results ?? new Map<string, HostResult>();
   const filesByPath = new Map(files.map((f) => [f.path, f]));
   const hostRules = RULES.filter((rule) => rule.checkHost && severities[rule.id] !== 'off');
   const results = new Map<string, HostResult>();
   const touched = new Set<WorkspaceFile>();
-  let changed = memo === undefined;
+  let changed = remembered === undefined || remembered.reset;
   for (const [host, placedSources] of [...machinesByHost(files)].sort(byName)) {
     const sources = placedSources.map((p) => p.machine);
     const before = previous.get(host);
     let result: HostResult;
-    if (before && sameSources(before.sources, sources)) result = before;
+    if (before && sameItems(before.sources, sources)) result = before;
     else {
       const judged = judgeHost(host, placedSources, sources, hostRules, severities, mapping, filesByPath);
       // Judged again with the same outcome (the file was linted again, nothing the host rules read
@@ -166,7 +169,7 @@ export function lintHosts(files: readonly WorkspaceFile[], mapping: Mapping, opt
 
 /** The host rules over the machines placed on one host. */
 function judgeHost(host: string, placedSources: readonly PlacedSource[], sources: HostResult['sources'], hostRules: typeof RULES, severities: Record<string, Severity | 'off' | undefined>, mapping: Mapping, filesByPath: ReadonlyMap<string, WorkspaceFile>): HostResult {
-  const machines = placedSources.map(placed);
+  const machines = placedSources.map(toPlacedMachine);
   const report = hostReportOf(host, machines, mapping);
   const findings: LintFinding[] = [];
   const first = machines[0];

@@ -195,7 +195,7 @@ export function assemble(context: FileContext, units: Units, disksNested?: boole
 
 /**
  * A disk's part of the report, built field by field: it runs for every disk on every keystroke in
- * the editor, and an object spread followed by more fields takes a slow path in V8.
+ * the editor, and an object spread followed by more fields takes the JavaScript engine's slow path.
  */
 function diskReport(mapping: Mapping, disk: DiskSpec, result: DiskResult): DiskReport {
   const { sizing } = result;

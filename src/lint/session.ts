@@ -79,7 +79,7 @@ class Shift {
       !(alternatives && alternatives.some((a) => a.edits.some((e) => e.offset >= oldEnd))) &&
       !(related && related.some((r) => r.file === undefined && !this.keeps(r.range)));
     if (untouched) return finding;
-    // A plain copy first, then its fields replaced: a spread followed by fields takes a slow path in V8.
+    // A plain copy first, then its fields replaced: a spread followed by fields takes the JavaScript engine's slow path.
     const shifted: LintFinding = { ...finding };
     shifted.range = this.range(finding.range);
     if (related) shifted.related = related.map((r) => (r.file === undefined ? { ...r, range: this.range(r.range) } : r));

@@ -124,7 +124,7 @@ class Extractor {
     if (!at) return undefined;
     const result = read(at.raw);
     if (!result.ok) return this.problem(field, at, result.error);
-    // Field by field: a spread followed by a field takes a slow path in V8, and this runs for every value of every disk.
+    // Field by field: a spread followed by a field takes the JavaScript engine's slow path, and this runs for every value of every disk.
     return { value: result.value, raw: at.raw, path: at.path, pointer: at.pointer, node: at.node, range: at.range, viaAlias: at.viaAlias };
   }
 

@@ -13,3 +13,4 @@ export const CHE = '[CHE: Che et al., IEEE JSAC 20(7), 2002]';
 export const LRU_CACHE = '[lru-cache from npm, a general-purpose LRU]';
 export const IO_TESTER = '[I/O logs written by Debian\'s flexible I/O tester 3.33]';
 export const BLOCK_TRACE_MANUAL = '[block-layer trace dumper manual page, DEFAULT OUTPUT and RWBS]';
+export const NODE_UTIL = '[node:util isDeepStrictEqual, the platform\'s own structural comparison]';

@@ -74,4 +74,12 @@ describe(`rule ${RULE}: what a broken suppression does`, () => {
       assert.ok(found.every((f) => f.accepted?.reason === 'reviewed'), `${rule}: ${JSON.stringify(found.map((f) => f.pointer))}`);
     }
   });
+  it(`${CONTRACT} a comment above an anchored value accepts that disk's finding, not the finding of a disk that reuses the value through an alias`, () => {
+    const report = lintCase({
+      text: disks('- name: a', '  size: 1T', '  cache:', '    # cachewright-accept l2-cache-undersized: staging copy', '    l2: &small 8M', '- name: b', '  size: 1T', '  cache:', '    l2: *small'),
+    });
+    const found = findingsOf(report, 'l2-cache-undersized');
+    assert.equal(found.length, 2, JSON.stringify(found.map((f) => f.pointer)));
+    assert.deepEqual(found.map((f) => [f.pointer.replace(/.*\/disks\//, ''), f.accepted?.reason]), [['0/cache/l2', 'staging copy'], ['1/cache/l2', undefined]]);
+  });
 });

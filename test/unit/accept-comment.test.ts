@@ -7,6 +7,7 @@ import { readFileSync } from 'node:fs';
 import * as path from 'node:path';
 import { acceptCommentEdit, lintDocument, lintHosts, loadMapping, type FileReport, type Finding, type Mapping } from '../../src/lint';
 import { applyEdits } from '../../src/model/edits';
+import { CONTRACT } from '../helpers/sources';
 
 const ROOT = path.resolve(__dirname, '../..');
 const DEMO_MAPPING = path.join(ROOT, 'examples/cachewright.yaml');
@@ -34,7 +35,7 @@ describe('accept comments written for a finding', () => {
   const mapping = demoMapping();
   const text = readFileSync(TICKETING, 'utf8');
 
-  it('accepts exactly the finding it is written for, on every disk and machine finding of the demo', () => {
+  it(`${CONTRACT} accepts exactly the finding it is written for, on every disk and machine finding of the demo`, () => {
     const report = lint(TICKETING, text, mapping);
     let written = 0;
     for (const finding of report.findings.filter((f) => !f.accepted && f.machine !== undefined)) {
@@ -54,7 +55,7 @@ describe('accept comments written for a finding', () => {
     assert.ok(written >= 5, `${written} findings of the demo accepted one at a time`);
   });
 
-  it('writes the line above the disk, indented like it, as docs/mapping-file.md shows', () => {
+  it(`${CONTRACT} writes the line above the disk, indented like it, as docs/mapping-file.md shows`, () => {
     const report = lint(TICKETING, text, mapping);
     const finding = report.findings.find((f) => f.rule === 'l2-cache-undersized' && f.disk === 'ledger');
     assert.ok(finding, 'the demo ledger disk has an undersized L2 cache');
@@ -66,7 +67,7 @@ describe('accept comments written for a finding', () => {
     assert.match(lines[at + 1] ?? '', /^ {6}- label: ledger$/);
   });
 
-  it('accepts a host finding on the host line of the first machine placed there', () => {
+  it(`${CONTRACT} accepts a host finding on the host line of the first machine placed there`, () => {
     const texts = new Map([[TICKETING, text], [HARBOUR, readFileSync(HARBOUR, 'utf8')]]);
     const before = lintFleet(texts, mapping);
     const hostFindings = [...before].flatMap(([file, report]) => report.findings.filter((f) => f.host !== undefined && !f.accepted && file === TICKETING).map((f) => ({ file, report, finding: f })));
@@ -80,7 +81,7 @@ describe('accept comments written for a finding', () => {
     }
   });
 
-  it('keeps the file\'s line ends (CRLF stays CRLF)', () => {
+  it(`${CONTRACT} keeps the file's line ends (CRLF stays CRLF)`, () => {
     const crlf = text.replace(/\n/g, '\r\n');
     const report = lint(TICKETING, crlf, mapping);
     const finding = report.findings.find((f) => f.disk !== undefined && !f.accepted);
@@ -92,7 +93,7 @@ describe('accept comments written for a finding', () => {
     assert.ok(after.findings.find((f) => sameFinding(f, finding))?.accepted);
   });
 
-  it('says why when no comment can be written', () => {
+  it(`${CONTRACT} says why when no comment can be written`, () => {
     const cases: { name: string; file: string; text: string; pick: (f: Finding) => boolean; why: RegExp; reason?: string }[] = [
       { name: 'JSON has no comments', file: HARBOUR, text: readFileSync(HARBOUR, 'utf8'), pick: (f) => f.disk !== undefined, why: /JSON has no comments/ },
       { name: 'a finding of the file itself', file: TICKETING, text: `# cachewright-accept no-such-rule: typo\n${text}`, pick: (f) => f.rule === 'invalid-suppression', why: /belongs to no disk or machine/ },

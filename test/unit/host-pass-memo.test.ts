@@ -4,6 +4,7 @@
 // gives: checked here over a run of random edits to a generated fleet.
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
+import { CONTRACT } from '../helpers/sources';
 import { HostPassMemo, lintDocument, lintHosts, loadMapping, runHostPass, type FileReport, type Finding, type Mapping } from '../../src/lint';
 
 const HOSTS = 4;
@@ -48,7 +49,7 @@ describe('host pass memo', () => {
   // An edit: file index, and either new machines for it or the same text linted again.
   const edit = fc.record({ file: fc.nat(), machines: fc.option(fc.array(machine, { minLength: 0, maxLength: 4 }), { nil: undefined }) });
 
-  it('gives what a pass without a memo gives, after every edit of a random run', () => {
+  it(`${CONTRACT} gives what a pass without a memo gives, after every edit of a random run`, () => {
     let runs = 0;
     let reused = 0;
     fc.assert(fc.property(fleet, fc.array(edit, { minLength: 1, maxLength: 8 }), (initial, edits) => {
@@ -73,7 +74,7 @@ describe('host pass memo', () => {
     assert.ok(reused > 0, 'some passes found nothing changed');
   });
 
-  it('keeps the very objects of hosts whose machines did not change, and says whether anything did', () => {
+  it(`${CONTRACT} keeps the very objects of hosts whose machines did not change, and says whether anything did`, () => {
     const files = [
       [{ host: 0, ram: 8, l2: 512 }, { host: 1, ram: 4, l2: 512 }],
       [{ host: 0, ram: 8, l2: 512 }, { host: 1, ram: 4, l2: 512 }],
@@ -102,5 +103,17 @@ describe('host pass memo', () => {
     const plain = reports.map((report) => ({ path: report.path, machines: report.machines, findings: [] as Finding[] }));
     lintHosts(plain, map);
     assert.deepEqual(raised.findings, plain.map((f) => f.findings));
+  });
+  it(`${CONTRACT} counts another mapping as a change, even when no host is left`, () => {
+    const reports = [lintDocument({ path: pathOf(0), text: text([{ host: 0, ram: 8, l2: 512 }], 0) }, map)];
+    const memo = new HostPassMemo();
+    pass(reports, map, memo);
+    // The mapping reloaded without the host field: no machine is placed, yet the hosts shown must go.
+    const loaded = loadMapping(MAPPING.replace(', host: "$.hv"', ''), '/fleet/cachewright.yaml');
+    assert.ok(loaded.mapping);
+    const relinted = [lintDocument({ path: pathOf(0), text: text([{ host: 0, ram: 8, l2: 512 }], 0) }, loaded.mapping)];
+    const after = pass(relinted, loaded.mapping, memo);
+    assert.deepEqual(after.hosts, []);
+    assert.equal(after.changed, true);
   });
 });

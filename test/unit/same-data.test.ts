@@ -5,6 +5,7 @@ import { strict as assert } from 'node:assert';
 import { isDeepStrictEqual } from 'node:util';
 import fc from 'fast-check';
 import { sameData } from '../../src/core/same-data';
+import { NODE_UTIL } from '../helpers/sources';
 
 describe('sameData', () => {
   const cases: { name: string; a: unknown; b: unknown; same: boolean }[] = [
@@ -18,9 +19,9 @@ describe('sameData', () => {
     { name: 'null against an object', a: null, b: {}, same: false },
     { name: 'a number against its string', a: 1, b: '1', same: false },
   ];
-  for (const c of cases) it(c.name, () => assert.equal(sameData(c.a, c.b), c.same));
+  for (const c of cases) it(`${NODE_UTIL} ${c.name}`, () => assert.equal(sameData(c.a, c.b), c.same));
 
-  it('agrees with node:util isDeepStrictEqual on generated JSON-like data with bigints', () => {
+  it(`${NODE_UTIL} agrees with it on generated JSON-like data with bigints`, () => {
     let runs = 0;
     const leaf = fc.oneof(fc.integer({ min: -3, max: 3 }), fc.bigInt({ min: -3n, max: 3n }), fc.constantFrom('a', 'b'), fc.boolean());
     const { value } = fc.letrec((tie) => ({
