@@ -100,7 +100,7 @@ async function lintTree(io: CommandIO, mapping: Mapping, mappingText: string, la
   const selection = selectFiles(mapping, mapping.dir, []);
   // Image files are not part of a change's text and a checkout of the base has none: compare
   // reviews the definitions alone (lint reads the images).
-  const request: LintRequest = { paths: [], mappingPath: mapping.path, mappingText, format: 'json', fix: false, errorsOnly: false, images: false, fileSizeLimit: DEFINITION_SIZE_LIMIT };
+  const request: LintRequest = { paths: [], mappingPath: mapping.path, mappingText, format: 'json', fix: false, errorsOnly: false, images: false, fileSizeLimit: DEFINITION_SIZE_LIMIT, diskValues: true };
   const progress = startProgress(io, selection.files.length, `linting ${label}`);
   const linted = await lintFiles(selection.files, mapping, request, mapping.dir, progress);
   progress.done();

@@ -26,6 +26,8 @@ export interface LintRequest {
    * with the head's mapping, placed at the same spot in the base tree): threads load it from here.
    */
   mappingText?: string;
+  /** Each disk's located values travel with its report (compare compares the settings as written). */
+  diskValues?: boolean;
   /** --known FILE and --record-known FILE, as given. */
   known?: string;
   recordKnown?: string;
@@ -33,13 +35,14 @@ export interface LintRequest {
 
 /** Reads one file, lints it and (with --fix) fixes it; never throws. */
 export async function lintFile(path: string, mapping: Mapping, request: LintRequest, images: ImageFactsCache, traces: TraceCurves, notes: string[], cwd: string): Promise<LintedFile> {
+  const output = (report: FileReport) => outputOf(report, request.diskValues === true);
   let bytes: Buffer;
   try {
     bytes = readRegularFile(path, { maxBytes: request.fileSizeLimit });
   } catch (error) {
     if (error instanceof FileReadError && error.reason === 'too-large') {
       const report = oversizedFileReport(path, BigInt(error.size ?? request.fileSizeLimit + 1), BigInt(request.fileSizeLimit), 'raise the limit with --file-size-limit SIZE to lint it');
-      return { path, report: outputOf(report), fixed: 0 };
+      return { path, report: output(report), fixed: 0 };
     }
     return { path, error: `cannot read: ${ioMessage(error)}`, fixed: 0 };
   }
@@ -58,19 +61,19 @@ export async function lintFile(path: string, mapping: Mapping, request: LintRequ
   } catch (error) {
     return { path, error: `internal error while linting: ${error instanceof Error ? error.message : String(error)}`, fixed: 0 };
   }
-  if (!request.fix || !report.parsed || !report.findings.some((f) => f.fix && !f.accepted)) return { path, report: outputOf(report), fixed: 0 };
+  if (!request.fix || !report.parsed || !report.findings.some((f) => f.fix && !f.accepted)) return { path, report: output(report), fixed: 0 };
   if (!encodeLike(text, hadBom).equals(bytes)) {
     notes.push(`${displayPath(path, cwd)}: left unchanged by --fix: the file is not valid UTF-8, so writing it back would change bytes the fixes do not touch`);
-    return { path, report: outputOf(report), fixed: 0 };
+    return { path, report: output(report), fixed: 0 };
   }
   const outcome = fixText(path, text, mapping, report, options);
   if (outcome.withheld) notes.push(`${displayPath(path, cwd)}: ${outcome.withheld}`);
-  if (outcome.applied === 0) return { path, report: outputOf(outcome.report), fixed: 0 };
+  if (outcome.applied === 0) return { path, report: output(outcome.report), fixed: 0 };
   try {
     writeFileAtomic(path, encodeLike(outcome.text, hadBom));
   } catch (error) {
-    return { path, report: outputOf(report), error: `cannot write the fixes: ${ioMessage(error)}`, fixed: 0 };
+    return { path, report: output(report), error: `cannot write the fixes: ${ioMessage(error)}`, fixed: 0 };
   }
-  return { path, report: outputOf(outcome.report), fixed: outcome.applied };
+  return { path, report: output(outcome.report), fixed: outcome.applied };
 }
 

@@ -4,8 +4,14 @@ import type { FileReport, Finding, Mapping } from '../lint';
 import type { BaselineState, KnownComparison } from '../review/known';
 import { relativeToMapping } from '../review/types';
 
-/** What the outputs read of a disk's report (the panel's DiskView is another shape, in src/protocol/panel.ts). */
-export type OutputDisk = Pick<FileReport['disks'][number], 'machine' | 'name' | 'named' | 'pointer' | 'sizing' | 'recommended' | 'values' | 'measured'>;
+type DiskReport = FileReport['disks'][number];
+
+/**
+ * What the outputs read of a disk's report (the panel's DiskView is another shape, in
+ * src/protocol/panel.ts). The located values only when the run asks for them: compare reads them,
+ * lint's outputs do not, and they are more than half of what a lint thread would send per file.
+ */
+export type OutputDisk = Pick<DiskReport, 'machine' | 'name' | 'named' | 'pointer' | 'sizing' | 'recommended' | 'measured'> & { values?: DiskReport['values'] };
 
 /** What the outputs and the review read of a machine's report. */
 export type OutputMachine = Omit<FileReport['machines'][number], 'disks' | 'budget'>;
@@ -18,10 +24,17 @@ export interface OutputReport {
   findings: Finding[];
 }
 
-export function outputOf(report: FileReport): OutputReport {
+function outputDisk(d: DiskReport, withValues: boolean): OutputDisk {
+  const out: OutputDisk = { machine: d.machine, name: d.name, named: d.named, pointer: d.pointer, sizing: d.sizing, recommended: d.recommended };
+  if (d.measured) out.measured = d.measured;
+  if (withValues) out.values = d.values;
+  return out;
+}
+
+export function outputOf(report: FileReport, withValues: boolean): OutputReport {
   return {
     parsed: report.parsed,
-    disks: report.disks.map((d) => ({ machine: d.machine, name: d.name, named: d.named, pointer: d.pointer, sizing: d.sizing, recommended: d.recommended, values: d.values, ...(d.measured ? { measured: d.measured } : {}) })),
+    disks: report.disks.map((d) => outputDisk(d, withValues)),
     machines: report.machines.map(({ disks: _disks, budget: _budget, ...machine }) => machine),
     findings: report.findings,
   };
