@@ -1,10 +1,11 @@
 // Accepting findings: an accept comment above a disk, machine or value, or an entry of the mapping file's
 // accept list, marks the findings under it as reviewed. Which of the two accepted a finding is
 // decided here, once, and carried in the report.
+import * as nodePath from 'node:path';
 import type { DiskSpec, Located, MachineSpec } from '../model/disks';
 import { pointerWithin } from '../model/jsonpath';
 import { readSuppressions, type SuppressionProblem } from '../model/suppressions';
-import { RULE_IDS, ruleOf, say, wordingOf } from '../rules';
+import { RULE_IDS, ruleById, ruleOf, say, wordingOf, type RuleId } from '../rules';
 import type { FileContext } from './prepare';
 import type { LintFinding } from './report';
 
@@ -26,20 +27,65 @@ interface Scope {
   /** The machine whose first line or host line this is (its comments also reach the host's findings). */
   machine?: string;
   value?: true;
+  host?: true;
+  /** The disks whose findings the line's comment can accept: what decides whether they could appear. */
+  disks: readonly DiskSpec[];
+}
+
+/**
+ * Rules whose findings follow from more than the definition's text: the image files, the traces, or
+ * every file of the run (a host's budget). Whether such a finding is there depends on what the run
+ * read, so a comment naming one of them is never called stale.
+ */
+const NEEDS_MORE_THAN_THE_TEXT: ReadonlySet<RuleId> = new Set<RuleId>(['image-mismatch', 'image-unreadable', 'backing-chain-cycle', 'l2-cache-above-working-set', 'trace-unreadable', 'host-cache-budget']);
+
+/**
+ * Whether a disk's findings follow from the definition alone: no trace, no backing file named by
+ * path, and no image file, or one whose facts the caller read (with --no-images, or before the editor
+ * has read it, its chain and so its sizing findings are not yet known).
+ */
+function decidedByText(context: FileContext, disk: DiskSpec): boolean {
+  if (disk.values.trace) return false;
+  if (disk.backing && 'file' in disk.backing) return false;
+  const image = disk.values.image;
+  if (image && context.images?.(nodePath.resolve(nodePath.dirname(context.document.path), image.value)) === undefined) return false;
+  return !disk.backing || decidedByText(context, disk.backing.disk);
+}
+
+/**
+ * Findings that stop the sizing rules from judging a disk (an unreadable value, a cache split the
+ * driver refuses): while one stands, the findings a comment names may only be waiting for its fix.
+ */
+const HOLDS_BACK_SIZING: ReadonlySet<RuleId> = new Set<RuleId>(['invalid-value', 'cache-options-conflict']);
+
+/**
+ * A comment that accepts nothing is stale (the value it was written for changed, or the disk moved)
+ * only when nothing the run left unread, and no value still to be corrected, could have produced
+ * the findings it names.
+ */
+function canJudgeStale(context: FileContext, rules: readonly string[], scope: Scope, findings: readonly LintFinding[]): boolean {
+  if (scope.host) return false;
+  for (const id of rules) {
+    const rule = ruleById(id);
+    if (!rule || NEEDS_MORE_THAN_THE_TEXT.has(rule.id) || context.severityOf(rule) === 'off') return false;
+  }
+  const heldBack = (finding: LintFinding) => HOLDS_BACK_SIZING.has(finding.rule) && (pointerWithin(finding.pointer, scope.pointer) || scope.disks.some((disk) => pointerWithin(finding.pointer, disk.pointer)));
+  return scope.disks.every((disk) => decidedByText(context, disk)) && !findings.some(heldBack);
 }
 
 /**
  * A value's line, unless the value is reached through a YAML alias: its range is then the anchor's,
  * on another disk's line, where a comment must not reach this disk's findings.
  */
-function pushValueScope(scopes: Scope[], value: Located<unknown>): void {
-  if (!value.viaAlias) scopes.push({ pointer: value.pointer, line: value.range.line, value: true });
+function pushValueScope(scopes: Scope[], value: Located<unknown>, disks: readonly DiskSpec[]): void {
+  if (!value.viaAlias) scopes.push({ pointer: value.pointer, line: value.range.line, value: true, disks });
 }
 
 /** A disk's first line and the lines of its values, and the same for a backing disk written inline. */
 function diskScopes(disk: DiskSpec, scopes: Scope[]): void {
-  scopes.push({ pointer: disk.pointer, line: disk.range.line });
-  for (const value of Object.values(disk.values)) if (value) pushValueScope(scopes, value);
+  const disks = [disk];
+  scopes.push({ pointer: disk.pointer, line: disk.range.line, disks });
+  for (const value of Object.values(disk.values)) if (value) pushValueScope(scopes, value, disks);
   if (disk.backing && 'disk' in disk.backing) diskScopes(disk.backing.disk, scopes);
 }
 
@@ -62,18 +108,23 @@ export function applyAcceptances(context: FileContext, machines: readonly Machin
   const rule = ruleOf('invalid-suppression');
   const { comments, problems } = readSuppressions(document, KNOWN_RULES);
   for (const problem of problems) context.add(out, rule, { message: suppressionProblemText(problem), pointer: '', range: problem.range });
-  const accept = (matches: (finding: LintFinding) => boolean, accepted: NonNullable<LintFinding['accepted']>): void => {
+  /** Marks the matching findings not yet accepted; returns how many match, accepted before or not. */
+  const accept = (matches: (finding: LintFinding) => boolean, accepted: NonNullable<LintFinding['accepted']>): number => {
+    let matched = 0;
     out.forEach((finding, index) => {
-      if (!finding.accepted && matches(finding)) out[index] = { ...finding, accepted };
+      if (!matches(finding)) return;
+      matched++;
+      if (!finding.accepted) out[index] = { ...finding, accepted };
     });
+    return matched;
   };
   const scopes: Scope[] = [];
   const hostAcceptances = new Map<string, HostAcceptance[]>();
   if (comments.length > 0) {
     for (const machine of machines) {
-      if (machine.path.length > 0) scopes.push({ pointer: machine.pointer, line: machine.range.line, machine: machine.pointer });
-      if (machine.host) scopes.push({ pointer: machine.host.pointer, line: machine.host.range.line, machine: machine.pointer });
-      if (machine.memory) pushValueScope(scopes, machine.memory);
+      if (machine.path.length > 0) scopes.push({ pointer: machine.pointer, line: machine.range.line, machine: machine.pointer, disks: machine.disks });
+      if (machine.host) scopes.push({ pointer: machine.host.pointer, line: machine.host.range.line, machine: machine.pointer, host: true, disks: machine.disks });
+      if (machine.memory) pushValueScope(scopes, machine.memory, machine.disks);
       for (const disk of machine.disks) diskScopes(disk, scopes);
     }
   }
@@ -87,7 +138,10 @@ export function applyAcceptances(context: FileContext, machines: readonly Machin
     if (scope.machine !== undefined) hostAcceptances.set(scope.machine, [...(hostAcceptances.get(scope.machine) ?? []), { rules: comment.rules, reason: comment.reason }]);
     // Above a line of values (no disk or machine starts there): every value written on that line.
     const covered = scope.value ? onLine.filter((s) => s.value) : [scope];
-    accept((finding) => comment.rules.includes(finding.rule) && covered.some((s) => pointerWithin(finding.pointer, s.pointer)), { reason: comment.reason, from: 'comment' });
+    const matched = accept((finding) => comment.rules.includes(finding.rule) && covered.some((s) => pointerWithin(finding.pointer, s.pointer)), { reason: comment.reason, from: 'comment' });
+    if (matched === 0 && covered.every((s) => canJudgeStale(context, comment.rules, s, out))) {
+      context.add(out, rule, { message: say(WORDING, 'acceptsNothing', { rules: comment.rules.join(', ') }), pointer: '', range: comment.range });
+    }
   }
   for (const entry of mapping.accept) {
     if (entry.file !== undefined && entry.file !== document.path) continue;

@@ -4,7 +4,7 @@ import { declareRule } from './types';
 export const invalidSuppression = declareRule({
   id: 'invalid-suppression',
   severity: 'warning',
-  description: 'An accept comment names no rule, an unknown rule, or gives no reason.',
+  description: 'An accept comment names no rule, an unknown rule, or gives no reason, stands above no disk, machine or value, or accepts nothing any more.',
   fixable: false,
   wording: {
     noRule: 'this accept comment names no rule; write "# cachewright-accept RULE: REASON"',
@@ -12,5 +12,6 @@ export const invalidSuppression = declareRule({
     unknownRules: 'this accept comment names unknown rules {rules}',
     noReason: 'this accept comment for {rules} gives no reason; write "# cachewright-accept {rules}: REASON"',
     notAbove: 'this accept comment is not above a disk, a machine or a value, so it accepts nothing',
+    acceptsNothing: 'this accept comment for {rules} accepts nothing: the line below it has no such finding any more; remove the comment, or move it to where the finding now is',
   },
 });

@@ -17,6 +17,13 @@ ruleTable(RULE, {
     { name: 'blank lines and other comments between the suppression and the disk', text: disks('# cachewright-accept l2-cache-undersized: reviewed', '', '# the ledger volume', '- { name: a, size: 1T }') },
     { name: 'a comment above one of the disk\'s values', text: disks('- name: a', '  size: 1T', '  cache:', '    # cachewright-accept l2-cache-undersized: reviewed', '    l2: 8M') },
     { name: 'JSON has no comments: the accept list serves instead', text: '{"machines":[{"name":"m","disks":[{"name":"a","size":"1T"}]}]}' },
+    // A comment that accepts nothing is only called stale when nothing the run left unread could give the finding.
+    { name: 'a comment for a rule that reads the image files, above a disk without one', text: disks('# cachewright-accept image-mismatch: resized next window', '- { name: a, size: 1T }') },
+    { name: 'a comment above a disk whose image file was not read (its chain is not known)', text: disks('# cachewright-accept l2-cache-oversized: headroom', '- { name: a, size: 1T, image: a.qcow2 }') },
+    { name: 'a comment for a rule the mapping file turns off', text: disks('# cachewright-accept l2-cache-oversized: headroom', '- { name: a, size: 1T }'), mapping: { rules: { 'l2-cache-oversized': 'off' } } },
+    { name: 'a comment above a disk whose cache split the driver refuses: the finding may come back with the fix', text: disks('# cachewright-accept l2-cache-oversized: headroom', '- { name: a, size: 8G, cache: { l2: 64M, total: 32M } }') },
+    { name: 'a comment above a disk with an unreadable size', text: disks('# cachewright-accept l2-cache-oversized: headroom', '- { name: a, size: lots }') },
+    { name: 'a comment above a disk that names a trace', text: disks('# cachewright-accept l2-cache-oversized: headroom', '- { name: a, size: 1T, io: { trace: a.csv } }') },
   ],
   invalid: [
     {
@@ -43,6 +50,16 @@ ruleTable(RULE, {
       name: 'an empty reason after the colon',
       text: disks('# cachewright-accept l2-cache-undersized:   ', '- { name: a, size: 1T }'),
       findings: [{ rule: RULE, line: 4, column: 7, messageIncludes: 'gives no reason' }],
+    },
+    {
+      name: 'a comment whose finding is gone (the disk was resized since): it accepts nothing',
+      text: disks('# cachewright-accept l2-cache-oversized: headroom for growth', '- { name: a, size: 1T }'),
+      findings: [{ rule: RULE, line: 4, column: 7, messageIncludes: 'for l2-cache-oversized accepts nothing' }],
+    },
+    {
+      name: 'a comment above a value that no longer has the finding it names',
+      text: disks('- name: a', '  size: 8G', '  cache:', '    # cachewright-accept l2-cache-undersized: staging copy', '    l2: 8M'),
+      findings: [{ rule: RULE, line: 7, column: 11, messageIncludes: 'accepts nothing' }],
     },
     {
       name: 'a suppression above a key that only holds other keys (no value starts on its line) silences nothing',
