@@ -2,7 +2,7 @@
 // `# cachewright-accept RULE: REASON` directly above the first line of the disk or machine the
 // finding belongs to, or above the host line for a finding about a whole host. Computed here, from
 // the report, so the editor's "accept" action writes exactly what the linter then reads back.
-import { fail, ok, type Finding, type Outcome, type TextEdit } from '../core/results';
+import { fail, ok, type Finding, type Outcome, type SourceRange, type TextEdit } from '../core/results';
 import { formatOf } from '../model/document';
 import { pointerWithin } from '../model/jsonpath';
 import type { FileReport } from './report';
@@ -65,4 +65,20 @@ export function acceptCommentEdit(text: string, report: FileReport, finding: Fin
   const lineEnd = text.indexOf('\n', scope.offset);
   const eol = lineEnd > 0 && text[lineEnd - 1] === '\r' ? '\r\n' : '\n';
   return ok({ offset: lineStart, length: 0, text: `${indent}# cachewright-accept ${finding.rule}: ${why}${eol}` });
+}
+
+/**
+ * The edit that takes an accept comment out of `text`: the whole line when the comment stands alone
+ * on it (with its line break), else the comment and the blanks before it, leaving the line's content.
+ */
+export function removeCommentEdit(text: string, range: Pick<SourceRange, 'offset' | 'length'>): TextEdit {
+  const lineStart = text.lastIndexOf('\n', range.offset - 1) + 1;
+  const before = text.slice(lineStart, range.offset);
+  if (before.trim() === '') {
+    const lineBreak = text.indexOf('\n', range.offset + range.length);
+    const end = lineBreak === -1 ? text.length : lineBreak + 1;
+    return { offset: lineStart, length: end - lineStart, text: '' };
+  }
+  const blanks = before.length - before.trimEnd().length;
+  return { offset: range.offset - blanks, length: range.length + blanks, text: '' };
 }

@@ -6,6 +6,7 @@ import type { DiskSpec, Located, MachineSpec } from '../model/disks';
 import { pointerWithin } from '../model/jsonpath';
 import { readSuppressions, type SuppressionProblem } from '../model/suppressions';
 import { RULE_IDS, ruleById, ruleOf, say, wordingOf, type RuleId } from '../rules';
+import { removeCommentEdit } from './accept-comment';
 import type { FileContext } from './prepare';
 import type { LintFinding } from './report';
 
@@ -140,7 +141,9 @@ export function applyAcceptances(context: FileContext, machines: readonly Machin
     const covered = scope.value ? onLine.filter((s) => s.value) : [scope];
     const matched = accept((finding) => comment.rules.includes(finding.rule) && covered.some((s) => pointerWithin(finding.pointer, s.pointer)), { reason: comment.reason, from: 'comment' });
     if (matched === 0 && covered.every((s) => canJudgeStale(context, comment.rules, s, out))) {
-      context.add(out, rule, { message: say(WORDING, 'acceptsNothing', { rules: comment.rules.join(', ') }), pointer: '', range: comment.range });
+      // Offered, never applied by --fix: the comment's reason is a reviewer's record, taken out by a person.
+      const removal = { title: say(WORDING, 'removeComment'), edits: [removeCommentEdit(document.text, comment.range)] };
+      context.add(out, rule, { message: say(WORDING, 'acceptsNothing', { rules: comment.rules.join(', ') }), pointer: '', range: comment.range, alternatives: [removal] });
     }
   }
   for (const entry of mapping.accept) {

@@ -3,6 +3,7 @@
 // [CONTRACTS.md section 1: "on the line above the disk or value"].
 import { strict as assert } from 'node:assert';
 import { CONTRACT } from '../helpers/sources';
+import { applyEdits } from '../../src/model/edits';
 import { findingsOf, lintCase, ruleTable } from './harness';
 
 const RULE = 'invalid-suppression';
@@ -70,6 +71,29 @@ ruleTable(RULE, {
 });
 
 describe(`rule ${RULE}: what a broken suppression does`, () => {
+  // Removal is offered as an alternative only: --fix applies a finding's own fix, never its alternatives.
+  const removeStale = (text: string): string => {
+    const [stale] = findingsOf(lintCase({ text }), RULE);
+    assert.ok(stale, 'the stale comment is reported');
+    assert.equal(stale.fix, undefined, '--fix leaves a reviewer\'s comment alone');
+    const [removal] = stale.alternatives ?? [];
+    assert.ok(removal, 'removing the comment is offered');
+    assert.equal(removal.title, 'Remove this accept comment');
+    return applyEdits(text, removal.edits);
+  };
+
+  it(`${CONTRACT} removing a stale comment on its own line takes out that line and nothing else; the lint then has nothing to say of it`, () => {
+    const fixed = removeStale(disks('# cachewright-accept l2-cache-oversized: headroom for growth', '- { name: a, size: 1T }'));
+    assert.equal(fixed, disks('- { name: a, size: 1T }'));
+    assert.equal(findingsOf(lintCase({ text: fixed }), RULE).length, 0);
+  });
+
+  it(`${CONTRACT} removing a stale comment at the end of a disk's first line leaves the line's content`, () => {
+    const fixed = removeStale(disks('- name: a   # cachewright-accept l2-cache-oversized: headroom', '  size: 1T'));
+    assert.equal(fixed, disks('- name: a', '  size: 1T'));
+    assert.equal(findingsOf(lintCase({ text: fixed }), RULE).length, 0);
+  });
+
   it(`${CONTRACT} a broken suppression silences nothing: the finding it meant stays unsuppressed`, () => {
     const report = lintCase({ text: disks('# cachewright-accept l2-cache-undersized', '- { name: a, size: 1T }') });
     const finding = findingsOf(report, 'l2-cache-undersized')[0];
