@@ -12,7 +12,7 @@ export const invalidSuppression = declareRule({
     unknownRules: 'this accept comment names unknown rules {rules}',
     noReason: 'this accept comment for {rules} gives no reason; write "# cachewright-accept {rules}: REASON"',
     notAbove: 'this accept comment is not above a disk, a machine or a value, so it accepts nothing',
-    acceptsNothing: 'this accept comment for {rules} accepts nothing: the line below it has no such finding any more; remove the comment, or move it to where the finding now is',
+    acceptsNothing: 'this accept comment for {rules} accepts nothing: the disk, machine or value it is written for has no such finding any more; remove the comment, or move it to where the finding now is',
     removeComment: 'Remove this accept comment',
   },
 });
