@@ -52,7 +52,9 @@ export function renderLintText(run: LintRun): string {
       out.push(`${padEnd(place(finding), placeWidth)}  ${padEnd(finding.severity, 7)}  ${padEnd(finding.rule, ruleWidth)}  ${finding.message}`);
       for (const related of finding.related ?? []) out.push(`    see ${related.file !== undefined ? displayPath(related.file, run.cwd) : path}:${related.range.line}:${related.range.column}: ${related.message}`);
       if (finding.fix && finding.fix.edits.length > 0) out.push(`    fix: ${finding.fix.title}`);
-      for (const other of finding.alternatives ?? []) out.push(`    or:  ${other.title}`);
+      // "or" beside a fix; alone, an alternative is something to do by hand (--fix never applies it)
+      const hasFix = finding.fix !== undefined && finding.fix.edits.length > 0;
+      for (const other of finding.alternatives ?? []) out.push(`    ${hasFix ? 'or: ' : 'try:'} ${other.title}`);
     }
   }
   if (out.length > 0) out.push('');

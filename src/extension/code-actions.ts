@@ -32,17 +32,19 @@ export class CachewrightCodeActions implements vscode.CodeActionProvider {
     if (!context.only || context.only.intersects(vscode.CodeActionKind.QuickFix)) {
       const ours = context.diagnostics.filter((d) => d.source === SOURCE);
       for (const finding of result.report.findings) {
-        if (!finding.fix || finding.accepted) continue;
+        if (finding.accepted || (!finding.fix && !finding.alternatives)) continue;
         const at = toRange(finding.range);
         const diagnostic = ours.find((d) => ruleIdOf(d) === finding.rule && sameRange(d.range, at));
         if (!diagnostic && !at.intersection(range)) continue;
         // The fix first (preferred: what --fix applies), then the others offered beside it, such as
-        // full coverage beside the smallest cache that reaches the target on a measured trace.
-        for (const [index, fix] of [finding.fix, ...(finding.alternatives ?? [])].entries()) {
+        // full coverage beside the smallest cache that reaches the target on a measured trace, or
+        // instead of one (removing a stale accept comment, which --fix leaves to a person).
+        const offered = finding.fix ? [finding.fix, ...(finding.alternatives ?? [])] : (finding.alternatives ?? []);
+        for (const [index, fix] of offered.entries()) {
           const action = new vscode.CodeAction(fix.title, vscode.CodeActionKind.QuickFix);
           action.edit = workspaceEdit(document, fix.edits);
           if (diagnostic) action.diagnostics = [diagnostic];
-          action.isPreferred = index === 0;
+          action.isPreferred = finding.fix !== undefined && index === 0;
           actions.push(action);
         }
       }

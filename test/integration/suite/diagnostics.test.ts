@@ -204,6 +204,28 @@ describe('diagnostics on the demo fleet', () => {
     }
   });
 
+  it('reports an accept comment left with nothing to accept, and removes it from its quick fix, never as the preferred one', async () => {
+    const { document, editor } = await open(TICKETING);
+    try {
+      await waitFor('diagnostics', () => ours(document.uri).some((d) => codeOf(d) === 'l2-cache-undersized'));
+      // tern-db-01's root accepts its oversized 10M cache; 5M is full coverage for 40 GiB at 64 KiB
+      // clusters (40 GiB / 64 KiB * 8 bytes [qcow2 specification]), so the comment has nothing left to accept.
+      assert.equal((40 * GiB) / (64 * KiB) * 8, 5 * 1024 * KiB);
+      await editor.edit((b) => b.replace(rangeOf(document, 'l2: 10M', '10M'), '5M'));
+      const stale = await waitFor('the stale accept comment', () => ours(document.uri).find((d) => codeOf(d) === 'invalid-suppression'));
+      assert.equal(stale.range.start.line, rangeOf(document, '# cachewright-accept l2-cache-oversized', '#').start.line);
+      const actions = await vscode.commands.executeCommand<vscode.CodeAction[]>('vscode.executeCodeActionProvider', document.uri, stale.range);
+      const remove = actions.find((a) => a.title === 'Remove this accept comment');
+      assert.ok(remove?.edit, `a removal among: ${actions.map((a) => a.title).join('; ')}`);
+      assert.ok(!remove.isPreferred, 'removing a reviewer\'s comment is never the preferred action');
+      assert.ok(await vscode.workspace.applyEdit(remove.edit));
+      assert.ok(document.getText().includes('        tuning:\n          l2: 5M'), 'only the comment line went');
+      await waitFor('the warning to go', () => !ours(document.uri).some((d) => codeOf(d) === 'invalid-suppression'));
+    } finally {
+      await revert(document);
+    }
+  });
+
   it('updates diagnostics as the user types', async () => {
     const { document, editor } = await open(TICKETING);
     await waitFor('diagnostics', () => ours(document.uri).some((d) => codeOf(d) === 'l2-cache-undersized'));
