@@ -1,7 +1,7 @@
 // Bundles the three outputs: the extension host, the CLI and the webview.
 // One engine, three front ends: each bundle carries its own copy of src/core.
 import * as esbuild from 'esbuild';
-import { existsSync } from 'node:fs';
+import { existsSync, readdirSync, rmSync } from 'node:fs';
 import { yamlEnvSwitches } from './yaml-env-switches.mjs';
 
 const watch = process.argv.includes('--watch');
@@ -28,6 +28,14 @@ if (existsSync('webview/main.ts')) {
 if (existsSync('webview/image-viewer/main.ts')) {
   targets.push({ ...common, entryPoints: ['webview/image-viewer/main.ts'], outfile: 'dist/image-viewer.js',
     platform: 'browser', format: 'iife' });
+}
+// Bundles a former build wrote under names no target uses any more would otherwise stay in dist/
+// and be packaged (the .vsix check refuses them) or run by mistake.
+const written = new Set(targets.flatMap((t) => [t.outfile, `${t.outfile}.map`]));
+if (existsSync('dist')) {
+  for (const name of readdirSync('dist')) {
+    if (/\.js(\.map)?$/.test(name) && !written.has(`dist/${name}`)) rmSync(`dist/${name}`);
+  }
 }
 if (watch) {
   for (const t of targets) await (await esbuild.context(t)).watch();
