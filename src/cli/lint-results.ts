@@ -22,6 +22,7 @@ export interface OutputReport {
   disks: OutputDisk[];
   machines: OutputMachine[];
   findings: Finding[];
+  acceptEntries?: FileReport['acceptEntries'];
 }
 
 function outputDisk(d: DiskReport, withValues: boolean): OutputDisk {
@@ -37,6 +38,7 @@ export function outputOf(report: FileReport, withValues: boolean): OutputReport 
     disks: report.disks.map((d) => outputDisk(d, withValues)),
     machines: report.machines.map(({ disks: _disks, budget: _budget, ...machine }) => machine),
     findings: report.findings,
+    ...(report.acceptEntries ? { acceptEntries: report.acceptEntries } : {}),
   };
 }
 

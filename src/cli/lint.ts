@@ -11,7 +11,8 @@ import type { LintFormat, LintRequest } from './lint-file';
 import { renderJson } from './lint-json';
 import { lintFiles } from './lint-parallel';
 import { startProgress } from './lint-progress';
-import { summarize, type LintedFile, type LintRun } from './lint-results';
+import { mappingRelative, summarize, type LintedFile, type LintRun } from './lint-results';
+import { staleAcceptEntries, type Mapping, type StaleAcceptEntry } from '../lint';
 import { renderSarif } from './lint-sarif';
 import { renderLintText } from './lint-text';
 import { compareRunWithKnown, writeKnown } from './lint-known';
@@ -109,6 +110,13 @@ function applyKnown(run: LintRun, request: LintRequest, io: CommandIO): number |
   return undefined;
 }
 
+/** A stale accept entry, said where it is written in the mapping file. */
+function staleEntryNote(stale: StaleAcceptEntry, mapping: Mapping, cwd: string): string {
+  const where = `${stale.rule} at "${stale.pointer}"${stale.file !== undefined ? ` in ${mappingRelative(mapping, stale.file)}` : ''}`;
+  const why = stale.reached ? 'no file the run linted has such a finding there; remove it, or correct its pointer' : 'the mapping file includes no such definition file; remove it, or correct its file';
+  return `${displayPath(mapping.path, cwd)}:${stale.range.line}:${stale.range.column}: accept[${stale.entry}] (${where}) accepts nothing any more: ${why}`;
+}
+
 export async function runLint(argv: readonly string[], io: CommandIO, version: string): Promise<number> {
   const read = readCommand(argv, OPTIONS, { name: 'lint', usage: LINT_USAGE }, io, readRequest);
   if (!read.ok) return read.error;
@@ -138,6 +146,10 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   const problems: string[] = [];
   for (const file of files) if (file.error !== undefined) problems.push(`${displayPath(file.path, io.cwd)}: ${file.error}`);
   for (const folder of selection.empty) notes.push(`${folder}: the mapping file includes no definition files in this folder`);
+  // Only a run over every file the mapping includes can tell that an entry accepts nothing anywhere.
+  for (const stale of staleAcceptEntries(files.map((f) => ({ path: f.path, ...(f.report?.acceptEntries ? { acceptEntries: f.report.acceptEntries } : {}) })), mapping.value, request.paths.length === 0)) {
+    notes.push(staleEntryNote(stale, mapping.value, io.cwd));
+  }
   const summary = summarize(run);
   const tooManyWarnings = request.allowWarnings !== undefined && summary.warnings > request.allowWarnings;
   if (tooManyWarnings) notes.push(`${summary.warnings} warnings where --allow-warnings lets ${request.allowWarnings} through`);

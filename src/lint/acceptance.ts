@@ -8,6 +8,8 @@ import { readSuppressions, type SuppressionProblem } from '../model/suppressions
 import { RULE_IDS, ruleById, ruleOf, say, wordingOf, type RuleId } from '../rules';
 import { removeCommentEdit } from './accept-comment';
 import type { FileContext } from './prepare';
+import type { Mapping } from '../model/mapping';
+import type { SourceRange } from '../core/results';
 import type { LintFinding } from './report';
 
 const KNOWN_RULES: ReadonlySet<string> = new Set(RULE_IDS);
@@ -90,6 +92,30 @@ function diskScopes(disk: DiskSpec, scopes: Scope[]): void {
   if (disk.backing && 'disk' in disk.backing) diskScopes(disk.backing.disk, scopes);
 }
 
+/**
+ * How one entry of the mapping file's accept list fared in a file it reaches: whether it accepted a
+ * finding, and whether the file could tell that it accepts nothing (see canJudgeStale). Whether an
+ * entry is stale is decided over the whole run (staleAcceptEntries), since one entry can reach
+ * every file.
+ */
+export interface AcceptEntryUse {
+  /** The entry's index in the mapping file's accept list. */
+  entry: number;
+  matched: boolean;
+  judged: boolean;
+}
+
+/** Every disk (with its inline backing disks) that a pointer reaches or lies within. */
+function disksAt(machines: readonly MachineSpec[], pointer: string): DiskSpec[] {
+  const out: DiskSpec[] = [];
+  const visit = (disk: DiskSpec): void => {
+    if (pointerWithin(disk.pointer, pointer) || pointerWithin(pointer, disk.pointer)) out.push(disk);
+    if (disk.backing && 'disk' in disk.backing) visit(disk.backing.disk);
+  };
+  for (const machine of machines) for (const disk of machine.disks) visit(disk);
+  return out;
+}
+
 /** An accept comment on a machine or on its host line, kept for the host rules that run later. */
 export interface HostAcceptance {
   rules: string[];
@@ -101,9 +127,9 @@ export interface HostAcceptance {
  * themselves (which the mapping file's list can accept in turn). The findings passed in are left as
  * they are (the editor session keeps them from one edit to the next): an accepted one is a copy.
  * Also, by machine pointer, the comments on each machine or its host line: the host's findings
- * come after every file is linted.
+ * come after every file is linted; and how the accept list's entries fared in this file.
  */
-export function applyAcceptances(context: FileContext, machines: readonly MachineSpec[], findings: readonly LintFinding[]): { findings: LintFinding[]; hostAcceptances: Map<string, HostAcceptance[]> } {
+export function applyAcceptances(context: FileContext, machines: readonly MachineSpec[], findings: readonly LintFinding[]): { findings: LintFinding[]; hostAcceptances: Map<string, HostAcceptance[]>; acceptEntries: AcceptEntryUse[] } {
   const { document, mapping } = context;
   const out = [...findings];
   const rule = ruleOf('invalid-suppression');
@@ -146,9 +172,49 @@ export function applyAcceptances(context: FileContext, machines: readonly Machin
       context.add(out, rule, { message: say(WORDING, 'acceptsNothing', { rules: comment.rules.join(', ') }), pointer: '', range: comment.range, alternatives: [removal] });
     }
   }
-  for (const entry of mapping.accept) {
-    if (entry.file !== undefined && entry.file !== document.path) continue;
-    accept((finding) => finding.rule === entry.rule && pointerWithin(finding.pointer, entry.pointer), { reason: entry.reason, from: 'mapping' });
-  }
-  return { findings: out, hostAcceptances };
+  const acceptEntries: AcceptEntryUse[] = [];
+  mapping.accept.forEach((entry, index) => {
+    if (entry.file !== undefined && entry.file !== document.path) return;
+    const matched = accept((finding) => finding.rule === entry.rule && pointerWithin(finding.pointer, entry.pointer), { reason: entry.reason, from: 'mapping' }) > 0;
+    const judged = matched || canJudgeStale(context, [entry.rule], { pointer: entry.pointer, line: 0, disks: disksAt(machines, entry.pointer) }, out);
+    acceptEntries.push({ entry: index, matched, judged });
+  });
+  return { findings: out, hostAcceptances, acceptEntries };
+}
+
+/** An entry of the mapping file's accept list that accepts nothing in any file it reaches. */
+export interface StaleAcceptEntry {
+  entry: number;
+  rule: string;
+  pointer: string;
+  file?: string;
+  range: SourceRange;
+  /** False when the entry names a file the run did not lint (gone, renamed, or not included). */
+  reached: boolean;
+}
+
+/** What the run-wide judgement reads of a file: its path and how the entries fared there. */
+export interface AcceptEntriesOfFile {
+  path: string;
+  /** Absent when the file could not be read or parsed: nothing can be said of the entries it may hold. */
+  acceptEntries?: readonly AcceptEntryUse[];
+}
+
+/**
+ * The entries of the accept list that accept nothing anywhere: every file the run linted that an
+ * entry reaches could tell, and none had a finding for it. Only a run over every file the mapping
+ * includes can say so (`complete`); a file that did not parse leaves every entry that may reach it
+ * undecided. An entry naming a file the run did not lint reaches nothing.
+ */
+export function staleAcceptEntries(files: readonly AcceptEntriesOfFile[], mapping: Pick<Mapping, 'accept'>, complete: boolean): StaleAcceptEntry[] {
+  // Without a file, every entry would be "stale": the include globs are what is wrong, and said elsewhere.
+  if (!complete || files.length === 0) return [];
+  const stale: StaleAcceptEntry[] = [];
+  mapping.accept.forEach((entry, index) => {
+    const reached = files.filter((f) => entry.file === undefined || f.path === entry.file);
+    const decided = reached.every((f) => f.acceptEntries?.some((use) => use.entry === index && use.judged && !use.matched));
+    if (!decided) return;
+    stale.push({ entry: index, rule: entry.rule, pointer: entry.pointer, ...(entry.file !== undefined ? { file: entry.file } : {}), range: entry.range, reached: reached.length > 0 });
+  });
+  return stale;
 }

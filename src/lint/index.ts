@@ -15,6 +15,7 @@ export { loadMapping, type LintOptions, type SourceFile } from './prepare';
 export type { DiskReport, FileReport, LintFinding as Finding, MachineReport } from './report';
 export { LintSession } from './session';
 export { acceptCommentEdit } from './accept-comment';
+export { staleAcceptEntries, type StaleAcceptEntry } from './acceptance';
 export { HostPassMemo, runHostPass, hostReports, lintHosts, type HostReport, type WorkspaceFile } from './hosts';
 export type { HostLoad } from '../core/host-load';
 

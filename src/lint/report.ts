@@ -6,7 +6,7 @@ import type { Finding, SourceRange } from '../core/results';
 import { machineCacheUse } from '../core/sizing';
 import type { DiskSpec, DiskValues, Located, MachineSpec } from '../model/disks';
 import { RULE_IDS, type RuleId } from '../rules';
-import { applyAcceptances, type HostAcceptance } from './acceptance';
+import { applyAcceptances, type AcceptEntryUse, type HostAcceptance } from './acceptance';
 import type { FileContext } from './prepare';
 
 /** A finding of one of the registry's rules. */
@@ -101,6 +101,8 @@ export interface FileReport {
   fileFindings: number[];
   /** False when the file could not be parsed: --fix must leave it alone. */
   parsed: boolean;
+  /** How the mapping file's accept entries that reach this file fared in it (absent when it did not parse). */
+  acceptEntries?: AcceptEntryUse[];
 }
 
 /** What sizing a disk gave, besides its spec: the rest of its DiskReport is read from the spec when the file is assembled. */
@@ -183,14 +185,14 @@ export function assemble(context: FileContext, units: Units, disksNested?: boole
       findings: [],
     });
   }
-  const { findings: judged, hostAcceptances } = applyAcceptances(context, units.machines.map((u) => u.machine), findings);
+  const { findings: judged, hostAcceptances, acceptEntries } = applyAcceptances(context, units.machines.map((u) => u.machine), findings);
   for (const machine of machineReports) {
     const accepts = hostAcceptances.get(machine.pointer);
     if (accepts && machine.host !== undefined) machine.hostAcceptances = accepts;
   }
   judged.sort(byPlace);
   const fileFindings = claimFindings(judged, disks, machineReports, disksNested ?? pointersNested(disks.map((d) => d.pointer)) ? undefined : fromDisk);
-  return { path: document.path, disks, machines: machineReports, findings: judged, fileFindings, parsed: true };
+  return { path: document.path, disks, machines: machineReports, findings: judged, fileFindings, parsed: true, acceptEntries };
 }
 
 /**

@@ -40,6 +40,8 @@ export interface AcceptEntry {
   /** Absolute path of the definition file, or undefined for every file. */
   file?: string;
   reason: string;
+  /** Where the entry is written in the mapping file. */
+  range: SourceRange;
 }
 
 /** A hypervisor host's memory and the share of it the disk caches of its machines may take. */
@@ -312,11 +314,12 @@ export function parseMapping(text: string, path: string, knownRuleIds: readonly 
     cacheShareOfMemory: file.budget?.cacheShareOfMemory ?? 0.05,
     hosts,
     severities: file.rules ?? {},
-    accept: (file.accept ?? []).map((entry) => ({
+    accept: (file.accept ?? []).map((entry, i) => ({
       rule: entry.rule,
       pointer: entry.pointer,
       file: entry.file === undefined ? undefined : nodePath.resolve(dir, entry.file),
       reason: entry.reason,
+      range: at('accept', i).range,
     })),
     includes(absolutePath: string): boolean {
       const resolved = nodePath.resolve(absolutePath);
