@@ -17,6 +17,7 @@ import { renderSarif } from './lint-sarif';
 import { renderLintText } from './lint-text';
 import { compareRunWithKnown, writeKnown } from './lint-known';
 import { completeRun } from './lint-workspace';
+import * as fs from 'node:fs';
 import * as nodePath from 'node:path';
 
 const OPTIONS: Record<string, OptionSpec> = {
@@ -110,11 +111,22 @@ function applyKnown(run: LintRun, request: LintRequest, io: CommandIO): number |
   return undefined;
 }
 
-/** A stale accept entry, said where it is written in the mapping file. */
-function staleEntryNote(stale: StaleAcceptEntry, mapping: Mapping, cwd: string): string {
+/**
+ * Why an entry naming a file the run did not lint accepts nothing: the file is gone, or the mapping
+ * does not include it; undefined when it is there and included (a folder the run could not walk,
+ * say), since nothing is known of its findings then.
+ */
+function unreachedWhy(file: string, mapping: Mapping): string | undefined {
+  if (!fs.existsSync(file)) return 'there is no such definition file; remove it, or correct its file';
+  if (!mapping.includes(file)) return 'the mapping file does not include that file; remove it, or correct its file';
+  return undefined;
+}
+
+/** A stale accept entry, said where it is written in the mapping file; undefined when it cannot be told. */
+function staleEntryNote(stale: StaleAcceptEntry, mapping: Mapping, cwd: string): string | undefined {
   const where = `${stale.rule} at "${stale.pointer}"${stale.file !== undefined ? ` in ${mappingRelative(mapping, stale.file)}` : ''}`;
-  const why = stale.reached ? 'no file the run linted has such a finding there; remove it, or correct its pointer' : 'the mapping file includes no such definition file; remove it, or correct its file';
-  return `${displayPath(mapping.path, cwd)}:${stale.range.line}:${stale.range.column}: accept[${stale.entry}] (${where}) accepts nothing any more: ${why}`;
+  const why = stale.reached || stale.file === undefined ? 'no file the run linted has such a finding there; remove it, or correct its pointer' : unreachedWhy(stale.file, mapping);
+  return why === undefined ? undefined : `${displayPath(mapping.path, cwd)}:${stale.range.line}:${stale.range.column}: accept[${stale.entry}] (${where}) accepts nothing any more: ${why}`;
 }
 
 export async function runLint(argv: readonly string[], io: CommandIO, version: string): Promise<number> {
@@ -148,7 +160,8 @@ export async function runLint(argv: readonly string[], io: CommandIO, version: s
   for (const folder of selection.empty) notes.push(`${folder}: the mapping file includes no definition files in this folder`);
   // Only a run over every file the mapping includes can tell that an entry accepts nothing anywhere.
   for (const stale of staleAcceptEntries(files.map((f) => ({ path: f.path, ...(f.report?.acceptEntries ? { acceptEntries: f.report.acceptEntries } : {}) })), mapping.value, request.paths.length === 0)) {
-    notes.push(staleEntryNote(stale, mapping.value, io.cwd));
+    const note = staleEntryNote(stale, mapping.value, io.cwd);
+    if (note !== undefined) notes.push(note);
   }
   const summary = summarize(run);
   const tooManyWarnings = request.allowWarnings !== undefined && summary.warnings > request.allowWarnings;

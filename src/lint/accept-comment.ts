@@ -72,11 +72,14 @@ export function acceptCommentEdit(text: string, report: FileReport, finding: Fin
  * on it (with its line break), else the comment and the blanks before it, leaving the line's content.
  */
 export function removeCommentEdit(text: string, range: Pick<SourceRange, 'offset' | 'length'>): TextEdit {
-  const lineStart = text.lastIndexOf('\n', range.offset - 1) + 1;
+  // Lines end in LF, CRLF or a lone CR, as the line index counts them.
+  const lineStart = Math.max(text.lastIndexOf('\n', range.offset - 1), text.lastIndexOf('\r', range.offset - 1)) + 1;
   const before = text.slice(lineStart, range.offset);
   if (before.trim() === '') {
-    const lineBreak = text.indexOf('\n', range.offset + range.length);
-    const end = lineBreak === -1 ? text.length : lineBreak + 1;
+    const lineBreaks = /\r\n|\r|\n/g;
+    lineBreaks.lastIndex = range.offset + range.length;
+    const lineBreak = lineBreaks.exec(text);
+    const end = lineBreak ? lineBreak.index + lineBreak[0].length : text.length;
     return { offset: lineStart, length: end - lineStart, text: '' };
   }
   const blanks = before.length - before.trimEnd().length;

@@ -44,14 +44,19 @@ const NEEDS_MORE_THAN_THE_TEXT: ReadonlySet<RuleId> = new Set<RuleId>(['image-mi
 
 /**
  * Whether a disk's findings follow from the definition alone: no trace, no backing file named by
- * path, and no image file, or one whose facts the caller read (with --no-images, or before the editor
- * has read it, its chain and so its sizing findings are not yet known).
+ * path, and no image file, or one the caller read whole (with --no-images, before the editor has
+ * read it, or when it cannot be read, its chain and so its sizing findings are not yet known).
  */
 function decidedByText(context: FileContext, disk: DiskSpec): boolean {
   if (disk.values.trace) return false;
   if (disk.backing && 'file' in disk.backing) return false;
   const image = disk.values.image;
-  if (image && context.images?.(nodePath.resolve(nodePath.dirname(context.document.path), image.value)) === undefined) return false;
+  if (image) {
+    // An image that could not be used (missing, unreadable, a backing layer lost) leaves the disk sized
+    // from less than it really is: once the image reads, findings may appear.
+    const facts = context.images?.(nodePath.resolve(nodePath.dirname(context.document.path), image.value));
+    if (!facts || facts.problem) return false;
+  }
   return !disk.backing || decidedByText(context, disk.backing.disk);
 }
 
@@ -105,14 +110,24 @@ export interface AcceptEntryUse {
   judged: boolean;
 }
 
-/** Every disk (with its inline backing disks) that a pointer reaches or lies within. */
+/**
+ * The disks (with their inline backing disks) whose findings an entry at `pointer` depends on: those
+ * it reaches or lies within, and every disk of a machine when it points at the machine's own part
+ * (its memory, say, where the machine's cache budget is reported, summed over all its disks).
+ */
 function disksAt(machines: readonly MachineSpec[], pointer: string): DiskSpec[] {
   const out: DiskSpec[] = [];
-  const visit = (disk: DiskSpec): void => {
-    if (pointerWithin(disk.pointer, pointer) || pointerWithin(pointer, disk.pointer)) out.push(disk);
-    if (disk.backing && 'disk' in disk.backing) visit(disk.backing.disk);
+  const withBacking = (disk: DiskSpec): void => {
+    out.push(disk);
+    if (disk.backing && 'disk' in disk.backing) withBacking(disk.backing.disk);
   };
-  for (const machine of machines) for (const disk of machine.disks) visit(disk);
+  for (const machine of machines) {
+    const inMachine = pointerWithin(pointer, machine.pointer);
+    const inDisk = machine.disks.some((disk) => pointerWithin(pointer, disk.pointer));
+    for (const disk of machine.disks) {
+      if ((inMachine && !inDisk) || pointerWithin(disk.pointer, pointer) || pointerWithin(pointer, disk.pointer)) withBacking(disk);
+    }
+  }
   return out;
 }
 

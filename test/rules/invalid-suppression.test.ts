@@ -88,6 +88,11 @@ describe(`rule ${RULE}: what a broken suppression does`, () => {
     assert.equal(findingsOf(lintCase({ text: fixed }), RULE).length, 0);
   });
 
+  it(`${CONTRACT} removing a stale comment in a file with CRLF line breaks takes its line break with it`, () => {
+    const text = disks('# cachewright-accept l2-cache-oversized: headroom for growth', '- { name: a, size: 1T }').replace(/\n/g, '\r\n');
+    assert.equal(removeStale(text), disks('- { name: a, size: 1T }').replace(/\n/g, '\r\n'));
+  });
+
   it(`${CONTRACT} removing a stale comment at the end of a disk's first line leaves the line's content`, () => {
     const fixed = removeStale(disks('- name: a   # cachewright-accept l2-cache-oversized: headroom', '  size: 1T'));
     assert.equal(fixed, disks('- name: a', '  size: 1T'));

@@ -4,6 +4,7 @@
 import { strict as assert } from 'node:assert';
 import * as path from 'node:path';
 import { staleAcceptEntries, type FileReport } from '../../src/lint';
+import type { ImageLookup } from '../../src/model/images';
 import { CONTRACT } from '../helpers/sources';
 import { lintIn, makeWorkspace, removeWorkspace } from '../fixtures/lint/run';
 import { DEFINITION_DIR, lintCase, mappingFor, type MappingObject } from '../rules/harness';
@@ -15,9 +16,10 @@ const TEXT = ['machines:', '  - name: m', '    disks:', '      - { name: small, 
 
 const entry = (rule: string, pointer: string, extra: Record<string, string> = {}) => ({ rule, pointer, reason: 'reviewed', ...extra });
 
-function staleOf(accept: object[], options: { text?: string; complete?: boolean; rules?: MappingObject } = {}): number[] {
+function staleOf(accept: object[], options: { text?: string; complete?: boolean; rules?: MappingObject; images?: ImageLookup } = {}): number[] {
   const overrides: MappingObject = { accept, ...(options.rules ? { rules: options.rules } : {}) };
-  const report: FileReport = lintCase({ text: options.text ?? TEXT, file: FILE, mapping: overrides });
+  const lookup = options.images;
+  const report: FileReport = lintCase({ text: options.text ?? TEXT, file: FILE, mapping: overrides, ...(lookup ? { options: () => ({ images: lookup }) } : {}) });
   const files = [{ path: FILE, ...(report.acceptEntries ? { acceptEntries: report.acceptEntries } : {}) }];
   return staleAcceptEntries(files, mappingFor(overrides), options.complete ?? true).map((s) => s.entry);
 }
@@ -41,6 +43,22 @@ describe('stale entries of the accept list', () => {
     assert.deepEqual(staleOf([entry('l2-cache-oversized', '/machines/0/disks/0'), entry('l2-cache-oversized', '/machines/0/disks/1')], { text }), []);
   });
 
+  it(`${CONTRACT} an entry at a machine's memory (where its cache budget is reported) depends on every disk of the machine`, () => {
+    // 8M + 1G of L2 on 4 GiB of RAM is over the 5 % budget; with disk b's size unreadable, or its image
+    // unread, the budget cannot be summed, so the entry may still have a finding to accept.
+    const machine = (disk: string) => ['machines:', '  - name: m', '    memory: 4G', '    disks:', '      - { name: a, size: 1T, cache: { l2: 8M } }', `      - ${disk}`, ''].join('\n');
+    const budget = [entry('machine-cache-budget', '/machines/0/memory')];
+    assert.deepEqual(staleOf(budget, { text: machine('{ name: b, size: 4Tx, cache: { l2: 1G } }') }), []);
+    assert.deepEqual(staleOf(budget, { text: machine('{ name: b, size: 1G, image: b.qcow2 }') }), []);
+    assert.deepEqual(staleOf(budget, { text: machine('{ name: b, size: 1G }') }), [0], 'with every disk known and no finding, it is stale');
+  });
+
+  it(`${CONTRACT} an image that was looked up but could not be used leaves its disk undecided`, () => {
+    const text = ['machines:', '  - name: m', '    disks:', '      - { name: a, size: 8T, image: a.qcow2, cache: { l2: 1G } }', ''].join('\n');
+    const missing: ImageLookup = () => ({ layers: [], problem: { kind: 'missing', message: 'no such file', layer: 0 } });
+    assert.deepEqual(staleOf([entry('l2-cache-oversized', '/machines/0/disks/0')], { text, images: missing }), []);
+  });
+
   it(`${CONTRACT} a run given paths cannot tell, and a file that does not parse leaves every entry reaching it undecided`, () => {
     assert.deepEqual(staleOf([entry('l2-cache-undersized', '/machines/0/disks/1')], { complete: false }), []);
     assert.deepEqual(staleOf([entry('l2-cache-undersized', '/machines/0/disks/1')], { text: 'machines: [' }), []);
@@ -59,14 +77,25 @@ describe('stale entries of the accept list', () => {
         'accept:',
         '  - { rule: l2-cache-oversized, pointer: "/machines/0/disks/0", file: fleet.yaml, reason: "room to grow" }',
         '  - { rule: l2-cache-oversized, pointer: "/machines/0/disks/1", file: fleet.yaml, reason: "resized since" }',
+        '  - { rule: l2-cache-oversized, pointer: "/machines/0/disks/0", file: gone.yaml, reason: "moved away" }',
+        '  - { rule: l2-cache-oversized, pointer: "/machines/0/disks/0", file: old.yml, reason: "no longer included" }',
         '',
       ].join('\n'),
       'fleet.yaml': 'machines:\n  - name: m\n    disks:\n      - { name: a, size: 1T, l2: 256M }\n      - { name: b, size: 1T, l2: 128M }\n',
+      'old.yml': 'machines:\n  - name: m\n    disks:\n      - { name: a, size: 1T, l2: 256M }\n',
     });
     try {
       const whole = await lintIn(dir, []);
       assert.equal(whole.code, 0, whole.stderr);
-      assert.equal(whole.stderr, 'cachewright.yaml:10:5: accept[1] (l2-cache-oversized at "/machines/0/disks/1" in fleet.yaml) accepts nothing any more: no file the run linted has such a finding there; remove it, or correct its pointer\n');
+      assert.equal(
+        whole.stderr,
+        [
+          'cachewright.yaml:10:5: accept[1] (l2-cache-oversized at "/machines/0/disks/1" in fleet.yaml) accepts nothing any more: no file the run linted has such a finding there; remove it, or correct its pointer',
+          'cachewright.yaml:11:5: accept[2] (l2-cache-oversized at "/machines/0/disks/0" in gone.yaml) accepts nothing any more: there is no such definition file; remove it, or correct its file',
+          'cachewright.yaml:12:5: accept[3] (l2-cache-oversized at "/machines/0/disks/0" in old.yml) accepts nothing any more: the mapping file does not include that file; remove it, or correct its file',
+          '',
+        ].join('\n'),
+      );
       const named = await lintIn(dir, ['fleet.yaml']);
       assert.equal(named.stderr, '', 'a run given paths says nothing of the list');
     } finally {
